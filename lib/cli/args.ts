@@ -1,0 +1,51 @@
+import { parseArgs, type ParseArgsConfig } from 'node:util';
+
+/** Thrown for a usage problem; the command prints the message and exits 2. */
+export class UsageError extends Error {}
+
+type Options = NonNullable<ParseArgsConfig['options']>;
+
+/**
+ * Parse a command's argv with node:util's parseArgs (strict: unknown options are errors) and turn its
+ * exceptions into UsageError with a one-line message.
+ */
+export function parseCommandArgs<O extends Options>(argv: string[], options: O) {
+  try {
+    return parseArgs({ args: argv, options, allowPositionals: true, strict: true });
+  } catch (err) {
+    throw new UsageError(err instanceof Error ? err.message : String(err));
+  }
+}
+
+/** Parse a finite number option, naming the option in the error. */
+export function numberOption(name: string, value: string | undefined, fallback?: number): number {
+  if (value === undefined) {
+    if (fallback === undefined) throw new UsageError(`missing --${name}`);
+    return fallback;
+  }
+  const n = Number(value);
+  if (!Number.isFinite(n)) throw new UsageError(`--${name} must be a number, got "${value}"`);
+  return n;
+}
+
+/** Parse "L/D" (layer/datatype), e.g. "5/0"; a bare "5" means datatype 0. */
+export function layerOption(value: string | undefined): { layer: number; datatype: number } {
+  if (value === undefined) throw new UsageError('missing --layer L/D (for example --layer 5/0)');
+  const m = /^(\d+)(?:\/(\d+))?$/.exec(value.trim());
+  if (!m) throw new UsageError(`--layer must look like L/D (for example 5/0), got "${value}"`);
+  return { layer: Number(m[1]), datatype: Number(m[2] ?? 0) };
+}
+
+/**
+ * Run a command body: usage errors and errors marked as user-facing print one line and give exit 2;
+ * no stack traces reach the user.
+ */
+export async function runCommand(name: string, body: () => Promise<number>): Promise<number> {
+  try {
+    return await body();
+  } catch (err) {
+    const message = err instanceof Error ? err.message : String(err);
+    console.error(`trenchant ${name}: ${message}`);
+    return 2;
+  }
+}
