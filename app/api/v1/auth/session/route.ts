@@ -1,0 +1,38 @@
+import { endSession, getCurrentSession, startSession } from '@/lib/auth/session';
+import { authenticate } from '@/lib/data/accounts';
+import { signInInput } from '@/lib/data/schemas';
+import { toErrorResponse } from '@/lib/http/errors';
+import { assertSameOrigin } from '@/lib/http/origin';
+
+export const runtime = 'nodejs';
+export const dynamic = 'force-dynamic';
+
+/** Sign in: `{ email, password }` → 200 `{ user }` and the session cookie; 401 wrong; 429 rate limited. */
+export async function POST(request: Request) {
+  try {
+    assertSameOrigin(request);
+    const user = await authenticate(signInInput.parse(await request.json()));
+    await startSession(user.id);
+    return Response.json({ user });
+  } catch (error) {
+    return toErrorResponse(error);
+  }
+}
+
+/** The current session's user, or 401. */
+export async function GET() {
+  const { user } = await getCurrentSession();
+  if (!user) return Response.json({ error: { code: 'unauthorized', message: 'Sign in first.' } }, { status: 401 });
+  return Response.json({ user });
+}
+
+/** Sign out. */
+export async function DELETE(request: Request) {
+  try {
+    assertSameOrigin(request);
+    await endSession();
+    return new Response(null, { status: 204 });
+  } catch (error) {
+    return toErrorResponse(error);
+  }
+}

@@ -1,0 +1,19 @@
+import { startSession } from '@/lib/auth/session';
+import { signUp } from '@/lib/data/accounts';
+import { signUpInput } from '@/lib/data/schemas';
+import { toErrorResponse } from '@/lib/http/errors';
+import { assertSameOrigin } from '@/lib/http/origin';
+
+export const runtime = 'nodejs';
+
+/** Create an account: `{ name, email, password, teamName? }` → 201 `{ user }` and the session cookie. */
+export async function POST(request: Request) {
+  try {
+    assertSameOrigin(request);
+    const user = await signUp(signUpInput.parse(await request.json()));
+    await startSession(user.id);
+    return Response.json({ user }, { status: 201 });
+  } catch (error) {
+    return toErrorResponse(error);
+  }
+}

@@ -1,0 +1,43 @@
+import Link from 'next/link';
+import { signOutAction } from '@/app/(auth)/actions';
+import { Logo } from '@/components/ui/logo';
+import type { AuthUser } from '@/lib/auth/session';
+
+/** Top bar of the signed-in app: mark, main navigation, the user and sign-out. */
+export function AppHeader({ user, teams }: { user: AuthUser; teams: { id: string; name: string }[] }) {
+  return (
+    <header className="bg-ink-900 text-wafer-50">
+      <div className="mx-auto flex h-14 max-w-6xl items-center gap-8 px-6">
+        <Link href="/projects" aria-label="Trenchant home">
+          <Logo size={26} />
+        </Link>
+        <nav className="flex items-center gap-1 text-sm">
+          <Link href="/projects" className="rounded px-2.5 py-1.5 text-ink-100 hover:bg-ink-800 hover:text-white">
+            Projects
+          </Link>
+          {teams.map((t) => (
+            <Link key={t.id} href={`/teams/${t.id}`} className="rounded px-2.5 py-1.5 text-ink-100 hover:bg-ink-800 hover:text-white">
+              {t.name}
+            </Link>
+          ))}
+          <Link href="/methods" className="rounded px-2.5 py-1.5 text-ink-100 hover:bg-ink-800 hover:text-white">
+            Methods
+          </Link>
+        </nav>
+        <div className="ml-auto flex items-center gap-3 text-sm">
+          <Link href="/account/tokens" className="text-ink-300 hover:text-white">
+            API tokens
+          </Link>
+          <span className="hidden text-ink-300 sm:inline" data-testid="current-user">
+            {user.name}
+          </span>
+          <form action={signOutAction}>
+            <button type="submit" className="rounded border border-ink-700 px-2.5 py-1 text-ink-100 hover:border-copper-400 hover:text-white">
+              Sign out
+            </button>
+          </form>
+        </div>
+      </div>
+    </header>
+  );
+}

@@ -1,0 +1,7 @@
+// All tables, for drizzle-kit and the typed client. Other areas add their own files here (e.g. ./analyses).
+export * from './auth';
+export * from './teams';
+export * from './audit';
+export * from './mail';
+export * from './tokens';
+export * from './analyses';

@@ -1,0 +1,53 @@
+import { TEAM_ROLES, type TeamRole } from '@/db/schema/teams';
+
+export { TEAM_ROLES, type TeamRole };
+
+/**
+ * The permission table: every protected action and the team roles allowed to do it. This is the only place
+ * roles are mapped to actions; pages hide buttons with `can()`, and every handler and server action enforces
+ * the same table through `requireTeamPermission` (lib/auth/guard.ts).
+ */
+export const PERMISSIONS = {
+  /** rename the team, change member roles, remove members */
+  'team.manage': ['admin'],
+  /** send e-mail invitations */
+  'members.invite': ['admin'],
+  /** read the development mail outbox */
+  'outbox.view': ['admin'],
+  /** create a project */
+  'project.create': ['admin', 'designer'],
+  /** upload a layout revision */
+  'layout.upload': ['admin', 'designer'],
+  /** start an analysis of a layout */
+  'analysis.create': ['admin', 'designer', 'process_engineer'],
+  /** create, calibrate and publish process models and check rules */
+  'model.publish': ['admin', 'process_engineer'],
+  /** comment on a flagged risk */
+  'flag.comment': ['admin', 'process_engineer', 'designer', 'reviewer'],
+  /** waive a flagged risk (with a reason) */
+  'flag.waive': ['admin', 'reviewer'],
+  /** sign off a layout revision */
+  'revision.signoff': ['admin', 'reviewer'],
+} as const satisfies Record<string, readonly TeamRole[]>;
+
+export type TeamAction = keyof typeof PERMISSIONS;
+export const TEAM_ACTIONS = Object.keys(PERMISSIONS) as TeamAction[];
+
+/** Whether `role` may perform `action`. Pure; no session involved. */
+export function can(role: TeamRole, action: TeamAction): boolean {
+  return (PERMISSIONS[action] as readonly TeamRole[]).includes(role);
+}
+
+/** Human labels used in the UI. */
+export const ROLE_LABEL: Record<TeamRole, string> = {
+  admin: 'Admin',
+  process_engineer: 'Process engineer',
+  designer: 'Designer',
+  reviewer: 'Reviewer',
+};
+
+/** Roles that may perform `action`, as labels, for "needs the X or Y role" messages. */
+export function rolesAllowedText(action: TeamAction): string {
+  const labels = (PERMISSIONS[action] as readonly TeamRole[]).map((r) => ROLE_LABEL[r].toLowerCase());
+  return labels.length <= 1 ? (labels[0] ?? '') : `${labels.slice(0, -1).join(', ')} or ${labels.at(-1)}`;
+}

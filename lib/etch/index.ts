@@ -1,0 +1,39 @@
+/** Etch model: transport (ARDE), loading, depth over time, cyclic mode, calibration and width rules. */
+export { holeTransmission, slotTransmission, transmission, clausingFactorBerman, type FeatureKind } from './transmission';
+export { bottomNeutralFluxRatio } from './neutral-flux';
+export { stripViewFactor, diskViewFactor, diskToDiskViewFactor } from './view-factor';
+export {
+  trenchIonCentreFraction,
+  holeIonCentreFraction,
+  trenchIonMeanFraction,
+  holeIonMeanFraction,
+  ionFluxRatio,
+  cosineExponent,
+  type IonAngularDistribution,
+  type IonFluxSite,
+} from './ion-flux';
+export { globalLoadingFactor, localLoadingFactor, loadingFactor, type LoadingForm } from './loading';
+export { ardeFactor, ionEnhancedRatio, type ArdeParameters } from './rate';
+export { depthAtTime, timeToDepthMin, timeBetweenDepthsMin, rateThresholdDepthUm, adaptiveIntegral, type RateFunction, type DepthAtTime } from './depth-integrator';
+export { runCycles, scallopDepthUm, type CyclicRun, type CycleSteps } from './cyclic';
+export {
+  processModelSchema,
+  parseProcessModel,
+  formatModelIssues,
+  type ProcessModel,
+  type ProcessModelInput,
+  type ModelIssue,
+} from './process-model';
+export { predictFeature, ETCH_CAUTION, type FeatureInput, type FeaturePrediction, type StopReason } from './predict';
+export { parseCalibrationCsv, calibrationRowsToCsv, CalibrationCsvError, type CalibrationRow } from './calibration-csv';
+export {
+  fitCalibration,
+  underdeterminedReason,
+  type CalibrationOptions,
+  type CalibrationFit,
+  type CalibrationRefusal,
+  type FitParameter,
+  type FittedValue,
+  type CalibrationResidual,
+} from './calibrate';
+export { widthRules, widthRulesToCsv, widthRulesToJson, type WidthRules, type WidthRuleRow, type WidthRulesOptions } from './width-rules';

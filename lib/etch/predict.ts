@@ -1,0 +1,250 @@
+/**
+ * Predicted depth of one feature under a process model: combines ARDE (rate.ts), loading (loading.ts), the depth
+ * integrator (continuous mode) or the cycle stepper (cyclic mode), the stop layer, mask erosion and the calibrated
+ * ranges. All depths µm, times min, rates µm/min.
+ */
+import { runCycles, scallopDepthUm } from './cyclic';
+import { depthAtTime, rateThresholdDepthUm, timeToDepthMin } from './depth-integrator';
+import { loadingFactor } from './loading';
+import type { ProcessModel } from './process-model';
+import { ardeFactor } from './rate';
+import type { FeatureKind } from './transmission';
+
+/** The caution shown with every prediction (domain.md 5). */
+export const ETCH_CAUTION =
+  'Estimates from simplified transport and loading models: validate against calibration wafers from the fab\u2019s process of record; foundry rules take precedence; drawn widths are not final widths.';
+
+export type FeatureInput = {
+  /** Drawn opening width (trench) or diameter (hole), µm. */
+  widthUm: number;
+  kind: FeatureKind;
+  /** Effective (kernel-smoothed) open density around the feature, 0–1. Omitted = 0 (no local loading). */
+  effectiveDensity?: number;
+  /** Exposed fraction of the whole wafer, 0–1, for global loading. Omitted = 0. */
+  exposedFraction?: number;
+};
+
+export type StopReason = 'max-aspect-ratio' | 'rate-threshold';
+
+export type FeaturePrediction = {
+  kind: FeatureKind;
+  widthUm: number;
+  /** Depth in the etched material at the recipe time (≤ stop-layer depth), µm. */
+  depthUm: number;
+  aspectRatio: number;
+  /** R(AR)/R(0) at the depth reached (transport only, loading excluded). */
+  ardeFactor: number;
+  /** Loading factor R/R_open from local and global loading. */
+  loadingFactor: number;
+  rateAtDepthUmPerMin: number;
+  /** Time to reach the target depth, min; may exceed the recipe time; null if the etch stops first. */
+  timeToTargetMin: number | null;
+  /** depth ≥ target − tolerance at the recipe time. */
+  reachesTarget: boolean;
+  /** depth − target, µm. */
+  marginUm: number;
+  reachedStopLayer: boolean;
+  timeToStopLayerMin: number | null;
+  overEtchTimeMin: number;
+  /** Depth etched into the stop layer after reaching it, µm (aspect ratio held at the stop depth). */
+  overEtchUm: number;
+  /** Mask thickness left at the recipe time, µm (0 if consumed); null without a mask block. */
+  maskRemainingUm: number | null;
+  /** Etch stopped before the recipe time for a reason other than the stop layer. */
+  stopped: boolean;
+  stopReason: StopReason | null;
+  cyclic: null | { cyclesInRecipe: number; cyclesToTarget: number | null; firstCycleDepthUm: number; lastCycleDepthUm: number; scallopTopUm: number; scallopBottomUm: number };
+  warnings: string[];
+};
+
+function checkInput(input: FeatureInput): void {
+  if (!(Number.isFinite(input.widthUm) && input.widthUm > 0)) throw new RangeError(`width must be a number > 0 µm, got ${input.widthUm}`);
+  if (input.kind !== 'trench' && input.kind !== 'hole') throw new RangeError(`kind must be 'trench' or 'hole', got ${String(input.kind)}`);
+  for (const [name, v] of [['effective density', input.effectiveDensity], ['exposed fraction', input.exposedFraction]] as const) {
+    if (v !== undefined && !(v >= 0 && v <= 1)) throw new RangeError(`${name} must be in [0, 1], got ${v}`);
+  }
+}
+
+const fmt = (v: number) => Number(v.toPrecision(3)).toString();
+
+/** Calibration-range and model-completeness warnings for one prediction. */
+function rangeWarnings(model: ProcessModel, input: FeatureInput, aspectRatio: number): string[] {
+  const out: string[] = [];
+  const c = model.calibration;
+  if (!c) {
+    out.push('model has no calibration record: predictions are uncalibrated estimates');
+    return out;
+  }
+  const outside = (v: number, [lo, hi]: readonly [number, number]) => v < lo * (1 - 1e-9) || v > hi * (1 + 1e-9);
+  if (outside(input.widthUm, c.widthUm)) out.push(`width ${fmt(input.widthUm)} µm is outside the calibrated range ${c.widthUm[0]}–${c.widthUm[1]} µm (extrapolation)`);
+  if (outside(aspectRatio, c.aspectRatio)) out.push(`aspect ratio ${fmt(aspectRatio)} is outside the calibrated range ${c.aspectRatio[0]}–${c.aspectRatio[1]} (extrapolation)`);
+  if (outside(input.effectiveDensity ?? 0, c.density)) out.push(`density ${fmt(input.effectiveDensity ?? 0)} is outside the calibrated range ${c.density[0]}–${c.density[1]} (extrapolation)`);
+  if (c.kinds && !c.kinds.includes(input.kind)) out.push(`the model was calibrated on ${c.kinds.join(', ')} only, not ${input.kind}s`);
+  return out;
+}
+
+type Kinetics = {
+  lf: number;
+  loadedOpenRate: number;
+  rate: (depthUm: number) => number;
+  threshold: number;
+  arDepth: number;
+  rateDepth: number;
+  stopDepth: number;
+  limit: number;
+  limitIsStopLayer: boolean;
+};
+
+function kinetics(model: ProcessModel, input: FeatureInput): Kinetics {
+  const w = input.widthUm;
+  const lf = loadingFactor(model.loading, input.effectiveDensity ?? 0, input.exposedFraction ?? 0);
+  const loadedOpenRate = model.openRateUmPerMin * lf;
+  const rate = (h: number) => loadedOpenRate * ardeFactor(model, input.kind, h / w);
+  const threshold = model.etch.stopRateFraction * model.openRateUmPerMin;
+  const arDepth = model.etch.maxAspectRatio * w;
+  const rateDepth = rateThresholdDepthUm(rate, threshold, arDepth);
+  const stopDepth = model.stopLayer?.depthUm ?? Infinity;
+  return {
+    lf,
+    loadedOpenRate,
+    rate,
+    threshold,
+    arDepth,
+    rateDepth,
+    stopDepth,
+    limit: Math.min(rateDepth, arDepth, stopDepth),
+    limitIsStopLayer: stopDepth <= Math.min(rateDepth, arDepth),
+  };
+}
+
+/**
+ * Depth only, µm, at `timeMin` (default the model's etch time): the lean path used by calibration and by callers
+ * that need many evaluations. Same physics as predictFeature; `relTol` is the integrator's relative tolerance.
+ */
+export function predictDepthUm(model: ProcessModel, input: FeatureInput, timeMin = model.etch.timeMin, relTol = 1e-9): number {
+  checkInput(input);
+  const k = kinetics(model, input);
+  if (model.mode === 'cyclic' && model.cyclic) {
+    const cycleMin = (model.cyclic.etchStepS + model.cyclic.passivationStepS) / 60;
+    return runCycles((h) => k.rate(h) * cycleMin, model.cyclic, {
+      timeMin,
+      targetDepthUm: 0,
+      limitDepthUm: k.limit,
+      minPerCycleUm: k.threshold * cycleMin,
+    }).depthUm;
+  }
+  return depthAtTime(k.rate, timeMin, k.limit, relTol, { limitTime: false }).depthUm;
+}
+
+/**
+ * Predict one feature's depth at the model's etch time.
+ * @example predictFeature(model, { widthUm: 5, kind: 'trench', effectiveDensity: 0.3 }).depthUm
+ */
+export function predictFeature(model: ProcessModel, input: FeatureInput, relTol = 1e-9): FeaturePrediction {
+  checkInput(input);
+  const w = input.widthUm;
+  const T = model.etch.timeMin;
+  const target = model.etch.targetDepthUm;
+  const { lf, loadedOpenRate, rate, threshold, arDepth, rateDepth, stopDepth, limit, limitIsStopLayer } = kinetics(model, input);
+  const warnings: string[] = [];
+
+  let depthUm: number;
+  let timeToTargetMin: number | null;
+  let reachedLimit: boolean;
+  let timeToLimitMin: number | null;
+  let cyclic: FeaturePrediction['cyclic'] = null;
+  if (model.mode === 'cyclic' && model.cyclic) {
+    const steps = model.cyclic;
+    const cycleMin = (steps.etchStepS + steps.passivationStepS) / 60;
+    const run = runCycles((h) => rate(h) * cycleMin, steps, {
+      timeMin: T,
+      targetDepthUm: target,
+      limitDepthUm: limit,
+      minPerCycleUm: threshold * cycleMin,
+    });
+    depthUm = run.depthUm;
+    timeToTargetMin = run.timeToTargetMin;
+    // `limit` already includes the rate-threshold depth, so a rate stop is a stop at the limit (only at depth 0
+    // when the loaded open rate itself is below the threshold).
+    reachedLimit = run.reachedLimit || run.rateStopped;
+    timeToLimitMin = run.rateStopped ? 0 : run.timeToLimitMin;
+    cyclic = {
+      cyclesInRecipe: run.cyclesInRecipe,
+      cyclesToTarget: run.cyclesToTarget,
+      firstCycleDepthUm: run.firstCycleDepthUm,
+      lastCycleDepthUm: run.lastCycleDepthUm,
+      scallopTopUm: scallopDepthUm(run.firstCycleDepthUm, steps.lateralToVerticalRatio),
+      scallopBottomUm: scallopDepthUm(run.lastCycleDepthUm, steps.lateralToVerticalRatio),
+    };
+  } else {
+    const run = depthAtTime(rate, T, limit, relTol);
+    depthUm = run.depthUm;
+    reachedLimit = run.reachedLimit;
+    timeToLimitMin = Number.isFinite(run.timeToLimitMin) ? run.timeToLimitMin : null;
+    timeToTargetMin = target <= limit ? timeToDepthMin(rate, target, relTol) : null;
+    if (timeToTargetMin !== null && !Number.isFinite(timeToTargetMin)) timeToTargetMin = null;
+  }
+
+  const reachedStopLayer = limitIsStopLayer && reachedLimit;
+  const stopped = reachedLimit && !limitIsStopLayer;
+  const stopReason: StopReason | null = stopped ? (arDepth <= rateDepth ? 'max-aspect-ratio' : 'rate-threshold') : null;
+  const aspectRatio = depthUm / w;
+  let overEtchTimeMin = 0;
+  let overEtchUm = 0;
+  let timeToStopLayerMin: number | null = null;
+  if (model.stopLayer && limitIsStopLayer) {
+    timeToStopLayerMin = timeToLimitMin;
+    if (reachedStopLayer && timeToLimitMin !== null) {
+      overEtchTimeMin = Math.max(0, T - timeToLimitMin);
+      overEtchUm = (overEtchTimeMin * rate(stopDepth)) / model.stopLayer.selectivity;
+      if (model.stopLayer.thicknessUm !== undefined && overEtchUm > model.stopLayer.thicknessUm) {
+        warnings.push(`over-etch ${fmt(overEtchUm)} µm exceeds the stop layer thickness ${model.stopLayer.thicknessUm} µm: breaks through`);
+      }
+    }
+  }
+  let maskRemainingUm: number | null = null;
+  if (model.mask) {
+    // The mask sits on the field, so it erodes at the field's loaded rate divided by the selectivity.
+    const erodedUm = (loadedOpenRate * T) / model.mask.selectivity;
+    maskRemainingUm = Math.max(0, model.mask.thicknessUm - erodedUm);
+    if (erodedUm >= model.mask.thicknessUm) {
+      warnings.push(`mask consumed after ${fmt((model.mask.thicknessUm * model.mask.selectivity) / loadedOpenRate)} min (before the recipe time ${T} min)`);
+    }
+  }
+  if (stopped) {
+    warnings.push(
+      stopReason === 'max-aspect-ratio'
+        ? `etch stops at the model's maximum aspect ratio ${model.etch.maxAspectRatio} (depth ${fmt(depthUm)} µm)`
+        : `etch stops where the rate falls below ${model.etch.stopRateFraction} of the open rate (depth ${fmt(depthUm)} µm)`,
+    );
+  }
+  if (input.effectiveDensity === undefined && model.loading.coefficient > 0) {
+    warnings.push('no effective density given: local loading not applied');
+  }
+  if (!model.stopLayer && depthUm > target + model.etch.toleranceUm) {
+    warnings.push(`depth exceeds target + tolerance by ${fmt(depthUm - target - model.etch.toleranceUm)} µm (timed etch, no stop layer)`);
+  }
+  warnings.push(...rangeWarnings(model, input, aspectRatio));
+  const ardeAtDepth = ardeFactor(model, input.kind, aspectRatio);
+  return {
+    kind: input.kind,
+    widthUm: w,
+    depthUm,
+    aspectRatio,
+    ardeFactor: ardeAtDepth,
+    loadingFactor: lf,
+    rateAtDepthUmPerMin: loadedOpenRate * ardeAtDepth,
+    timeToTargetMin,
+    reachesTarget: depthUm >= target - model.etch.toleranceUm,
+    marginUm: depthUm - target,
+    reachedStopLayer,
+    timeToStopLayerMin,
+    overEtchTimeMin,
+    overEtchUm,
+    maskRemainingUm,
+    stopped,
+    stopReason,
+    cyclic,
+    warnings,
+  };
+}

@@ -1,0 +1,118 @@
+/**
+ * Exact Euclidean distance transform (Felzenszwalb & Huttenlocher, "Distance Transforms of Sampled Functions",
+ * Theory of Computing 8, 2012) and the thickness (local width) transform built on it.
+ */
+
+/** 1-D squared distance transform of f (lower envelope of parabolas), written into d. */
+function edt1d(f: Float64Array, n: number, d: Float64Array, v: Int32Array, z: Float64Array): void {
+  let k = 0;
+  v[0] = 0;
+  z[0] = -Infinity;
+  z[1] = Infinity;
+  for (let q = 1; q < n; q++) {
+    const fq = f[q] as number;
+    if (fq === Infinity) continue;
+    if ((f[v[0] as number] as number) === Infinity) {
+      v[0] = q;
+      continue;
+    }
+    let s: number;
+    for (;;) {
+      const vk = v[k] as number;
+      s = (fq + q * q - ((f[vk] as number) + vk * vk)) / (2 * q - 2 * vk);
+      if (s <= (z[k] as number) && k > 0) k--;
+      else break;
+    }
+    k++;
+    v[k] = q;
+    z[k] = s;
+    z[k + 1] = Infinity;
+  }
+  if ((f[v[0] as number] as number) === Infinity) {
+    d.fill(Infinity, 0, n);
+    return;
+  }
+  k = 0;
+  for (let q = 0; q < n; q++) {
+    while ((z[k + 1] as number) < q) k++;
+    const vk = v[k] as number;
+    d[q] = (q - vk) * (q - vk) + (f[vk] as number);
+  }
+}
+
+/**
+ * Squared Euclidean distance (in pixel units) from each pixel centre to the nearest background pixel centre;
+ * `inside[q]` nonzero marks foreground. Same as scipy.ndimage.distance_transform_edt(inside)**2.
+ * Infinity everywhere when there is no background.
+ */
+export function squaredDistanceTransform(inside: ArrayLike<number>, nx: number, ny: number): Float64Array {
+  const out = new Float64Array(nx * ny);
+  const n = Math.max(nx, ny);
+  const f = new Float64Array(n), d = new Float64Array(n), z = new Float64Array(n + 1);
+  const v = new Int32Array(n);
+  for (let q = 0; q < nx * ny; q++) out[q] = inside[q] ? Infinity : 0;
+  for (let i = 0; i < nx; i++) {
+    for (let j = 0; j < ny; j++) f[j] = out[j * nx + i] as number;
+    edt1d(f, ny, d, v, z);
+    for (let j = 0; j < ny; j++) out[j * nx + i] = d[j] as number;
+  }
+  for (let j = 0; j < ny; j++) {
+    for (let i = 0; i < nx; i++) f[i] = out[j * nx + i] as number;
+    edt1d(f, nx, d, v, z);
+    for (let i = 0; i < nx; i++) out[j * nx + i] = d[i] as number;
+  }
+  return out;
+}
+
+/**
+ * Thickness transform: for each foreground pixel, the diameter (pixel units) of the largest disk that contains
+ * it, among the disks centred on foreground pixels with radius = their distance to the background (`d2` is the
+ * squared distance). Background pixels get 0. Only disks not contained in a neighbour's disk are painted,
+ * largest first, so each pixel is written once by its largest covering disk.
+ */
+export function thicknessTransform(d2: Float64Array, nx: number, ny: number): Float64Array {
+  const t = new Float64Array(nx * ny);
+  const centres = maximalDiskCentres(d2, nx, ny);
+  centres.sort((a, b) => (d2[b] as number) - (d2[a] as number));
+  for (const q of centres) {
+    const r2 = d2[q] as number;
+    const r = Math.sqrt(r2);
+    const ci = q % nx, cj = (q - ci) / nx;
+    const w = 2 * r;
+    const rr = Math.floor(r);
+    for (let dj = -rr; dj <= rr; dj++) {
+      const j = cj + dj;
+      if (j < 0 || j >= ny) continue;
+      const h = Math.floor(Math.sqrt(r2 - dj * dj) + 1e-9);
+      const i0 = Math.max(0, ci - h), i1 = Math.min(nx - 1, ci + h);
+      const line = j * nx;
+      for (let i = i0; i <= i1; i++) if ((t[line + i] as number) === 0 && (d2[line + i] as number) > 0) t[line + i] = w;
+    }
+  }
+  return t;
+}
+
+/** Foreground pixels whose disk (radius √d2) is not inside an 8-neighbour's disk: the maximal-disk centres. */
+export function maximalDiskCentres(d2: Float64Array, nx: number, ny: number): number[] {
+  const centres: number[] = [];
+  for (let j = 0; j < ny; j++) {
+    for (let i = 0; i < nx; i++) {
+      const q = j * nx + i;
+      const dc = Math.sqrt(d2[q] as number);
+      if (dc === 0 || dc === Infinity) continue;
+      let contained = false;
+      for (let dj = -1; dj <= 1 && !contained; dj++) {
+        for (let di = -1; di <= 1; di++) {
+          if ((di === 0 && dj === 0) || i + di < 0 || i + di >= nx || j + dj < 0 || j + dj >= ny) continue;
+          const dn = Math.sqrt(d2[(j + dj) * nx + i + di] as number);
+          if (dn >= dc + Math.hypot(di, dj) - 1e-9) {
+            contained = true;
+            break;
+          }
+        }
+      }
+      if (!contained) centres.push(q);
+    }
+  }
+  return centres;
+}

@@ -1,0 +1,261 @@
+/**
+ * The analysis job runner: a piscina pool of worker threads fed from the `analyses` table (the queue). At most
+ * TRENCHANT_JOB_CONCURRENCY jobs run at once (default: one per two cores, at least 1). Progress goes to the DB
+ * (throttled) and to SSE subscribers (every message). Cancel asks the worker to stop at its next check point and
+ * terminates the thread if it has not stopped within a grace period. A job that throws, or whose thread dies
+ * (out of memory, native crash), is marked failed with its message; the server and other jobs carry on.
+ * One runner per process, kept on globalThis (Next may load this module in several bundles).
+ */
+import { rm } from 'node:fs/promises';
+import { availableParallelism } from 'node:os';
+import { MessageChannel } from 'node:worker_threads';
+import Piscina from 'piscina';
+import { getDb } from '@/db/client';
+import type { AnalysisStatus } from '@/db/schema';
+import type { AnalysisTask, AnalysisTaskResult, WorkerMessage } from '@/lib/pipeline/worker';
+import { isTerminal, publishJobEvent } from './events';
+import { analysisRelDir, resolveData } from './paths';
+import { saveResultRows } from './save-results';
+import { workerFile } from './worker-file';
+
+/** How long a cancelled job may take to reach a check point before its thread is terminated. */
+const CANCEL_GRACE_MS = 5_000;
+/** DB progress writes at most this often per job (SSE subscribers get every message). */
+const PROGRESS_WRITE_MS = 500;
+
+export function jobConcurrency(): number {
+  const env = Number(process.env.TRENCHANT_JOB_CONCURRENCY);
+  if (Number.isInteger(env) && env >= 1) return env;
+  return Math.max(1, Math.floor(availableParallelism() / 2));
+}
+
+type RunningJob = { analysisId: string; controller: AbortController; port: MessagePort | null; cancelRequested: boolean };
+type MessagePort = import('node:worker_threads').MessagePort;
+
+type ClaimedRow = {
+  id: string;
+  settings: string;
+  model: string;
+  stored_path: string;
+  top_cell: string;
+};
+
+class JobRunner {
+  private pool: Piscina<AnalysisTask, AnalysisTaskResult> | null = null;
+  private readonly running = new Map<string, RunningJob>();
+  private pumping = false;
+  private pumpAgain = false;
+  readonly concurrency = jobConcurrency();
+
+  private async getPool(): Promise<Piscina<AnalysisTask, AnalysisTaskResult>> {
+    if (this.pool) return this.pool;
+    const filename = await workerFile();
+    const memoryMb = Number(process.env.TRENCHANT_JOB_MEMORY_MB);
+    this.pool ??= new Piscina<AnalysisTask, AnalysisTaskResult>({
+      filename,
+      minThreads: 0,
+      maxThreads: this.concurrency,
+      idleTimeout: 60_000,
+      ...(Number.isFinite(memoryMb) && memoryMb > 0 ? { resourceLimits: { maxOldGenerationSizeMb: memoryMb } } : {}),
+    });
+    // Errors not tied to a task (a thread failing to start) must not become an uncaught exception.
+    this.pool.on('error', (err: unknown) => console.error('[trenchant] analysis worker error:', err));
+    return this.pool;
+  }
+
+  /** Starts queued jobs while there is room. Safe to call any time, from anywhere. */
+  pump(): void {
+    if (this.pumping) {
+      this.pumpAgain = true;
+      return;
+    }
+    this.pumping = true;
+    try {
+      do {
+        this.pumpAgain = false;
+        while (this.running.size < this.concurrency) {
+          const row = this.claimNext();
+          if (!row) break;
+          const job: RunningJob = { analysisId: row.id, controller: new AbortController(), port: null, cancelRequested: false };
+          this.running.set(row.id, job);
+          void this.run(job, row).finally(() => {
+            this.running.delete(row.id);
+            this.pump();
+          });
+        }
+      } while (this.pumpAgain);
+    } finally {
+      this.pumping = false;
+    }
+  }
+
+  /** Marks the oldest queued job running and returns what the worker needs; null when the queue is empty. */
+  private claimNext(): ClaimedRow | null {
+    const sqlite = getDb().$client;
+    const row = sqlite
+      .prepare(
+        `UPDATE analyses SET status = 'running', stage = 'starting', progress = 0, started_at = ?, attempts = attempts + 1,
+           error_code = NULL, error_message = NULL
+         WHERE id = (SELECT id FROM analyses WHERE status = 'queued' ORDER BY created_at, id LIMIT 1)
+         RETURNING id, settings, model, revision_id`,
+      )
+      .get(Date.now()) as { id: string; settings: string; model: string; revision_id: string } | undefined;
+    if (!row) return null;
+    const rev = sqlite.prepare('SELECT stored_path, top_cell FROM layout_revisions WHERE id = ?').get(row.revision_id) as
+      | { stored_path: string; top_cell: string }
+      | undefined;
+    if (!rev) {
+      this.finish(row.id, 'failed', { code: 'missing-revision', message: 'the layout revision of this analysis no longer exists' });
+      return this.claimNext();
+    }
+    publishJobEvent({ analysisId: row.id, status: 'running', stage: 'starting', progress: 0, errorMessage: null });
+    return { id: row.id, settings: row.settings, model: row.model, stored_path: rev.stored_path, top_cell: rev.top_cell };
+  }
+
+  private async run(job: RunningJob, row: ClaimedRow): Promise<void> {
+    const outDir = resolveData(analysisRelDir(row.id));
+    let lastWrite = 0;
+    let lastStage = '';
+    const progress = (stage: string, fraction: number) => {
+      publishJobEvent({ analysisId: row.id, status: 'running', stage, progress: fraction, errorMessage: null });
+      const now = Date.now();
+      if (stage !== lastStage || now - lastWrite >= PROGRESS_WRITE_MS) {
+        lastStage = stage;
+        lastWrite = now;
+        getDb().$client.prepare("UPDATE analyses SET stage = ?, progress = ? WHERE id = ? AND status = 'running'").run(stage, fraction, row.id);
+      }
+    };
+    try {
+      await rm(outDir, { recursive: true, force: true }); // leftovers of an interrupted attempt
+      const pool = await this.getPool();
+      const channel = new MessageChannel();
+      job.port = channel.port1;
+      channel.port1.on('message', (m: WorkerMessage) => {
+        // Last 5 % is kept for saving the results in the database.
+        if (m?.type === 'progress' && m.stage !== 'done') progress(m.stage, Math.min(0.95, m.fraction * 0.95));
+      });
+      if (job.cancelRequested) channel.port1.postMessage({ type: 'cancel' });
+      const task: AnalysisTask = {
+        layoutPath: resolveData(row.stored_path),
+        settings: JSON.parse(row.settings),
+        model: JSON.parse(row.model),
+        outDir,
+        port: channel.port2,
+        ...(row.top_cell ? { topCell: row.top_cell } : {}),
+      };
+      let result: AnalysisTaskResult;
+      try {
+        result = await pool.run(task, { transferList: [channel.port2], signal: job.controller.signal });
+      } finally {
+        channel.port1.close();
+        job.port = null;
+      }
+      if (!result.ok) {
+        await rm(outDir, { recursive: true, force: true });
+        if (result.code === 'cancelled') this.finish(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled.' });
+        else this.finish(row.id, 'failed', { code: result.code, message: result.message });
+        return;
+      }
+      progress('saving', 0.95);
+      await saveResultRows(getDb(), row.id, result, (f) => progress('saving', 0.95 + 0.049 * f));
+      if (job.cancelRequested) {
+        await rm(outDir, { recursive: true, force: true });
+        this.finish(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled.' });
+        return;
+      }
+      this.finish(row.id, 'done', null, { summary: result.summary, resultDir: analysisRelDir(row.id) });
+    } catch (err) {
+      await rm(outDir, { recursive: true, force: true }).catch(() => undefined);
+      if (job.cancelRequested || job.controller.signal.aborted) {
+        this.finish(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled (the worker was stopped).' });
+      } else {
+        const message = err instanceof Error ? err.message : String(err);
+        console.error(`[trenchant] analysis ${row.id} failed in its worker:`, err);
+        this.finish(row.id, 'failed', { code: 'worker-crash', message: `The analysis stopped with an internal error: ${oneLine(message)}` });
+      }
+    }
+  }
+
+  /** Writes a terminal state (only over queued/running, so a late result never overwrites a cancel). */
+  private finish(
+    analysisId: string,
+    status: Extract<AnalysisStatus, 'done' | 'failed' | 'cancelled'>,
+    error: { code: string; message: string } | null,
+    done?: { summary: unknown; resultDir: string },
+  ): void {
+    const sqlite = getDb().$client;
+    const progress = status === 'done' ? 1 : null;
+    const res = sqlite
+      .prepare(
+        `UPDATE analyses SET status = ?, stage = ?, progress = COALESCE(?, progress), error_code = ?, error_message = ?, finished_at = ?,
+           summary = ?, result_dir = ? WHERE id = ? AND status IN ('queued', 'running')`,
+      )
+      .run(status, status, progress, error?.code ?? null, error?.message ?? null, Date.now(), done ? JSON.stringify(done.summary) : null, done?.resultDir ?? null, analysisId);
+    if (res.changes === 0) return;
+    if (status !== 'done') {
+      sqlite.prepare('DELETE FROM analysis_flags WHERE analysis_id = ?').run(analysisId);
+      sqlite.prepare('DELETE FROM analysis_features WHERE analysis_id = ?').run(analysisId);
+      sqlite.prepare('DELETE FROM analysis_maps WHERE analysis_id = ?').run(analysisId);
+    }
+    const row = sqlite.prepare('SELECT progress FROM analyses WHERE id = ?').get(analysisId) as { progress: number } | undefined;
+    publishJobEvent({ analysisId, status, stage: status, progress: row?.progress ?? 0, errorMessage: error?.message ?? null });
+  }
+
+  /**
+   * Cancels a queued or running job. Returns the status afterwards ('cancelled', or 'running' while a running
+   * job is stopping), or null when the job had already finished.
+   */
+  cancel(analysisId: string): AnalysisStatus | null {
+    const sqlite = getDb().$client;
+    const job = this.running.get(analysisId);
+    if (job) {
+      if (!job.cancelRequested) {
+        job.cancelRequested = true;
+        job.port?.postMessage({ type: 'cancel' });
+        // The worker stops at its next check point; if it does not, terminate its thread.
+        setTimeout(() => {
+          if (this.running.get(analysisId) === job) job.controller.abort();
+        }, CANCEL_GRACE_MS).unref();
+      }
+      return 'running';
+    }
+    const row = sqlite.prepare('SELECT status FROM analyses WHERE id = ?').get(analysisId) as { status: AnalysisStatus } | undefined;
+    if (!row) return null;
+    if (isTerminal(row.status)) return null;
+    // Queued (or marked running by a previous process that died): nothing runs it here, so cancel in place.
+    this.finish(analysisId, 'cancelled', { code: 'cancelled', message: 'Cancelled before it started.' });
+    return 'cancelled';
+  }
+
+  isRunning(analysisId: string): boolean {
+    return this.running.has(analysisId);
+  }
+
+  /** Start-up: jobs left running by a previous process go back to the queue; then start the queue. */
+  requeueInterrupted(): number {
+    const sqlite = getDb().$client;
+    const ids = [...this.running.keys()];
+    const res = sqlite
+      .prepare(
+        `UPDATE analyses SET status = 'queued', stage = 'requeued', progress = 0 WHERE status = 'running'${ids.length ? ` AND id NOT IN (${ids.map(() => '?').join(',')})` : ''}`,
+      )
+      .run(...ids);
+    return res.changes;
+  }
+
+  async close(): Promise<void> {
+    await this.pool?.destroy();
+    this.pool = null;
+  }
+}
+
+function oneLine(s: string): string {
+  return s.replace(/\s*\n\s*/g, ' ').slice(0, 500);
+}
+
+const holder = globalThis as typeof globalThis & { __trenchantJobRunner?: JobRunner };
+
+export function jobRunner(): JobRunner {
+  holder.__trenchantJobRunner ??= new JobRunner();
+  return holder.__trenchantJobRunner;
+}

@@ -1,0 +1,66 @@
+/**
+ * Locates the compiled analysis worker (scripts/build-worker.mjs → .next/trenchant/analysis-worker.mjs) and builds
+ * it when it is missing or older than its TypeScript sources. The build runs as a child process (esbuild), so
+ * nothing here depends on how Next bundled the server. TRENCHANT_WORKER_FILE overrides the path (no build then).
+ */
+import { execFile } from 'node:child_process';
+import { existsSync, readFileSync, statSync } from 'node:fs';
+import path from 'node:path';
+
+const OUT_REL = path.join('.next', 'trenchant', 'analysis-worker.mjs');
+const ENTRY_REL = path.join('lib', 'pipeline', 'worker.ts');
+
+function projectRoot(): string {
+  return process.env.TRENCHANT_ROOT ?? process.cwd();
+}
+
+/** Null when the compiled worker is up to date, else why it needs building. */
+export function workerStaleReason(root = projectRoot()): string | null {
+  const out = path.join(root, OUT_REL);
+  const manifest = `${out}.inputs.json`;
+  if (!existsSync(out) || !existsSync(manifest)) return 'not built yet';
+  if (!existsSync(path.join(root, ENTRY_REL))) return null; // deployed without sources: use what is there
+  const builtAt = statSync(out).mtimeMs;
+  let inputs: unknown;
+  try {
+    inputs = JSON.parse(readFileSync(manifest, 'utf8'));
+  } catch {
+    return 'its input list is unreadable';
+  }
+  if (!Array.isArray(inputs)) return 'its input list is unreadable';
+  for (const rel of inputs) {
+    const p = path.join(root, String(rel));
+    if (!existsSync(p)) return `${String(rel)} was removed`;
+    if (statSync(p).mtimeMs > builtAt) return `${String(rel)} changed`;
+  }
+  return null;
+}
+
+function runBuild(root: string): Promise<void> {
+  return new Promise((resolve, reject) => {
+    execFile(process.execPath, [path.join(root, 'scripts', 'build-worker.mjs')], { cwd: root, timeout: 120_000 }, (err, _stdout, stderr) => {
+      if (err) reject(new Error(`could not compile the analysis worker: ${stderr.trim().split('\n').slice(-3).join(' ') || err.message}`));
+      else resolve();
+    });
+  });
+}
+
+const holder = globalThis as typeof globalThis & { __trenchantWorkerFile?: Promise<string> };
+
+/** Absolute path of an up-to-date worker file (built once per process when needed). */
+export function workerFile(): Promise<string> {
+  const override = process.env.TRENCHANT_WORKER_FILE;
+  if (override) return Promise.resolve(path.resolve(override));
+  holder.__trenchantWorkerFile ??= (async () => {
+    const root = projectRoot();
+    const reason = workerStaleReason(root);
+    if (reason) {
+      console.log(`[trenchant] compiling the analysis worker (${reason})`);
+      await runBuild(root);
+    }
+    return path.join(root, OUT_REL);
+  })();
+  // A failed build is retried on the next call.
+  holder.__trenchantWorkerFile.catch(() => (holder.__trenchantWorkerFile = undefined));
+  return holder.__trenchantWorkerFile;
+}

@@ -1,0 +1,266 @@
+/**
+ * The product's main job, as one pure function over in-memory data: flattened layout + settings + process model →
+ * summary, per-feature results, flags and result maps. No Node, DB or server imports: the worker, the check
+ * command and tests all call this.
+ *
+ * Stages, always in this order (ANALYSIS_STAGES): coverage → window-density → effective-density → features →
+ * local-width → prediction → maps → flags → summary. `onProgress(stage, fraction)` is called when each stage starts,
+ * a few times inside the long ones, and once more with ('done', 1); `fraction` is the overall progress 0..1 and
+ * never decreases. `signal` and `isCancelled` are checked between stages and every few thousand features; an abort
+ * throws AnalysisAbortedError (name 'AbortError').
+ */
+import { effectiveDensity, featuresFromRegions, localWidthFromCoverage, openRegions, rasterizeOpenRegions, windowDensity, type Grid, type WindowDensity } from '../geometry';
+import type { ProcessModel } from '../etch';
+import type { FlatLayout } from '../layout/types';
+import { AnalysisAbortedError } from './errors';
+import { dieFrame, layerName, selectEtchLayers } from './etch-layers';
+import { densityGradientFlags, FlagCollector, featureFlags, windowDensityFlags, type Flag, type WindowSetInput } from './flags';
+import type { GridMap } from './grid-file';
+import { predictFeatures, type FeatureResult } from './predict-features';
+import { featureRisk, paintFeatureMaps } from './result-maps';
+import { resolveKernel, resolveLimits, type AnalysisSettings } from './settings';
+import { buildSummary, type AnalysisSummary } from './summary';
+
+export const ANALYSIS_STAGES = [
+  { stage: 'coverage', weight: 0.15 },
+  { stage: 'window-density', weight: 0.1 },
+  { stage: 'effective-density', weight: 0.15 },
+  { stage: 'features', weight: 0.15 },
+  { stage: 'local-width', weight: 0.1 },
+  { stage: 'prediction', weight: 0.2 },
+  { stage: 'maps', weight: 0.05 },
+  { stage: 'flags', weight: 0.05 },
+  { stage: 'summary', weight: 0.05 },
+] as const;
+export type AnalysisStage = (typeof ANALYSIS_STAGES)[number]['stage'] | 'done';
+
+export interface AnalysisHooks {
+  onProgress?(stage: AnalysisStage, fraction: number): void;
+  signal?: AbortSignal;
+  /**
+   * Polled at the same check points as `signal`. For worker threads: runAnalysis is synchronous, so messages and
+   * AbortSignal events cannot arrive while it runs; a flag in shared memory (Atomics.load) can.
+   */
+  isCancelled?(): boolean;
+}
+
+export interface AnalysisResult {
+  summary: AnalysisSummary;
+  /** One entry per extracted opening, in feature id order. */
+  features: FeatureResult[];
+  /** Worst first, at most settings.maxListedFlags (summary.flags counts all). */
+  flags: Flag[];
+  /** coverage, window-density (one per window set), effective-density, local-width, aspect-ratio, predicted-depth, risk. */
+  maps: GridMap[];
+}
+
+/** Tracks stage timing and overall progress. */
+class StageClock {
+  private startFraction = 0;
+  private current: { stage: AnalysisStage; weight: number; t0: number } | null = null;
+  readonly timingsMs: Record<string, number> = {};
+  constructor(private readonly hooks: AnalysisHooks) {}
+
+  begin(stage: (typeof ANALYSIS_STAGES)[number]['stage']): void {
+    this.end();
+    this.checkAbort(stage);
+    const weight = ANALYSIS_STAGES.find((s) => s.stage === stage)?.weight ?? 0;
+    this.current = { stage, weight, t0: performance.now() };
+    this.hooks.onProgress?.(stage, this.startFraction);
+  }
+
+  /** Progress inside the current stage (0..1); also an abort check point. */
+  within(part: number): void {
+    if (!this.current) return;
+    this.checkAbort(this.current.stage);
+    this.hooks.onProgress?.(this.current.stage, Math.min(1, this.startFraction + this.current.weight * Math.min(1, Math.max(0, part))));
+  }
+
+  private end(): void {
+    if (!this.current) return;
+    this.timingsMs[this.current.stage] = Math.round((performance.now() - this.current.t0) * 10) / 10;
+    this.startFraction = Math.min(1, this.startFraction + this.current.weight);
+    this.current = null;
+  }
+
+  finish(): void {
+    this.end();
+    this.hooks.onProgress?.('done', 1);
+  }
+
+  checkAbort(stage: string): void {
+    if (this.hooks.signal?.aborted || this.hooks.isCancelled?.()) throw new AnalysisAbortedError(stage);
+  }
+}
+
+export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, model: ProcessModel, hooks: AnalysisHooks = {}): AnalysisResult {
+  const clock = new StageClock(hooks);
+  const limits = resolveLimits(settings, model);
+  const kernel = resolveKernel(settings, model);
+  // Predictions use the analysis's target and tolerance, so margins and reachesTarget agree with the flags. The
+  // model's maxAspectRatio stays as is: it is where the process physically stops, not a flag limit.
+  const predictionModel: ProcessModel = { ...model, etch: { ...model.etch, targetDepthUm: limits.targetDepthUm, toleranceUm: limits.toleranceUm } };
+  const set = selectEtchLayers(layout, settings.etchLayers);
+  const frame = dieFrame(layout, settings);
+  const { grid } = frame;
+  const polarity = settings.polarity;
+
+  clock.begin('coverage');
+  const regionDbu = layout.bboxDbu ?? undefined;
+  // One exact union of the etch layers serves coverage and features (it is the expensive part on big layouts).
+  const regions = openRegions(set, layout.dbuUm, { polarity, regionDbu });
+  const coverage = Float32Array.from(rasterizeOpenRegions(regions, grid));
+  const globalDensity = dieDensity(coverage, grid, frame.dieBboxUm);
+
+  clock.begin('window-density');
+  const regionCoverage = dieRegionCoverage(grid, frame.dieBboxUm);
+  const windows: WindowDensity[] = settings.densityWindows.map((w, n) => {
+    clock.within(n / settings.densityWindows.length);
+    return windowDensity(coverage, grid, {
+      windowUm: w.windowUm,
+      stepUm: w.stepUm,
+      // No origin given: the geometry engine uses the grid's lower-left corner, which is the die's.
+      ...(settings.windowOriginUm ? { originUm: settings.windowOriginUm } : {}),
+      edge: settings.windowEdge,
+      ...(regionCoverage ? { regionCoverage } : {}),
+      regionName: 'the die extent (layout bounding box)',
+    });
+  });
+
+  clock.begin('effective-density');
+  const effective = effectiveDensity(coverage, grid, { lengthUm: kernel.lengthUm, kernel: kernel.kind, outside: kernel.outside });
+
+  clock.begin('features');
+  const features = featuresFromRegions(regions, { polarity, regionDbu });
+
+  clock.begin('local-width');
+  const localWidth = localWidthFromCoverage(coverage, grid);
+
+  clock.begin('prediction');
+  const results = predictFeatures(features, effective, grid, predictionModel, {
+    exposedFraction: globalDensity,
+    onTick: (done, total) => clock.within(total > 0 ? done / total : 1),
+  });
+
+  clock.begin('maps');
+  const risks = new Float64Array(results.length);
+  for (let k = 0; k < results.length; k++) risks[k] = featureRisk(results[k] as FeatureResult, limits);
+  const painted = paintFeatureMaps(results, risks, coverage, grid);
+
+  clock.begin('flags');
+  const collector = new FlagCollector(settings.maxListedFlags);
+  const sev = settings.severities;
+  for (const w of windows) {
+    const input: WindowSetInput = { ...w, dieBboxUm: frame.dieBboxUm };
+    collector.add(windowDensityFlags(input, limits, sev));
+    collector.add(densityGradientFlags(input, limits.maxGradient, sev));
+  }
+  for (let k = 0; k < results.length; k++) {
+    if (k % 4096 === 0) clock.within(k / Math.max(1, results.length));
+    const r = results[k] as FeatureResult;
+    collector.add(
+      featureFlags(
+        { featureId: r.id, shape: r.shape, modelKind: r.modelKind, bboxUm: r.bboxUm, centroidUm: r.centroidUm, widthUm: r.widthUm, depthUm: r.depthUm, overEtchUm: r.overEtchUm, excursions: r.excursions },
+        limits,
+        sev,
+      ),
+    );
+  }
+  const flags = collector.list();
+
+  clock.begin('summary');
+  const maps = buildMaps(grid, coverage, windows, effective, localWidth, painted, { kernelLengthUm: kernel.lengthUm, kernel: kernel.kind, modelName: model.name, modelVersion: model.version });
+  const summary = buildSummary({
+    layout,
+    etchLayerNames: settings.etchLayers.map(layerName),
+    polygonCount: set.count,
+    frame,
+    settings,
+    limits,
+    model,
+    globalDensity,
+    windows,
+    effective,
+    kernel,
+    results,
+    flagCounts: collector.counts,
+    flagTotal: collector.total,
+    flagsListed: flags.length,
+    timingsMs: clock.timingsMs,
+  });
+  clock.finish();
+  summary.timingsMs = { ...clock.timingsMs };
+  return { summary, features: results, flags, maps };
+}
+
+/**
+ * Fraction of each pixel inside the die, or null when the grid fits the die exactly (then the grid extent is the
+ * die and the geometry engine's default denominator is right).
+ */
+export function dieRegionCoverage(grid: Grid, dieBboxUm: [number, number, number, number]): Float32Array | null {
+  const { x0Um, y0Um, pixelUm: p, nx, ny } = grid;
+  const [dx0, dy0, dx1, dy1] = dieBboxUm;
+  const tol = 1e-9 * p;
+  if (x0Um + nx * p <= dx1 + tol && y0Um + ny * p <= dy1 + tol) return null;
+  const inside = (lo: number, a: number, b: number) => Math.max(0, Math.min(lo + p, b) - Math.max(lo, a)) / p;
+  const out = new Float32Array(nx * ny);
+  for (let j = 0; j < ny; j++) {
+    const fy = inside(y0Um + j * p, dy0, dy1);
+    for (let i = 0; i < nx; i++) out[j * nx + i] = fy * inside(x0Um + i * p, dx0, dx1);
+  }
+  return out;
+}
+
+/**
+ * Open area inside the die / die area. Each pixel counts with the part of it inside the die (the last column and row
+ * may reach past the die's top/right edge), so the grid's overhang never changes the denominator.
+ */
+export function dieDensity(coverage: Float32Array, grid: Grid, dieBboxUm: [number, number, number, number]): number {
+  const { x0Um, y0Um, pixelUm: p, nx, ny } = grid;
+  const [dx0, dy0, dx1, dy1] = dieBboxUm;
+  const inside = (lo: number, a: number, b: number) => Math.max(0, Math.min(lo + p, b) - Math.max(lo, a)) / p;
+  let open = 0;
+  for (let j = 0; j < ny; j++) {
+    const fy = inside(y0Um + j * p, dy0, dy1);
+    if (fy === 0) continue;
+    let row = 0;
+    for (let i = 0; i < nx; i++) row += (coverage[j * nx + i] as number) * inside(x0Um + i * p, dx0, dx1);
+    open += row * fy;
+  }
+  const dieArea = (dx1 - dx0) * (dy1 - dy0);
+  return Math.min(1, (open * p * p) / dieArea);
+}
+
+function windowGeometry(w: WindowDensity): Grid {
+  // One pixel per window, centred on the window's centre: pixel (i, j) is centred at origin + i·step + window/2.
+  return { x0Um: w.originUm[0] + w.windowUm / 2 - w.stepUm / 2, y0Um: w.originUm[1] + w.windowUm / 2 - w.stepUm / 2, pixelUm: w.stepUm, nx: w.nx, ny: w.ny };
+}
+
+function buildMaps(
+  grid: Grid,
+  coverage: Float32Array,
+  windows: WindowDensity[],
+  effective: Float32Array,
+  localWidth: Float32Array,
+  painted: ReturnType<typeof paintFeatureMaps>,
+  meta: { kernelLengthUm: number; kernel: string; modelName: unknown; modelVersion: unknown },
+): GridMap[] {
+  const model = { model: meta.modelName ?? null, modelVersion: meta.modelVersion ?? null };
+  return [
+    { kind: 'coverage', unit: 'fraction', grid, meta: {}, values: coverage },
+    ...windows.map(
+      (w): GridMap => ({
+        kind: 'window-density',
+        unit: 'fraction',
+        grid: windowGeometry(w),
+        meta: { windowUm: w.windowUm, stepUm: w.stepUm, originUm: w.originUm, edge: w.edge, pixelIsWindowCentre: true, nan: 'no window area' },
+        values: Float32Array.from(w.values),
+      }),
+    ),
+    { kind: 'effective-density', unit: 'fraction', grid, meta: { kernel: meta.kernel, lengthUm: meta.kernelLengthUm }, values: effective },
+    { kind: 'local-width', unit: 'um', grid, meta: { zero: 'outside openings' }, values: localWidth },
+    { kind: 'aspect-ratio', unit: 'ratio', grid, meta: { ...model, nan: 'no opening', definition: 'predicted depth / width' }, values: painted.aspectRatio },
+    { kind: 'predicted-depth', unit: 'um', grid, meta: { ...model, nan: 'no opening' }, values: painted.predictedDepth },
+    { kind: 'risk', unit: 'score', grid, meta: { ...model, nan: 'no opening', scale: '1 = at a limit' }, values: painted.risk },
+  ];
+}

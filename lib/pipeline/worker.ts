@@ -1,0 +1,138 @@
+/**
+ * Worker-thread entry for one analysis, shaped for piscina: `pool.run(task, { transferList: [port] })` with the
+ * default export as the task function. Thin on purpose: read the layout, validate, runAnalysis, write the maps.
+ *
+ * Task (AnalysisTask): { layoutPath, settings, model, outDir, port?, cancelFlag?, topCell? } — settings and model
+ * are raw JSON and are validated here (so a stored analysis replays exactly as stored).
+ *
+ * Messages worker → parent on `port` (WorkerMessage):
+ *   { type: 'progress', stage, fraction }   stage in ANALYSIS_STAGES order then 'reading' first and 'writing' /
+ *                                           'done' last; fraction = overall 0..1, non-decreasing; throttled to
+ *                                           one per 100 ms plus every stage change.
+ * Cancelling (the task then resolves { ok: false, code: 'cancelled' }):
+ *   - cancelFlag: an Int32Array over a SharedArrayBuffer (length ≥ 1); the parent sets it with
+ *     Atomics.store(flag, 0, 1). Seen at every check point, also in the middle of the (synchronous) analysis.
+ *     This is the one to use for a Cancel button.
+ *   - { type: 'cancel' } posted on `port`: seen only while the worker awaits I/O (reading the layout, writing
+ *     maps), because the analysis itself blocks the worker's event loop.
+ *   - piscina's own `signal` option: terminates the thread at once (no clean result).
+ *
+ * Result (AnalysisTaskResult): expected failures resolve `{ ok: false, code, message, issues? }` so the job runner
+ * can store them without parsing messages; anything else (a bug) rejects and the runner marks the job failed.
+ * Files: one TRGRID1 file per map in outDir (names from map-files.ts), written atomically; a failed task leaves only
+ * complete files, which the runner may delete.
+ */
+import { mkdir } from 'node:fs/promises';
+import { join } from 'node:path';
+import type { MessagePort } from 'node:worker_threads';
+import { parseProcessModel } from '../etch';
+import { LayoutReadError } from '../layout/errors';
+import { readLayoutFile } from '../layout/read';
+import { AnalysisInputError, isAbortError } from './errors';
+import type { Flag } from './flags';
+import type { GridMap, GridUnit } from './grid-file';
+import { writeGridFile } from './grid-file-node';
+import { mapFileName } from './map-files';
+import type { FeatureResult } from './predict-features';
+import { runAnalysis, type AnalysisStage } from './run-analysis';
+import { parseAnalysisSettings, type FieldIssue } from './settings';
+import type { AnalysisSummary } from './summary';
+
+export interface AnalysisTask {
+  layoutPath: string;
+  settings: unknown;
+  model: unknown;
+  outDir: string;
+  /** Transferred MessagePort for progress and cancel (see module doc). */
+  port?: MessagePort;
+  /** Shared cancel flag: non-zero element 0 = cancel (see module doc). */
+  cancelFlag?: Int32Array;
+  topCell?: string;
+}
+
+export type WorkerStage = 'reading' | AnalysisStage | 'writing';
+export type WorkerMessage = { type: 'progress'; stage: WorkerStage; fraction: number };
+export type ParentMessage = { type: 'cancel' };
+
+export interface MapFile {
+  kind: GridMap['kind'];
+  unit: GridUnit;
+  /** File name inside outDir. */
+  file: string;
+  grid: GridMap['grid'];
+  meta: Record<string, unknown>;
+  bytes: number;
+}
+
+export type AnalysisTaskResult =
+  | { ok: true; summary: AnalysisSummary; features: FeatureResult[]; flags: Flag[]; maps: MapFile[] }
+  | { ok: false; code: 'cancelled' | 'bad-settings' | 'bad-model' | 'layout-unreadable' | 'bad-input'; message: string; issues?: FieldIssue[] };
+
+/** Overall fraction given to reading the layout and to writing maps; the analysis gets the rest. */
+const READ_SHARE = 0.15;
+const WRITE_SHARE = 0.05;
+
+function progressPoster(port: MessagePort | undefined) {
+  let lastStage = '';
+  let lastAt = 0;
+  let lastFraction = 0;
+  return (stage: WorkerStage, fraction: number) => {
+    if (!port) return;
+    const now = Date.now();
+    fraction = Math.max(lastFraction, Math.min(1, fraction));
+    if (stage === lastStage && now - lastAt < 100 && fraction < 1) return;
+    lastStage = stage;
+    lastAt = now;
+    lastFraction = fraction;
+    const msg: WorkerMessage = { type: 'progress', stage, fraction };
+    port.postMessage(msg);
+  };
+}
+
+export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskResult> {
+  const controller = new AbortController();
+  const onMessage = (m: ParentMessage) => {
+    if (m && m.type === 'cancel') controller.abort();
+  };
+  task.port?.on('message', onMessage);
+  const post = progressPoster(task.port);
+  try {
+    const settings = parseAnalysisSettings(task.settings);
+    if (!settings.ok) return { ok: false, code: 'bad-settings', message: `settings: ${settings.issues.map((i) => `${i.path || '(root)'}: ${i.message}`).join('; ')}`, issues: settings.issues };
+    const model = parseProcessModel(task.model);
+    if (!model.ok) return { ok: false, code: 'bad-model', message: `process model: ${model.issues.map((i) => `${i.path}: ${i.message}`).join('; ')}`, issues: model.issues };
+
+    post('reading', 0);
+    const layout = await readLayoutFile(task.layoutPath, { signal: controller.signal, ...(task.topCell ? { topCell: task.topCell } : {}) });
+    const flag = task.cancelFlag;
+    const result = runAnalysis(layout, settings.settings, model.model, {
+      signal: controller.signal,
+      ...(flag ? { isCancelled: () => Atomics.load(flag, 0) !== 0 } : {}),
+      onProgress: (stage, f) => post(stage === 'done' ? 'writing' : stage, READ_SHARE + (1 - READ_SHARE - WRITE_SHARE) * f),
+    });
+
+    await mkdir(task.outDir, { recursive: true });
+    const maps: MapFile[] = [];
+    for (const [n, map] of result.maps.entries()) {
+      if (controller.signal.aborted || (task.cancelFlag && Atomics.load(task.cancelFlag, 0) !== 0)) return cancelled();
+      const file = mapFileName(map);
+      const bytes = await writeGridFile(join(task.outDir, file), map);
+      maps.push({ kind: map.kind, unit: map.unit, file, grid: map.grid, meta: map.meta, bytes });
+      post('writing', 1 - WRITE_SHARE + (WRITE_SHARE * (n + 1)) / result.maps.length);
+    }
+    post('done', 1);
+    return { ok: true, summary: result.summary, features: result.features, flags: result.flags, maps };
+  } catch (err) {
+    if (isAbortError(err) || (err instanceof LayoutReadError && err.code === 'aborted')) return cancelled();
+    if (err instanceof LayoutReadError) return { ok: false, code: 'layout-unreadable', message: err.message };
+    if (err instanceof AnalysisInputError) return { ok: false, code: 'bad-input', message: err.message };
+    throw err;
+  } finally {
+    task.port?.off('message', onMessage);
+    task.port?.close();
+  }
+}
+
+function cancelled(): AnalysisTaskResult {
+  return { ok: false, code: 'cancelled', message: 'analysis cancelled' };
+}
