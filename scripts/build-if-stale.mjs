@@ -24,6 +24,11 @@ function newestMtime(p) {
   return newest;
 }
 
+/** Newest modification time (ms) over SOURCE_PATHS. */
+export function newestSourceMtime(root) {
+  return Math.max(...SOURCE_PATHS.map((rel) => newestMtime(path.join(root, rel))));
+}
+
 /** Why a build is needed, or null when .next/BUILD_ID is newer than every source. */
 export function buildStaleReason(root) {
   const buildId = path.join(root, '.next', 'BUILD_ID');
@@ -41,11 +46,24 @@ function sleep(ms) {
 
 /**
  * Runs `next build` in `root` if needed. Returns { built: boolean, reason }. Throws with the build's last output
- * lines when the build fails. `log` receives progress lines.
+ * lines when the build fails. `log` receives progress lines. With `rememberFailure`, a failure of the same sources
+ * in the last 15 minutes is reported again without rebuilding (for parallel test files).
  */
-export function buildIfStale(root, { log = (l) => console.log(l), stdio = 'inherit' } = {}) {
+export function buildIfStale(root, { log = (l) => console.log(l), stdio = 'inherit', rememberFailure = false } = {}) {
   if (!buildStaleReason(root)) return { built: false, reason: null };
-  const lock = path.join(tmpdir(), `trenchant-build-${createHash('sha1').update(path.resolve(root)).digest('hex').slice(0, 12)}.lock`);
+  const key = createHash('sha1').update(path.resolve(root)).digest('hex').slice(0, 12);
+  const lock = path.join(tmpdir(), `trenchant-build-${key}.lock`);
+  // A failed build is remembered for the same sources, so parallel test files report it once instead of each
+  // spending a minute rebuilding the same broken tree.
+  const failedMarker = path.join(tmpdir(), `trenchant-build-${key}.failed.json`);
+  const failedBefore = () => {
+    try {
+      const f = JSON.parse(readFileSync(failedMarker, 'utf8'));
+      return rememberFailure && f.sources === newestSourceMtime(root) && f.at > Date.now() - 15 * 60_000 ? f.message : null;
+    } catch {
+      return null;
+    }
+  };
   const deadline = Date.now() + 10 * 60_000;
   for (;;) {
     try {
@@ -66,6 +84,9 @@ export function buildIfStale(root, { log = (l) => console.log(l), stdio = 'inher
   try {
     const reason = buildStaleReason(root);
     if (!reason) return { built: false, reason: null };
+    const previous = failedBefore();
+    if (previous) throw new Error(`${previous}\n(the same sources failed to build before; change a file to retry)`);
+    const sources = newestSourceMtime(root);
     log(`[trenchant] building the app (${reason}) ...`);
     const run = spawnSync(process.execPath, [path.join(root, 'node_modules', 'next', 'dist', 'bin', 'next'), 'build'], {
       cwd: root,
@@ -76,8 +97,11 @@ export function buildIfStale(root, { log = (l) => console.log(l), stdio = 'inher
     });
     if (run.status !== 0) {
       const tail = `${run.stdout ?? ''}\n${run.stderr ?? ''}`.trim().split('\n').slice(-40).join('\n');
-      throw new Error(`next build failed (exit ${run.status})${tail ? `:\n${tail}` : ''}`);
+      const message = `next build failed (exit ${run.status})${tail ? `:\n${tail}` : ''}`;
+      writeFileSync(failedMarker, JSON.stringify({ sources, at: Date.now(), message }));
+      throw new Error(message);
     }
+    rmSync(failedMarker, { force: true });
     return { built: true, reason };
   } finally {
     rmSync(lock, { recursive: true, force: true });

@@ -94,7 +94,7 @@ function summaryText(file: string, s: AnalysisSummary): string {
   );
   for (const w of s.windows) {
     out.push(
-      `${`windows ${num(w.windowUm)}/${num(w.stepUm)} µm`.padEnd(17)}min ${pct(w.min)} (window from (${num(w.minAtUm[0])}, ${num(w.minAtUm[1])})), max ${pct(w.max)} (window from (${num(w.maxAtUm[0])}, ${num(w.maxAtUm[1])})), largest neighbour difference ${pct(w.maxGradient)}`,
+      `${`windows ${num(w.windowUm)}/${num(w.stepUm)} µm`.padEnd(16)} min ${pct(w.min)} (window from (${num(w.minAtUm[0])}, ${num(w.minAtUm[1])})), max ${pct(w.max)} (window from (${num(w.maxAtUm[0])}, ${num(w.maxAtUm[1])})), largest neighbour difference ${pct(w.maxGradient)}`,
     );
   }
   out.push(`effective dens.  ${pct(s.effectiveDensity.min)} to ${pct(s.effectiveDensity.max)} (${s.effectiveDensity.kernel}, L = ${num(s.effectiveDensity.lengthUm)} µm)`);

@@ -14,6 +14,8 @@
 import { levenbergMarquardt } from 'ml-levenberg-marquardt';
 import type { CalibrationRow } from './calibration-csv';
 import { predictDepthUm } from './predict';
+import { createArdeEvaluators, type ArdeEvaluator } from './rate';
+import type { FeatureKind } from './transmission';
 import { processModelSchema, type ProcessModel } from './process-model';
 
 export type FitParameter = 'openRateUmPerMin' | 'reactionProbability' | 'loadingCoefficient';
@@ -85,8 +87,14 @@ function withParameters(base: ProcessModel, fit: FitParameter[], values: number[
 // Integrator tolerance for fitting: far below measurement noise, loose enough to keep LM fast.
 const FIT_REL_TOL = 1e-8;
 
-function predictRow(model: ProcessModel, row: CalibrationRow): number {
-  return predictDepthUm(model, { widthUm: row.widthUm, kind: row.kind, effectiveDensity: row.density }, row.timeMin, FIT_REL_TOL);
+function predictRow(model: ProcessModel, row: CalibrationRow, arde?: Record<FeatureKind, ArdeEvaluator>): number {
+  return predictDepthUm(model, { widthUm: row.widthUm, kind: row.kind, effectiveDensity: row.density }, row.timeMin, { relTol: FIT_REL_TOL, arde });
+}
+
+/** Row predictor for one parameter set, sharing ARDE evaluators across rows. */
+function rowPredictor(model: ProcessModel): (row: CalibrationRow) => number {
+  const arde = createArdeEvaluators(model, model.etch.maxAspectRatio);
+  return (row) => predictRow(model, row, arde);
 }
 
 /** What data is missing for the requested fit, or null when the fit is determined. */
@@ -160,10 +168,10 @@ export function fitCalibration(rows: CalibrationRow[], options: CalibrationOptio
   // The library's finite differences may step past a bound: clamp before evaluating.
   const clamp = (v: number[]) => v.map((x, i) => Math.min(Math.max(x, BOUNDS[fit[i] ?? 'openRateUmPerMin'][0]), BOUNDS[fit[i] ?? 'openRateUmPerMin'][1]));
   const model = (q: number[]) => {
-    const m = withParameters(base, fit, clamp(unscale(q)));
+    const predict = rowPredictor(withParameters(base, fit, clamp(unscale(q))));
     return (x: number) => {
       const row = rows[x];
-      return row ? predictRow(m, row) : NaN;
+      return row ? predict(row) : NaN;
     };
   };
   // The library always runs maxIterations and keeps the best point; run it in chunks and stop once a chunk no
@@ -198,8 +206,8 @@ export function fitCalibration(rows: CalibrationRow[], options: CalibrationOptio
   }
   const result = { parameterValues: q, iterations };
   const values = clamp(unscale(result.parameterValues));
-  const best = withParameters(base, fit, values);
-  const predicted = rows.map((r) => predictRow(best, r));
+  const best = rowPredictor(withParameters(base, fit, values));
+  const predicted = rows.map((r) => best(r));
   const residuals = rows.map((r, i) => ({
     line: r.line,
     widthUm: r.widthUm,
@@ -230,11 +238,11 @@ export function fitCalibration(rows: CalibrationRow[], options: CalibrationOptio
     const [lo, hi] = BOUNDS[name];
     const up = Math.min(v + step, hi);
     const down = Math.max(v - step, lo);
-    const mUp = withParameters(base, fit, values.map((x, k) => (k === j ? up : x)));
-    const mDown = withParameters(base, fit, values.map((x, k) => (k === j ? down : x)));
+    const pUp = rowPredictor(withParameters(base, fit, values.map((x, k) => (k === j ? up : x))));
+    const pDown = rowPredictor(withParameters(base, fit, values.map((x, k) => (k === j ? down : x))));
     rows.forEach((r, i) => {
       const row = jac[i];
-      if (row) row[j] = (predictRow(mUp, r) - predictRow(mDown, r)) / (up - down);
+      if (row) row[j] = (pUp(r) - pDown(r)) / (up - down);
     });
   });
   const jtj = fit.map((_, a) => fit.map((__, b) => jac.reduce((s, row) => s + (row[a] ?? 0) * (row[b] ?? 0), 0)));

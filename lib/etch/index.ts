@@ -13,7 +13,7 @@ export {
   type IonFluxSite,
 } from './ion-flux';
 export { globalLoadingFactor, localLoadingFactor, loadingFactor, type LoadingForm } from './loading';
-export { ardeFactor, ionEnhancedRatio, type ArdeParameters } from './rate';
+export { ardeFactor, ionEnhancedRatio, createArdeEvaluators, type ArdeParameters, type ArdeEvaluator } from './rate';
 export { depthAtTime, timeToDepthMin, timeBetweenDepthsMin, rateThresholdDepthUm, adaptiveIntegral, type RateFunction, type DepthAtTime } from './depth-integrator';
 export { runCycles, scallopDepthUm, type CyclicRun, type CycleSteps } from './cyclic';
 export {
@@ -24,7 +24,7 @@ export {
   type ProcessModelInput,
   type ModelIssue,
 } from './process-model';
-export { predictFeature, ETCH_CAUTION, type FeatureInput, type FeaturePrediction, type StopReason } from './predict';
+export { predictFeature, predictDepthUm, ETCH_CAUTION, type FeatureInput, type FeaturePrediction, type StopReason, type PredictOptions } from './predict';
 export { parseCalibrationCsv, calibrationRowsToCsv, CalibrationCsvError, type CalibrationRow } from './calibration-csv';
 export {
   fitCalibration,

@@ -7,7 +7,7 @@ import { runCycles, scallopDepthUm } from './cyclic';
 import { depthAtTime, rateThresholdDepthUm, timeToDepthMin } from './depth-integrator';
 import { loadingFactor } from './loading';
 import type { ProcessModel } from './process-model';
-import { ardeFactor } from './rate';
+import { createArdeEvaluators, type ArdeEvaluator } from './rate';
 import type { FeatureKind } from './transmission';
 
 /** The caution shown with every prediction (domain.md 5). */
@@ -84,6 +84,7 @@ function rangeWarnings(model: ProcessModel, input: FeatureInput, aspectRatio: nu
 }
 
 type Kinetics = {
+  arde: ArdeEvaluator;
   lf: number;
   loadedOpenRate: number;
   rate: (depthUm: number) => number;
@@ -95,16 +96,27 @@ type Kinetics = {
   limitIsStopLayer: boolean;
 };
 
-function kinetics(model: ProcessModel, input: FeatureInput): Kinetics {
+/** Options shared by the prediction functions. */
+export type PredictOptions = {
+  /** Relative tolerance of the depth integrator (default 1e-9). */
+  relTol?: number;
+  /** Precomputed ARDE evaluators from createArdeEvaluators(model, model.etch.maxAspectRatio); pass them when
+   *  predicting many features with one model (needed for speed with ion.fluxSite 'bottom-mean'). */
+  arde?: Record<FeatureKind, ArdeEvaluator>;
+};
+
+function kinetics(model: ProcessModel, input: FeatureInput, opts: PredictOptions): Kinetics {
   const w = input.widthUm;
+  const arde = (opts.arde ?? createArdeEvaluators(model, model.etch.maxAspectRatio))[input.kind];
   const lf = loadingFactor(model.loading, input.effectiveDensity ?? 0, input.exposedFraction ?? 0);
   const loadedOpenRate = model.openRateUmPerMin * lf;
-  const rate = (h: number) => loadedOpenRate * ardeFactor(model, input.kind, h / w);
+  const rate = (h: number) => loadedOpenRate * arde(h / w);
   const threshold = model.etch.stopRateFraction * model.openRateUmPerMin;
   const arDepth = model.etch.maxAspectRatio * w;
   const rateDepth = rateThresholdDepthUm(rate, threshold, arDepth);
   const stopDepth = model.stopLayer?.depthUm ?? Infinity;
   return {
+    arde,
     lf,
     loadedOpenRate,
     rate,
@@ -121,9 +133,10 @@ function kinetics(model: ProcessModel, input: FeatureInput): Kinetics {
  * Depth only, µm, at `timeMin` (default the model's etch time): the lean path used by calibration and by callers
  * that need many evaluations. Same physics as predictFeature; `relTol` is the integrator's relative tolerance.
  */
-export function predictDepthUm(model: ProcessModel, input: FeatureInput, timeMin = model.etch.timeMin, relTol = 1e-9): number {
+export function predictDepthUm(model: ProcessModel, input: FeatureInput, timeMin = model.etch.timeMin, opts: PredictOptions = {}): number {
   checkInput(input);
-  const k = kinetics(model, input);
+  const relTol = opts.relTol ?? 1e-9;
+  const k = kinetics(model, input, opts);
   if (model.mode === 'cyclic' && model.cyclic) {
     const cycleMin = (model.cyclic.etchStepS + model.cyclic.passivationStepS) / 60;
     return runCycles((h) => k.rate(h) * cycleMin, model.cyclic, {
@@ -140,12 +153,13 @@ export function predictDepthUm(model: ProcessModel, input: FeatureInput, timeMin
  * Predict one feature's depth at the model's etch time.
  * @example predictFeature(model, { widthUm: 5, kind: 'trench', effectiveDensity: 0.3 }).depthUm
  */
-export function predictFeature(model: ProcessModel, input: FeatureInput, relTol = 1e-9): FeaturePrediction {
+export function predictFeature(model: ProcessModel, input: FeatureInput, opts: PredictOptions = {}): FeaturePrediction {
   checkInput(input);
+  const relTol = opts.relTol ?? 1e-9;
   const w = input.widthUm;
   const T = model.etch.timeMin;
   const target = model.etch.targetDepthUm;
-  const { lf, loadedOpenRate, rate, threshold, arDepth, rateDepth, stopDepth, limit, limitIsStopLayer } = kinetics(model, input);
+  const { arde, lf, loadedOpenRate, rate, threshold, arDepth, rateDepth, stopDepth, limit, limitIsStopLayer } = kinetics(model, input, opts);
   const warnings: string[] = [];
 
   let depthUm: number;
@@ -224,8 +238,9 @@ export function predictFeature(model: ProcessModel, input: FeatureInput, relTol 
   if (!model.stopLayer && depthUm > target + model.etch.toleranceUm) {
     warnings.push(`depth exceeds target + tolerance by ${fmt(depthUm - target - model.etch.toleranceUm)} µm (timed etch, no stop layer)`);
   }
+  if (aspectRatio > 100) warnings.push(`aspect ratio ${fmt(aspectRatio)} is beyond 100, where the transmission values were validated`);
   warnings.push(...rangeWarnings(model, input, aspectRatio));
-  const ardeAtDepth = ardeFactor(model, input.kind, aspectRatio);
+  const ardeAtDepth = arde(aspectRatio);
   return {
     kind: input.kind,
     widthUm: w,

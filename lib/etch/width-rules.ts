@@ -4,6 +4,7 @@
  * with width (less ARDE), so the minimum width is found by bisection on ln(width).
  */
 import { predictFeature, ETCH_CAUTION, type FeaturePrediction } from './predict';
+import { createArdeEvaluators } from './rate';
 import type { ProcessModel } from './process-model';
 import type { FeatureKind } from './transmission';
 
@@ -71,8 +72,9 @@ function rowOf(model: ProcessModel, p: FeaturePrediction): WidthRuleRow {
 /** Build the width-rule table and the minimum width reaching the target. */
 export function widthRules(model: ProcessModel, options: WidthRulesOptions): WidthRules {
   const widths = (options.widthsUm ?? defaultWidths()).slice().sort((a, b) => a - b);
+  const arde = createArdeEvaluators(model, model.etch.maxAspectRatio);
   const at = (widthUm: number) =>
-    predictFeature(model, { widthUm, kind: options.kind, effectiveDensity: options.effectiveDensity, exposedFraction: options.exposedFraction });
+    predictFeature(model, { widthUm, kind: options.kind, effectiveDensity: options.effectiveDensity, exposedFraction: options.exposedFraction }, { arde });
   const rows = widths.map((w) => rowOf(model, at(w)));
   const need = model.etch.targetDepthUm - model.etch.toleranceUm;
   const [lo0, hi0] = options.searchRangeUm ?? [0.01, 10000];

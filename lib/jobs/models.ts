@@ -10,21 +10,21 @@ import { parseProcessModel, type ProcessModel } from '@/lib/etch';
 export type BuiltinModel = { id: string; name: string; version: string; description: string; model: ProcessModel };
 
 function modelsDir(): string {
-  return process.env.TRENCHANT_MODELS_DIR ?? path.join(process.cwd(), 'samples', 'models');
+  return process.env.TRENCHANT_MODELS_DIR ?? path.join(/*turbopackIgnore: true*/ process.cwd(), 'samples', 'models');
 }
 
 /** Built-in models, sorted by id; files that do not validate are skipped (and logged). */
 export function listBuiltinModels(): BuiltinModel[] {
   let files: string[];
   try {
-    files = readdirSync(modelsDir()).filter((f) => f.endsWith('.json')).sort();
+    files = readdirSync(/*turbopackIgnore: true*/ modelsDir()).filter((f) => f.endsWith('.json')).sort();
   } catch {
     return [];
   }
   const out: BuiltinModel[] = [];
   for (const file of files) {
     try {
-      const parsed = parseProcessModel(JSON.parse(readFileSync(path.join(modelsDir(), file), 'utf8')));
+      const parsed = parseProcessModel(JSON.parse(readFileSync(/*turbopackIgnore: true*/ path.join(/*turbopackIgnore: true*/ modelsDir(), file), 'utf8')));
       if (!parsed.ok) {
         console.error(`[trenchant] built-in model ${file} does not validate: ${parsed.issues.map((i) => `${i.path}: ${i.message}`).join('; ')}`);
         continue;

@@ -16,29 +16,29 @@ function projectRoot(): string {
 
 /** Null when the compiled worker is up to date, else why it needs building. */
 export function workerStaleReason(root = projectRoot()): string | null {
-  const out = path.join(root, OUT_REL);
+  const out = path.join(/*turbopackIgnore: true*/ root, OUT_REL);
   const manifest = `${out}.inputs.json`;
-  if (!existsSync(out) || !existsSync(manifest)) return 'not built yet';
-  if (!existsSync(path.join(root, ENTRY_REL))) return null; // deployed without sources: use what is there
-  const builtAt = statSync(out).mtimeMs;
+  if (!existsSync(/*turbopackIgnore: true*/ out) || !existsSync(/*turbopackIgnore: true*/ manifest)) return 'not built yet';
+  if (!existsSync(/*turbopackIgnore: true*/ path.join(/*turbopackIgnore: true*/ root, ENTRY_REL))) return null; // deployed without sources: use what is there
+  const builtAt = statSync(/*turbopackIgnore: true*/ out).mtimeMs;
   let inputs: unknown;
   try {
-    inputs = JSON.parse(readFileSync(manifest, 'utf8'));
+    inputs = JSON.parse(readFileSync(/*turbopackIgnore: true*/ manifest, 'utf8'));
   } catch {
     return 'its input list is unreadable';
   }
   if (!Array.isArray(inputs)) return 'its input list is unreadable';
   for (const rel of inputs) {
-    const p = path.join(root, String(rel));
-    if (!existsSync(p)) return `${String(rel)} was removed`;
-    if (statSync(p).mtimeMs > builtAt) return `${String(rel)} changed`;
+    const p = path.join(/*turbopackIgnore: true*/ root, String(rel));
+    if (!existsSync(/*turbopackIgnore: true*/ p)) return `${String(rel)} was removed`;
+    if (statSync(/*turbopackIgnore: true*/ p).mtimeMs > builtAt) return `${String(rel)} changed`;
   }
   return null;
 }
 
 function runBuild(root: string): Promise<void> {
   return new Promise((resolve, reject) => {
-    execFile(process.execPath, [path.join(root, 'scripts', 'build-worker.mjs')], { cwd: root, timeout: 120_000 }, (err, _stdout, stderr) => {
+    execFile(process.execPath, [path.join(/*turbopackIgnore: true*/ root, 'scripts', 'build-worker.mjs')], { cwd: root, timeout: 120_000 }, (err, _stdout, stderr) => {
       if (err) reject(new Error(`could not compile the analysis worker: ${stderr.trim().split('\n').slice(-3).join(' ') || err.message}`));
       else resolve();
     });
@@ -58,7 +58,7 @@ export function workerFile(): Promise<string> {
       console.log(`[trenchant] compiling the analysis worker (${reason})`);
       await runBuild(root);
     }
-    return path.join(root, OUT_REL);
+    return path.join(/*turbopackIgnore: true*/ root, OUT_REL);
   })();
   // A failed build is retried on the next call.
   holder.__trenchantWorkerFile.catch(() => (holder.__trenchantWorkerFile = undefined));

@@ -95,67 +95,69 @@ export function requiredAspectRatio(targetDepthUm: number, widthUm: number): num
   return widthUm > 0 ? targetDepthUm / widthUm : Number.POSITIVE_INFINITY;
 }
 
+/**
+ * Receives flags as they are found. `offer` gets the ranking facts first and builds the Flag (message included)
+ * only if it wants to keep it, so millions of openings that all fail do not cost millions of messages.
+ */
+export interface FlagSink {
+  offer(id: string, kind: FlagKind, severity: Severity, measured: number, limit: number, build: () => Flag): void;
+}
+
 export function featureFlags(f: FeatureCheckInput, limits: ResolvedLimits, severities?: SeverityMap): Flag[] {
   const out: Flag[] = [];
-  const where = `Opening #${f.featureId} (${f.shape}, ${fmt(f.widthUm)} µm wide)`;
-  const base = (kind: FlagKind) => ({
-    id: `${kind}:f${f.featureId}`,
-    kind,
-    severity: severityOf(kind, severities),
-    bboxUm: f.bboxUm,
-    xUm: f.centroidUm[0],
-    yUm: f.centroidUm[1],
-    featureId: f.featureId,
-  });
+  featureFlagsInto({ offer: (_id, _k, _s, _m, _l, build) => out.push(build()) }, f, limits, severities);
+  return out;
+}
+
+/** featureFlags, delivering to a sink (see FlagSink). */
+export function featureFlagsInto(sink: FlagSink, f: FeatureCheckInput, limits: ResolvedLimits, severities?: SeverityMap): void {
+  const where = () => `Opening #${f.featureId} (${f.shape}, ${fmt(f.widthUm)} µm wide)`;
+  const emit = (kind: FlagKind, measured: number, limit: number, unit: FlagUnit, message: () => string, id = `${kind}:f${f.featureId}`) => {
+    const severity = severityOf(kind, severities);
+    sink.offer(id, kind, severity, measured, limit, () => ({
+      id,
+      kind,
+      severity,
+      bboxUm: f.bboxUm,
+      xUm: f.centroidUm[0],
+      yUm: f.centroidUm[1],
+      featureId: f.featureId,
+      measured,
+      limit,
+      unit,
+      message: message(),
+    }));
+  };
 
   const minDepth = limits.targetDepthUm - limits.toleranceUm;
   if (f.depthUm < minDepth) {
-    out.push({
-      ...base('under-target-depth'),
-      measured: f.depthUm,
-      limit: minDepth,
-      unit: 'µm',
-      message:
-        `${where} is predicted to reach ${fmt(f.depthUm)} µm, short of the ${fmt(limits.targetDepthUm)} µm target by ` +
-        `${fmt(limits.targetDepthUm - f.depthUm)} µm (tolerance ${fmt(limits.toleranceUm)} µm). Narrow and densely packed openings ` +
-        `etch slower; consider widening it, or a longer etch if the wider openings can take the extra over-etch.`,
-    });
+    emit('under-target-depth', f.depthUm, minDepth, 'µm', () =>
+      `${where()} is predicted to reach ${fmt(f.depthUm)} µm, short of the ${fmt(limits.targetDepthUm)} µm target by ` +
+      `${fmt(limits.targetDepthUm - f.depthUm)} µm (tolerance ${fmt(limits.toleranceUm)} µm). Narrow and densely packed openings ` +
+      `etch slower; consider widening it, or a longer etch if the wider openings can take the extra over-etch.`,
+    );
   }
 
-  if (limits.stopOverEtchBudgetUm !== null && f.overEtchUm > limits.stopOverEtchBudgetUm) {
-    out.push({
-      ...base('over-etch-budget'),
-      measured: f.overEtchUm,
-      limit: limits.stopOverEtchBudgetUm,
-      unit: 'µm',
-      message:
-        `${where} reaches the stop layer early and etches ${fmt(f.overEtchUm)} µm into it by the end of the etch, beyond the ` +
-        `${fmt(limits.stopOverEtchBudgetUm)} µm budget. Wide openings reach the stop first; expect notching or footing there — ` +
-        `narrow it or even out the widths on this layer.`,
-    });
+  const budget = limits.stopOverEtchBudgetUm;
+  if (budget !== null && f.overEtchUm > budget) {
+    emit('over-etch-budget', f.overEtchUm, budget, 'µm', () =>
+      `${where()} reaches the stop layer early and etches ${fmt(f.overEtchUm)} µm into it by the end of the etch, beyond the ` +
+      `${fmt(budget)} µm budget. Wide openings reach the stop first; expect notching or footing there — ` +
+      `narrow it or even out the widths on this layer.`,
+    );
   }
 
   const ar = requiredAspectRatio(limits.targetDepthUm, f.widthUm);
   if (ar > limits.maxAspectRatio) {
-    out.push({
-      ...base('aspect-ratio-above-limit'),
-      measured: ar,
-      limit: limits.maxAspectRatio,
-      unit: 'ratio',
-      message:
-        `${where} needs an aspect ratio of ${fmt(ar)}:1 to reach ${fmt(limits.targetDepthUm)} µm, above the process limit of ` +
-        `${fmt(limits.maxAspectRatio)}:1. Beyond it the etch may slow sharply or stop; widen the opening.`,
-    });
+    emit('aspect-ratio-above-limit', ar, limits.maxAspectRatio, 'ratio', () =>
+      `${where()} needs an aspect ratio of ${fmt(ar)}:1 to reach ${fmt(limits.targetDepthUm)} µm, above the process limit of ` +
+      `${fmt(limits.maxAspectRatio)}:1. Beyond it the etch may slow sharply or stop; widen the opening.`,
+    );
   }
 
-  if (limits.minWidthUm !== null && f.widthUm < limits.minWidthUm) {
-    out.push({
-      ...base('width-below-minimum'),
-      measured: f.widthUm,
-      limit: limits.minWidthUm,
-      unit: 'µm',
-      message: `${where} is narrower than the ${fmt(limits.minWidthUm)} µm minimum width rule for this layer.`,
-    });
+  const minWidth = limits.minWidthUm;
+  if (minWidth !== null && f.widthUm < minWidth) {
+    emit('width-below-minimum', f.widthUm, minWidth, 'µm', () => `${where()} is narrower than the ${fmt(minWidth)} µm minimum width rule for this layer.`);
   }
 
   for (const e of f.excursions) {
@@ -163,18 +165,17 @@ export function featureFlags(f: FeatureCheckInput, limits: ResolvedLimits, sever
     const below = e.value < e.min;
     const label = e.quantity === 'aspect-ratio' ? 'aspect ratio' : e.quantity === 'density' ? 'effective density' : 'width';
     const show = (v: number) => (e.unit === 'fraction' ? pct(v) : e.unit === 'µm' ? `${fmt(v)} µm` : `${fmt(v)}:1`);
-    out.push({
-      ...base('outside-calibrated-range'),
-      id: `outside-calibrated-range:f${f.featureId}:${e.quantity}`,
-      measured: e.value,
-      limit: below ? e.min : e.max,
-      unit: e.unit,
-      message:
-        `${where}: its ${label} of ${show(e.value)} is ${below ? 'below' : 'above'} the range the model was calibrated on ` +
+    emit(
+      'outside-calibrated-range',
+      e.value,
+      below ? e.min : e.max,
+      e.unit,
+      () =>
+        `${where()}: its ${label} of ${show(e.value)} is ${below ? 'below' : 'above'} the range the model was calibrated on ` +
         `(${show(e.min)} to ${show(e.max)}), so its predicted depth is an extrapolation. Add test structures of this size to the calibration.`,
-    });
+      `outside-calibrated-range:f${f.featureId}:${e.quantity}`,
+    );
   }
-  return out;
 }
 
 // ---------------------------------------------------------------------------------------------------------------
@@ -355,14 +356,24 @@ export function densityGradientFlags(w: WindowSetInput, maxGradient: number | nu
 
 const SEVERITY_RANK: Record<Severity, number> = { error: 0, warning: 1, info: 2 };
 
-/** How far beyond its limit a flag is, relative to the limit (bigger = worse); used to rank within a severity. */
+/** How far beyond its limit a value is, relative to the limit (bigger = worse); used to rank within a severity. */
+export function exceedanceOf(measured: number, limit: number): number {
+  const scale = Math.abs(limit) > 1e-12 ? Math.abs(limit) : 1;
+  return Math.abs(measured - limit) / scale;
+}
+
 export function exceedance(f: Flag): number {
-  const scale = Math.abs(f.limit) > 1e-12 ? Math.abs(f.limit) : 1;
-  return Math.abs(f.measured - f.limit) / scale;
+  return exceedanceOf(f.measured, f.limit);
+}
+
+type RankKey = { severity: Severity; ex: number; id: string };
+
+function compareKeys(a: RankKey, b: RankKey): number {
+  return SEVERITY_RANK[a.severity] - SEVERITY_RANK[b.severity] || b.ex - a.ex || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0);
 }
 
 export function compareFlags(a: Flag, b: Flag): number {
-  return SEVERITY_RANK[a.severity] - SEVERITY_RANK[b.severity] || exceedance(b) - exceedance(a) || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0);
+  return compareKeys({ severity: a.severity, ex: exceedance(a), id: a.id }, { severity: b.severity, ex: exceedance(b), id: b.id });
 }
 
 export type FlagCounts = Record<FlagKind, Record<Severity, number>>;
@@ -373,30 +384,43 @@ export function emptyFlagCounts(): FlagCounts {
   return counts;
 }
 
-/** Keeps counts of every flag added and the `cap` worst flags (bounded memory for layouts with millions of openings). */
-export class FlagCollector {
+/**
+ * Keeps counts of every flag and the `cap` worst flags (bounded memory for layouts with millions of openings).
+ * Once `cap` flags are kept, a flag ranking below the current cut is counted but never built.
+ */
+export class FlagCollector implements FlagSink {
   readonly counts: FlagCounts = emptyFlagCounts();
   total = 0;
-  private kept: Flag[] = [];
+  private kept: (RankKey & { flag: Flag })[] = [];
+  /** Rank of the worst kept flag after the last trim (null until `cap` flags were kept). */
+  private cut: RankKey | null = null;
   constructor(private readonly cap: number) {}
 
+  offer(id: string, kind: FlagKind, severity: Severity, measured: number, limit: number, build: () => Flag): void {
+    this.counts[kind][severity]++;
+    this.total++;
+    const key = { severity, ex: exceedanceOf(measured, limit), id };
+    if (this.cut && compareKeys(key, this.cut) >= 0) return;
+    this.kept.push({ ...key, flag: build() });
+    if (this.kept.length >= 2 * this.cap) this.trim();
+  }
+
   add(flags: Iterable<Flag>): void {
-    for (const f of flags) {
-      this.counts[f.kind][f.severity]++;
-      this.total++;
-      this.kept.push(f);
-    }
-    if (this.kept.length > 2 * this.cap) this.trim();
+    for (const f of flags) this.offer(f.id, f.kind, f.severity, f.measured, f.limit, () => f);
   }
 
   private trim(): void {
-    this.kept.sort(compareFlags);
-    this.kept.length = Math.min(this.kept.length, this.cap);
+    this.kept.sort(compareKeys);
+    if (this.kept.length >= this.cap) {
+      this.kept.length = this.cap;
+      const last = this.kept[this.cap - 1] as RankKey;
+      this.cut = { severity: last.severity, ex: last.ex, id: last.id };
+    }
   }
 
   /** The kept flags, worst first (errors, then warnings, then info; within each, furthest beyond its limit first). */
   list(): Flag[] {
     this.trim();
-    return this.kept.slice();
+    return this.kept.map((k) => k.flag);
   }
 }

@@ -14,7 +14,7 @@ import type { ProcessModel } from '../etch';
 import type { FlatLayout } from '../layout/types';
 import { AnalysisAbortedError } from './errors';
 import { dieFrame, layerName, selectEtchLayers } from './etch-layers';
-import { densityGradientFlags, FlagCollector, featureFlags, windowDensityFlags, type Flag, type WindowSetInput } from './flags';
+import { densityGradientFlags, FlagCollector, featureFlagsInto, windowDensityFlags, type Flag, type WindowSetInput } from './flags';
 import type { GridMap } from './grid-file';
 import { predictFeatures, type FeatureResult } from './predict-features';
 import { featureRisk, paintFeatureMaps } from './result-maps';
@@ -158,12 +158,11 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   for (let k = 0; k < results.length; k++) {
     if (k % 4096 === 0) clock.within(k / Math.max(1, results.length));
     const r = results[k] as FeatureResult;
-    collector.add(
-      featureFlags(
-        { featureId: r.id, shape: r.shape, modelKind: r.modelKind, bboxUm: r.bboxUm, centroidUm: r.centroidUm, widthUm: r.widthUm, depthUm: r.depthUm, overEtchUm: r.overEtchUm, excursions: r.excursions },
-        limits,
-        sev,
-      ),
+    featureFlagsInto(
+      collector,
+      { featureId: r.id, shape: r.shape, modelKind: r.modelKind, bboxUm: r.bboxUm, centroidUm: r.centroidUm, widthUm: r.widthUm, depthUm: r.depthUm, overEtchUm: r.overEtchUm, excursions: r.excursions },
+      limits,
+      sev,
     );
   }
   const flags = collector.list();

@@ -81,6 +81,13 @@ describe('fitCalibration — Levenberg–Marquardt (ml-levenberg-marquardt)', ()
   });
 });
 
+describe('demo calibration CSV', () => {
+  it('is exactly what samples/calibration/make-demo-csv.ts generates (seeded), so it can be regenerated', () => {
+    const shipped = parseCalibrationCsv(readFileSync(new URL('../../samples/calibration/demo-trench-lag.csv', import.meta.url), 'utf8'));
+    expect(shipped.map(({ line: _line, ...r }) => r)).toEqual(demoRows());
+  });
+});
+
 describe('parseCalibrationCsv', () => {
   const header = 'width_um,kind,density,time_min,depth_um';
   it('reads rows with line numbers, comments, blank lines, extra columns and any column order', () => {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { adaptiveIntegral, depthAtTime, predictFeature, rateThresholdDepthUm, timeToDepthMin, ardeFactor } from '@/lib/etch';
+import { adaptiveIntegral, depthAtTime, predictFeature, rateThresholdDepthUm, timeToDepthMin, ardeFactor, createArdeEvaluators } from '@/lib/etch';
 import { testModel } from './helpers';
 
 const rel = (a: number, b: number) => Math.abs(a / b - 1);
@@ -137,5 +137,13 @@ describe('predictFeature — continuous mode', () => {
     const b = predictFeature(ion, { widthUm: 1, kind: 'trench' });
     expect(b.depthUm).toBeLessThan(a.depthUm);
     expect(ardeFactor(ion, 'trench', 0)).toBeCloseTo(1, 9);
+  });
+  it("tabulated bottom-mean ion evaluators match direct quadrature within 1e-3", () => {
+    // Internal check of the tabulation (the quadrature itself is checked against handbook view factors in flux.test.ts).
+    const m = testModel({ reactionProbability: 0.1, ion: { angularSigmaDeg: 3, neutralToIonSupplyRatio: 0.5, fluxSite: 'bottom-mean' } });
+    const ev = createArdeEvaluators(m, 50);
+    for (const kind of ['trench', 'hole'] as const) {
+      for (const ar of [0.002, 0.05, 0.7, 3, 11, 27, 49]) expect(rel(ev[kind](ar), ardeFactor(m, kind, ar))).toBeLessThan(1e-3);
+    }
   });
 });

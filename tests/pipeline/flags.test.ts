@@ -184,4 +184,18 @@ describe('FlagCollector', () => {
     expect(list.map((f) => f.id)).toEqual(['x0', 'x2', 'x4']); // errors with the largest |measured − 10|/10 first
     expect([...list].sort(compareFlags)).toEqual(list);
   });
+
+  it('builds a flag only while it can still make the list', () => {
+    const c = new FlagCollector(2);
+    let built = 0;
+    const mk = (id: string, measured: number): Flag => {
+      built++;
+      return { id, kind: 'under-target-depth', severity: 'error', bboxUm: [0, 0, 1, 1], xUm: 0, yUm: 0, measured, limit: 10, unit: 'µm', message: '' };
+    };
+    // four flags, worst first: the list fills at 4 (2·cap), trims to 2; later milder flags are never built
+    for (const [k, m] of [[0, 0], [1, 1], [2, 2], [3, 3], [4, 9], [5, 9.5]] as const) c.offer(`f${k}`, 'under-target-depth', 'error', m, 10, () => mk(`f${k}`, m));
+    expect(built).toBe(4);
+    expect(c.total).toBe(6);
+    expect(c.list().map((f) => f.id)).toEqual(['f0', 'f1']);
+  });
 });

@@ -56,7 +56,7 @@ export function freePort(): Promise<number> {
 /** Builds the app if .next is missing or older than the sources (no-op with TRENCHANT_TEST_SKIP_BUILD=1). */
 export function ensureBuilt(): void {
   if (process.env.TRENCHANT_TEST_SKIP_BUILD === '1') return;
-  buildIfStale(PROJECT_ROOT, { stdio: 'pipe', log: (line) => console.log(line) });
+  buildIfStale(PROJECT_ROOT, { stdio: 'pipe', rememberFailure: true, log: (line) => console.log(line) });
 }
 
 export async function startTestServer(options: StartOptions = {}): Promise<TestServer> {

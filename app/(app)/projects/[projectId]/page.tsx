@@ -1,6 +1,7 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
+import { ProjectPipeline } from '@/components/pipeline/project-pipeline';
 import { Card, PageTitle } from '@/components/ui/card';
 import { RoleBadge } from '@/components/ui/role-badge';
 import { getProject } from '@/lib/data/projects';
@@ -28,6 +29,7 @@ export default async function ProjectPage({ params }: { params: Promise<{ projec
           <dd>{project.id}</dd>
         </dl>
       </Card>
+      <ProjectPipeline projectId={project.id} role={project.myRole} />
     </>
   );
 }

@@ -1,0 +1,11 @@
+import { featuresFromRegions, openRegions, rasterizeOpenRegions } from '../lib/geometry';
+import { benchLayout } from './geometry-layout';
+const n = Number(process.argv[2] ?? 200);
+const set = benchLayout(n);
+let t = performance.now();
+const regions = openRegions(set, 0.001, { regionDbu: [0, 0, n * 10000, n * 10000] });
+console.log('union', performance.now() - t, regions.pieceCount); t = performance.now();
+const cov = rasterizeOpenRegions(regions, { x0Um: 0, y0Um: 0, pixelUm: 10, nx: n, ny: n });
+console.log('raster', performance.now() - t); t = performance.now();
+const f = featuresFromRegions(regions);
+console.log('features', performance.now() - t, f.length);
