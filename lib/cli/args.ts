@@ -13,7 +13,8 @@ export function parseCommandArgs<O extends Options>(argv: string[], options: O) 
   try {
     return parseArgs({ args: argv, options, allowPositionals: true, strict: true });
   } catch (err) {
-    throw new UsageError(err instanceof Error ? err.message : String(err));
+    // node's messages can span lines; commands promise one-line errors.
+    throw new UsageError((err instanceof Error ? err.message : String(err)).replace(/\s*\n\s*/g, ' '));
   }
 }
 

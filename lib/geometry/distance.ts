@@ -95,23 +95,19 @@ export function thicknessTransform(d2: Float64Array, nx: number, ny: number): Fl
 /** Foreground pixels whose disk (radius √d2) is not inside an 8-neighbour's disk: the maximal-disk centres. */
 export function maximalDiskCentres(d2: Float64Array, nx: number, ny: number): number[] {
   const centres: number[] = [];
+  const d = new Float64Array(d2.length);
+  for (let q = 0; q < d2.length; q++) d[q] = Math.sqrt(d2[q] as number);
   for (let j = 0; j < ny; j++) {
     for (let i = 0; i < nx; i++) {
       const q = j * nx + i;
-      const dc = Math.sqrt(d2[q] as number);
+      const dc = d[q] as number;
       if (dc === 0 || dc === Infinity) continue;
-      let contained = false;
-      for (let dj = -1; dj <= 1 && !contained; dj++) {
-        for (let di = -1; di <= 1; di++) {
-          if ((di === 0 && dj === 0) || i + di < 0 || i + di >= nx || j + dj < 0 || j + dj >= ny) continue;
-          const dn = Math.sqrt(d2[(j + dj) * nx + i + di] as number);
-          if (dn >= dc + Math.hypot(di, dj) - 1e-9) {
-            contained = true;
-            break;
-          }
-        }
-      }
-      if (!contained) centres.push(q);
+      // Contained in a neighbour's disk when d(n) ≥ d(c) + |n − c| (1 or √2).
+      const e1 = dc + 1 - 1e-9, e2 = dc + Math.SQRT2 - 1e-9;
+      const l = i > 0, r = i + 1 < nx, b = j > 0, t = j + 1 < ny;
+      if ((l && (d[q - 1] as number) >= e1) || (r && (d[q + 1] as number) >= e1) || (b && (d[q - nx] as number) >= e1) || (t && (d[q + nx] as number) >= e1)) continue;
+      if ((l && b && (d[q - nx - 1] as number) >= e2) || (r && b && (d[q - nx + 1] as number) >= e2) || (l && t && (d[q + nx - 1] as number) >= e2) || (r && t && (d[q + nx + 1] as number) >= e2)) continue;
+      centres.push(q);
     }
   }
   return centres;

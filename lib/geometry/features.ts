@@ -11,6 +11,7 @@
  * 5. 'irregular': everything else.
  * Two openings touching only at a point are separate features; openings sharing an edge stretch are one.
  */
+import ClipperLib from 'clipper-lib';
 import type { PolygonSet } from '../layout/types';
 import { openRegions, type OpenRegions } from './open-regions';
 import { ringArea, ringMoments, ringPerimeter } from './ring';
@@ -96,7 +97,8 @@ export function featuresFromRegions(regions: OpenRegions, opts: FeatureOptions =
     }
     if (area <= 0) continue;
     perim -= 2 * (seamByRoot.get(root) ?? 0);
-    const w = featureWidths(c, rings, bbox, area, perim, opts);
+    // Pieces cut by tile lines are merged first: the exact-distance refinements must not see tile seams.
+    const w = pieces.length > 1 ? featureWidths(...mergePieces(c, rings), bbox, area, perim, opts) : featureWidths(c, rings, bbox, area, perim, opts);
     const areaUm2 = area * u * u;
     const minWidthUm = w.minWidth * u, maxWidthUm = w.maxWidth * u;
     const lengthUm = Math.max(minWidthUm > 0 ? areaUm2 / minWidthUm : 0, Math.max(bbox[2] - bbox[0], bbox[3] - bbox[1]) * u);
@@ -129,4 +131,25 @@ export function featuresFromRegions(regions: OpenRegions, opts: FeatureOptions =
  */
 export function extractFeatures(set: PolygonSet, dbuUm: number, opts: FeatureOptions = {}): Feature[] {
   return featuresFromRegions(openRegions(set, dbuUm, { polarity: opts.polarity, regionDbu: opts.regionDbu, tileDbu: opts.tileDbu }), opts);
+}
+
+/** Union of a feature's tile pieces (clipper, integer dbu; the pieces only abut, so no new vertices arise). */
+function mergePieces(coords: Float64Array, rings: [number, number][]): [Float64Array, [number, number][]] {
+  const clipper = new ClipperLib.Clipper();
+  const paths: ClipperLib.Paths = rings.map(([s, e]) => {
+    const path: ClipperLib.Path = [];
+    for (let k = s; k < e; k++) path.push({ X: coords[2 * k] as number, Y: coords[2 * k + 1] as number });
+    return path;
+  });
+  clipper.AddPaths(paths, ClipperLib.PolyType.ptSubject, true);
+  const out: ClipperLib.Paths = [];
+  clipper.Execute(ClipperLib.ClipType.ctUnion, out, ClipperLib.PolyFillType.pftNonZero, ClipperLib.PolyFillType.pftNonZero);
+  const xy: number[] = [];
+  const merged: [number, number][] = [];
+  for (const path of out) {
+    const s = xy.length / 2;
+    for (const pt of path) xy.push(pt.X, pt.Y);
+    merged.push([s, xy.length / 2]);
+  }
+  return [Float64Array.from(xy), merged];
 }

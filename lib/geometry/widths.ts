@@ -23,12 +23,13 @@
  */
 import { maximalDiskCentres, squaredDistanceTransform } from './distance';
 import { latticeInterior, type Lattice } from './lattice';
+import { convexInscribedRadius, isConvexRing } from './convex-width';
 import type { Box } from './types';
 
 export interface WidthOptions {
-  /** Largest lattice (nodes) per feature; larger features use a coarser step. Default 1,000,000. */
+  /** Largest lattice (nodes) per feature; larger features use a coarser step (reported in widthStepUm). Default 8,192. */
   maxNodes?: number;
-  /** Lattice steps per mean width for non-Manhattan features. Default 150. */
+  /** Lattice steps per mean width 2·area/perimeter (non-convex features off the exact lattice). Default 8. */
   stepsPerWidth?: number;
 }
 
@@ -52,7 +53,7 @@ function gcd(a: number, b: number): number {
  * @param bbox the feature's bbox (dbu); area in dbu²; perimeter in dbu (tile seams removed)
  */
 export function featureWidths(coords: ArrayLike<number>, rings: [number, number][], bbox: Box, area: number, perimeter: number, opts: WidthOptions = {}): WidthResult {
-  const maxNodes = opts.maxNodes ?? 1_000_000;
+  const maxNodes = opts.maxNodes ?? 8_192;
   const bw = bbox[2] - bbox[0], bh = bbox[3] - bbox[1];
   // Rectangle (possibly cut into tile pieces): all edges axis-aligned and the area fills the bbox.
   let manhattan = true;
@@ -69,6 +70,11 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
     const w = Math.min(bw, bh);
     return { minWidth: w, maxWidth: w, step: 0, exact: true };
   }
+  // Convex single ring (round/octagonal holes, rotated bars): exact Chebyshev radius, min = max.
+  if (rings.length === 1 && isConvexRing(coords, rings[0]![0], rings[0]![1])) {
+    const w = 2 * convexInscribedRadius(coords, rings[0]![0], rings[0]![1]);
+    return { minWidth: w, maxWidth: w, step: 0, exact: true };
+  }
   let step: number;
   let exact = false;
   const nodesAt = (s: number) => (Math.ceil(bw / s) + 1) * (Math.ceil(bh / s) + 1);
@@ -76,12 +82,13 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
   if (manhattan && g > 0 && nodesAt(g / 2) <= maxNodes) {
     // Any divisor of g/2 keeps the lattice exact; refine to ≥ 40 nodes per mean width so disks centred near
     // junctions are sampled finely enough to cover their neighbours (the self-centred test is strict here).
-    let k = Math.max(1, Math.ceil(g / 2 / (meanWidth / 40)));
+    // Vertices on a fine dbu grid (g of a few dbu) make this lattice too big: then the general path is used.
+    let k = Math.max(1, Math.ceil(g / 2 / (meanWidth / 8)));
     while (k > 1 && nodesAt(g / 2 / k) > maxNodes) k--;
     step = g / 2 / k;
     exact = true;
   } else {
-    step = meanWidth / (opts.stepsPerWidth ?? 150);
+    step = meanWidth / (opts.stepsPerWidth ?? 8);
     if (nodesAt(step) > maxNodes) step = Math.sqrt((bw * bh) / maxNodes) * 1.05;
     while (nodesAt(step) > maxNodes) step *= 1.1;
   }
@@ -95,7 +102,10 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
     const w = perimeter > 0 ? (2 * area) / perimeter : 0;
     return { minWidth: w, maxWidth: w, step, exact: false };
   }
-  const minW = smallestSelfCentred(d2, lat.nx, lat.ny, exact ? 0 : 1);
+  const sc = smallestSelfCentred(d2, lat.nx, lat.ny, exact ? 0 : 1);
+  // Off the exact lattice, polish the narrowest centre on the exact distance within two steps (reaches the ridge
+  // of a straight-sided trench, whose lattice nodes sit up to half a step off the centre line).
+  const minW = exact || sc.node < 0 ? sc.width : (2 * polishLocal(coords, rings, lat, sc.node)) / step;
   // The largest disk's centre may lie between nodes (e.g. a Manhattan frame corner, where it touches a concave
   // corner): polish the best nodes by pattern search on the exact distance to the rings.
   const maxD = refineLargestDisk(coords, rings, lat, d2, maxD2);
@@ -108,7 +118,7 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
  * units) widens the covering disks: off the exact Manhattan lattice, D is measured to the nearest outside node
  * and can exceed the true distance by up to 0.71 step, which leaves lone nodes in sharp corners uncovered.
  */
-function smallestSelfCentred(d2: Float64Array, nx: number, ny: number, slack: number): number {
+function smallestSelfCentred(d2: Float64Array, nx: number, ny: number, slack: number): { width: number; node: number } {
   const tol = 1e-9;
   const centres = maximalDiskCentres(d2, nx, ny);
   const desc = centres.slice().sort((a, b) => (d2[b] as number) - (d2[a] as number));
@@ -139,9 +149,9 @@ function smallestSelfCentred(d2: Float64Array, nx: number, ny: number, slack: nu
         break;
       }
     }
-    if (!covered) return 2 * dc;
+    if (!covered) return { width: 2 * dc, node: c };
   }
-  return 0;
+  return { width: 0, node: -1 };
 }
 
 /** Exact distance from (x, y) to the nearest ring edge (dbu). */
@@ -164,14 +174,14 @@ function distanceToRings(coords: ArrayLike<number>, rings: [number, number][], x
 
 /**
  * Radius (dbu) of the largest inscribed disk: the best lattice nodes refined by a 16-direction pattern search
- * with halving steps (moves shorter than the current radius never leave the opening). Never below the lattice
- * value.
+ * with halving steps (moves shorter than the current radius never leave the opening).
  */
 function refineLargestDisk(coords: ArrayLike<number>, rings: [number, number][], lat: Lattice, d2: Float64Array, maxD2: number): number {
   const starts: number[] = [];
   for (let q = 0; q < d2.length; q++) if ((d2[q] as number) >= maxD2 - 2 * Math.sqrt(maxD2) + 1) starts.push(q);
   starts.sort((a, b) => (d2[b] as number) - (d2[a] as number));
-  let best = Math.sqrt(maxD2) * lat.step;
+  // Lattice D can exceed the true distance off the exact lattice: use exact distances only.
+  let best = 0;
   const dirs: [number, number][] = [];
   for (let k = 0; k < 16; k++) dirs.push([Math.cos((k * Math.PI) / 8), Math.sin((k * Math.PI) / 8)]);
   for (const q of starts.slice(0, 8)) {
@@ -197,4 +207,30 @@ function refineLargestDisk(coords: ArrayLike<number>, rings: [number, number][],
     if (d > best) best = d;
   }
   return best;
+}
+
+/** Largest exact distance to the rings within two lattice steps of node q (pattern search, dbu). */
+function polishLocal(coords: ArrayLike<number>, rings: [number, number][], lat: Lattice, q: number): number {
+  const i = q % lat.nx, j = (q - i) / lat.nx;
+  const cx = lat.x0 + i * lat.step, cy = lat.y0 + j * lat.step;
+  let x = cx, y = cy;
+  let d = distanceToRings(coords, rings, x, y);
+  let h = lat.step / 2;
+  for (let it = 0; it < 120 && h > lat.step * 1e-7; it++) {
+    let moved = false;
+    for (let k = 0; k < 16; k++) {
+      const nxp = x + Math.cos((k * Math.PI) / 8) * h, nyp = y + Math.sin((k * Math.PI) / 8) * h;
+      if (Math.hypot(nxp - cx, nyp - cy) > 2 * lat.step) continue;
+      const nd = distanceToRings(coords, rings, nxp, nyp);
+      if (nd > d + 1e-12 && h < d) {
+        x = nxp;
+        y = nyp;
+        d = nd;
+        moved = true;
+        break;
+      }
+    }
+    if (!moved) h /= 2;
+  }
+  return d;
 }

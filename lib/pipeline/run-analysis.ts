@@ -211,23 +211,15 @@ export function dieRegionCoverage(grid: Grid, dieBboxUm: [number, number, number
 }
 
 /**
- * Open area inside the die / die area. Each pixel counts with the part of it inside the die (the last column and row
- * may reach past the die's top/right edge), so the grid's overhang never changes the denominator.
+ * Open area / die area. Everything open lies inside the die by construction (clear: the die is the bounding box
+ * of all shapes; dark: the open region is the die minus the shapes), so pixels reaching past the die's edge carry
+ * no open area there and the sum over the grid is the die's open area.
  */
 export function dieDensity(coverage: Float32Array, grid: Grid, dieBboxUm: [number, number, number, number]): number {
-  const { x0Um, y0Um, pixelUm: p, nx, ny } = grid;
-  const [dx0, dy0, dx1, dy1] = dieBboxUm;
-  const inside = (lo: number, a: number, b: number) => Math.max(0, Math.min(lo + p, b) - Math.max(lo, a)) / p;
   let open = 0;
-  for (let j = 0; j < ny; j++) {
-    const fy = inside(y0Um + j * p, dy0, dy1);
-    if (fy === 0) continue;
-    let row = 0;
-    for (let i = 0; i < nx; i++) row += (coverage[j * nx + i] as number) * inside(x0Um + i * p, dx0, dx1);
-    open += row * fy;
-  }
-  const dieArea = (dx1 - dx0) * (dy1 - dy0);
-  return Math.min(1, (open * p * p) / dieArea);
+  for (let k = 0; k < coverage.length; k++) open += coverage[k] as number;
+  const dieArea = (dieBboxUm[2] - dieBboxUm[0]) * (dieBboxUm[3] - dieBboxUm[1]);
+  return Math.min(1, (open * grid.pixelUm * grid.pixelUm) / dieArea);
 }
 
 function windowGeometry(w: WindowDensity): Grid {

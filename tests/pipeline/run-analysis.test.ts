@@ -150,6 +150,20 @@ describe('runAnalysis flags from settings', () => {
   });
 });
 
+describe('runAnalysis with a pixel that does not divide the die', () => {
+  it('the grid overhangs the die by part of a pixel, yet densities still divide by the die (hand: 0.0108 and 1 − 0.0108)', () => {
+    const clear = runAnalysis(trenchLayout(), settingsOf({ pixel: { sizeUm: 3 }, densityWindows: [{ windowUm: 300, stepUm: 300 }] }), model);
+    expect(clear.summary.grid.nx).toBe(334); // 1000 / 3 → 333.3
+    expect(clear.summary.globalDensity).toBeCloseTo(0.0108, 7); // float32 coverage
+    const dark = runAnalysis(trenchLayout(), settingsOf({ polarity: 'dark', pixel: { sizeUm: 3 }, densityWindows: [{ windowUm: 300, stepUm: 300 }] }), model);
+    expect(dark.summary.globalDensity).toBeCloseTo(1 - 0.0108, 6);
+    // a clipped window over the right edge [900, 1000] × [0, 300] holds nothing drawn: fully open in dark tone
+    const w = dark.summary.windows[0]!;
+    expect(w.max).toBeCloseTo(1, 6);
+    expect(w.min).toBeGreaterThan(0.9);
+  });
+});
+
 describe('runAnalysis progress and abort', () => {
   it('reports every stage once in the fixed order, fractions non-decreasing from 0 to 1', () => {
     const seen: [AnalysisStage, number][] = [];

@@ -55,9 +55,7 @@ export default async function ApiDocsPage() {
           <pre className="overflow-x-auto rounded-md bg-ink-900 p-4 font-mono text-xs leading-relaxed text-wafer-50" aria-label="Example request">
             <span className="text-ink-300"># list the projects the token reaches</span>
             {'\n'}curl -H &quot;Authorization: Bearer $TRENCHANT_TOKEN&quot; \{'\n'}
-            {'     '}
-            {base}
-            {API_BASE_PATH}/projects
+            {`     ${base}${API_BASE_PATH}/projects`}
           </pre>
         </div>
       </Card>
@@ -76,10 +74,7 @@ export default async function ApiDocsPage() {
                     {method}
                   </span>
                   <div className="min-w-0">
-                    <p className="font-mono text-[13px] break-all text-ink-900">
-                      {API_BASE_PATH}
-                      {path}
-                    </p>
+                    <p className="font-mono text-[13px] break-all text-ink-900">{`${API_BASE_PATH}${path}`}</p>
                     <p className="text-sm text-ink-700">{operation.summary}</p>
                     {operation.description ? <p className="mt-0.5 text-xs leading-5 text-ink-500">{operation.description}</p> : null}
                   </div>

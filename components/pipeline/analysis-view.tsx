@@ -1,0 +1,154 @@
+'use client';
+
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { useEffect, useState } from 'react';
+import { Button } from '@/components/ui/button';
+import { Card } from '@/components/ui/card';
+import type { AnalysisView as AnalysisInfo } from '@/lib/jobs/analyses';
+import { apiJson, formatWhen } from './api-client';
+import { FlagsTable } from './flags-table';
+import { QueryProvider } from './query-provider';
+import { ProgressBar, StatusBadge } from './status-badge';
+import { SummaryPanel, type Summary } from './summary-panel';
+
+type Live = { status: string; stage: string | null; progress: number; errorMessage: string | null };
+
+const STAGE_LABEL: Record<string, string> = {
+  starting: 'starting a worker',
+  requeued: 'queued again after a restart',
+  reading: 'reading the layout',
+  coverage: 'open area per pixel',
+  'window-density': 'density windows',
+  'effective-density': 'effective density (kernel)',
+  features: 'finding openings',
+  'local-width': 'opening widths',
+  prediction: 'predicting etch depth',
+  maps: 'painting result maps',
+  flags: 'checking limits',
+  summary: 'summarising',
+  writing: 'writing result maps',
+  saving: 'saving results',
+};
+
+export function AnalysisView(props: { analysisId: string; initial: AnalysisInfo; canCancel: boolean }) {
+  return (
+    <QueryProvider>
+      <View {...props} />
+    </QueryProvider>
+  );
+}
+
+/** Follows the analysis over server-sent events; falls back to the status endpoint if the stream drops. */
+function useLiveStatus(analysisId: string, initial: Live): Live {
+  const [live, setLive] = useState<Live>(initial);
+  const queryClient = useQueryClient();
+  const terminal = live.status === 'done' || live.status === 'failed' || live.status === 'cancelled';
+  useEffect(() => {
+    if (terminal) return;
+    const source = new EventSource(`/api/v1/analyses/${analysisId}/events`);
+    source.addEventListener('progress', (e) => setLive(JSON.parse((e as MessageEvent<string>).data) as Live));
+    source.addEventListener('end', () => {
+      source.close();
+      void queryClient.invalidateQueries({ queryKey: ['analysis', analysisId] });
+    });
+    return () => source.close();
+  }, [analysisId, terminal, queryClient]);
+  return live;
+}
+
+function View({ analysisId, initial, canCancel }: { analysisId: string; initial: AnalysisInfo; canCancel: boolean }) {
+  const live = useLiveStatus(analysisId, { status: initial.status, stage: initial.stage, progress: initial.progress, errorMessage: initial.errorMessage });
+  const info = useQuery({
+    queryKey: ['analysis', analysisId, 'info', live.status],
+    queryFn: () => apiJson<{ analysis: AnalysisInfo }>(`/api/v1/analyses/${analysisId}`),
+    initialData: live.status === initial.status ? { analysis: initial } : undefined,
+  });
+  const results = useQuery({
+    queryKey: ['analysis', analysisId, 'results'],
+    queryFn: () => apiJson<{ summary: Summary; maps: { name: string; kind: string }[] }>(`/api/v1/analyses/${analysisId}/results?limit=1`),
+    enabled: live.status === 'done',
+  });
+  const cancel = useMutation({ mutationFn: () => apiJson(`/api/v1/analyses/${analysisId}/cancel`, { method: 'POST' }) });
+  const [preview, setPreview] = useState('risk');
+  const a = info.data?.analysis ?? initial;
+  const active = live.status === 'queued' || live.status === 'running';
+
+  return (
+    <div className="grid gap-6">
+      <Card className="p-6">
+        <div className="flex flex-wrap items-center justify-between gap-4">
+          <div className="flex items-center gap-3">
+            <StatusBadge status={live.status} />
+            <span className="text-sm text-ink-700" data-testid="analysis-stage">
+              {live.status === 'running' ? (STAGE_LABEL[live.stage ?? ''] ?? live.stage ?? '') : live.status === 'queued' ? 'waiting for a free worker' : live.status === 'done' ? 'finished' : ''}
+            </span>
+          </div>
+          {canCancel && active ? (
+            <Button variant="danger" onClick={() => cancel.mutate()} disabled={cancel.isPending} data-testid="cancel-analysis">
+              {cancel.isPending ? 'Cancelling…' : 'Cancel analysis'}
+            </Button>
+          ) : null}
+        </div>
+        {active ? (
+          <div className="mt-4 space-y-1" data-testid="analysis-progress">
+            <ProgressBar value={live.progress} label="analysis progress" />
+            <p className="text-right font-mono text-xs text-ink-500">{Math.round(live.progress * 100)} %</p>
+          </div>
+        ) : null}
+        {live.status === 'failed' ? (
+          <p role="alert" className="mt-4 rounded-md border border-fail/30 bg-fail/5 px-3 py-2 text-sm text-fail" data-testid="analysis-error">
+            {live.errorMessage ?? 'The analysis failed.'}
+          </p>
+        ) : null}
+        {cancel.error ? <p className="mt-2 text-sm text-fail">{cancel.error.message}</p> : null}
+        <dl className="mt-4 grid grid-cols-[max-content_1fr] gap-x-6 gap-y-1 font-mono text-xs text-ink-500">
+          <dt>layout</dt>
+          <dd>
+            {a.revision.layoutName} r{a.revision.revision} ({a.revision.originalName})
+          </dd>
+          <dt>model</dt>
+          <dd>
+            {a.model.name} · {a.model.version} · {a.model.source}
+          </dd>
+          <dt>started</dt>
+          <dd>
+            {formatWhen(a.createdAt)}
+            {a.createdByName ? ` by ${a.createdByName}` : ''}
+          </dd>
+          {a.finishedAt ? (
+            <>
+              <dt>finished</dt>
+              <dd>{formatWhen(a.finishedAt)}</dd>
+            </>
+          ) : null}
+        </dl>
+      </Card>
+
+      {live.status === 'done' && results.data ? (
+        <>
+          <SummaryPanel summary={results.data.summary} />
+          <Card className="p-6">
+            <div className="mb-3 flex flex-wrap items-center justify-between gap-3">
+              <h2 className="text-lg font-semibold text-ink-900">Preview</h2>
+              <div className="flex gap-1" role="tablist">
+                {['risk', 'predicted-depth', 'effective-density', 'coverage'].map((m) => (
+                  <button key={m} role="tab" aria-selected={preview === m} onClick={() => setPreview(m)} className={`rounded px-2 py-1 text-xs ${preview === m ? 'bg-ink-900 text-wafer-50' : 'text-ink-700 hover:bg-wafer-200/60'}`}>
+                    {m}
+                  </button>
+                ))}
+              </div>
+            </div>
+            {/* eslint-disable-next-line @next/next/no-img-element -- a generated PNG from the API, not a static asset */}
+            <img src={`/api/v1/analyses/${analysisId}/preview.png?map=${preview}&size=640`} alt={`${preview} map of the die, top = +y`} className="mx-auto max-h-[640px] rounded border border-wafer-200" data-testid="preview" />
+            <p className="mt-2 text-center text-xs text-ink-500">
+              {preview === 'risk' ? 'Risk: pale = well inside the limits, amber = within 20 % of a limit, red = at or beyond a limit.' : 'Colour from the map minimum (pale) to maximum (dark).'} North is +y.
+            </p>
+          </Card>
+          <FlagsTable analysisId={analysisId} />
+        </>
+      ) : null}
+      {live.status === 'done' && results.isPending ? <p className="text-sm text-ink-500">Loading results…</p> : null}
+      {results.error ? <p className="text-sm text-fail">{results.error.message}</p> : null}
+    </div>
+  );
+}
