@@ -60,7 +60,7 @@ def bench_layout(sites, seed=4242, full_sites=1000):
                 else:
                     x0, y0, x1, y1 = bx + a, by + b, bx + a + w, min(by + b + ln, lim)
                 p = [(x0, y0), (x1, y0), (x1, y1), (x0, y1)]
-            elif u < 0.999:
+            elif u < 0.99998:
                 r = 1000 + F(rnd() * 1500)
                 cx, cy = bx + 5000, by + 5000
                 p = [(cx + F(r * math.cos(2 * math.pi * k / 24) + 0.5), cy + F(r * math.sin(2 * math.pi * k / 24) + 0.5)) for k in range(24)]

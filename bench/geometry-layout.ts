@@ -2,7 +2,7 @@
  * Seeded synthetic etch layer for the geometry benchmark (mirrored exactly by bench/gdspy_density.py):
  * 1000 × 1000 sites of 10 µm over 10 mm × 10 mm, one polygon per site, 1 dbu = 1 nm.
  * 55 % square holes 1–4 µm, 30 % short trenches 0.8–2 × 5–9 µm, 12 % long trenches 12–30 µm that cross into
- * neighbouring sites (unions, L/T/cross shapes), 2.9 % 24-gon round holes, 0.1 % open fields 100–300 µm.
+ * neighbouring sites (unions, L/T/cross shapes), 3 % 24-gon round holes, 0.002 % (≈ 20) open fields 100–300 µm.
  * Only integer arithmetic and Math.floor on the PRNG output, so Python reproduces it bit for bit (24-gon vertices
  * use cos/sin, which may differ by one ulp across languages; rounding to nm hides that in practice).
  */
@@ -43,7 +43,7 @@ export function benchLayout(sites = 1000, seed = 4242) {
         const b = 500 + F(rnd() * Math.max(1, 9000 - len));
         if (horizontal) pushRect(bx + b, by + a, Math.min(bx + b + len, sites * 10000), by + a + w);
         else pushRect(bx + a, by + b, bx + a + w, Math.min(by + b + len, sites * 10000));
-      } else if (u < 0.999) {
+      } else if (u < 0.99998) {
         const r = 1000 + F(rnd() * 1500);
         const cx = bx + 5000, cy = by + 5000;
         for (let k = 0; k < 24; k++) coords.push(cx + F(r * Math.cos((2 * Math.PI * k) / 24) + 0.5), cy + F(r * Math.sin((2 * Math.PI * k) / 24) + 0.5));

@@ -2,7 +2,7 @@ import Link from 'next/link';
 import { AppHeader } from '@/components/app/app-header';
 import { CautionFooter } from '@/components/caution-footer';
 import { buttonClass } from '@/components/ui/button';
-import { Logo } from '@/components/ui/logo';
+import { Logo, LogoMark } from '@/components/ui/logo';
 import { getCurrentSession } from '@/lib/auth/session';
 import { listMyTeams } from '@/lib/data/teams';
 
@@ -18,9 +18,14 @@ export default async function DocsLayout({ children }: { children: React.ReactNo
         <AppHeader user={user} teams={await listMyTeams(user)} />
       ) : (
         <header className="bg-ink-900 text-wafer-50">
-          <div className="mx-auto flex h-14 max-w-6xl items-center gap-8 px-6">
+          <div className="mx-auto flex h-14 max-w-6xl items-center gap-4 px-4 sm:gap-8 sm:px-6">
             <Link href="/" aria-label="Trenchant home">
-              <Logo size={26} />
+              <span className="sm:hidden">
+                <LogoMark size={26} />
+              </span>
+              <span className="hidden sm:inline">
+                <Logo size={26} />
+              </span>
             </Link>
             <nav className="flex items-center gap-1 text-sm">
               <Link href="/methods" className="rounded px-2.5 py-1.5 text-ink-100 hover:bg-ink-800 hover:text-white">

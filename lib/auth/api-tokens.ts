@@ -9,6 +9,12 @@ import type { AuthUser } from './session';
 /** Tokens look like `trn_<43 base64url chars>` (32 random bytes); the prefix makes leaked ones easy to grep for. */
 const TOKEN_PREFIX = 'trn_';
 
+/** How precisely "last used" is kept, ms. */
+const LAST_USED_RESOLUTION_MS = 60_000;
+
+/** Active (unrevoked) tokens one person may hold; more is a sign of tokens not being cleaned up. */
+export const MAX_ACTIVE_TOKENS = 25;
+
 export function hashApiToken(token: string): string {
   return createHash('sha256').update(token).digest('hex');
 }
@@ -91,12 +97,22 @@ export function revokeApiToken(userId: string, tokenId: string): boolean {
 export function resolveApiToken(token: string): { user: AuthUser; teamId: string; tokenId: string } | null {
   const db = getDb();
   const row = db
-    .select({ id: apiTokens.id, teamId: apiTokens.teamId, revokedAt: apiTokens.revokedAt, user: { id: users.id, email: users.email, name: users.name } })
+    .select({
+      id: apiTokens.id,
+      teamId: apiTokens.teamId,
+      revokedAt: apiTokens.revokedAt,
+      lastUsedAt: apiTokens.lastUsedAt,
+      user: { id: users.id, email: users.email, name: users.name },
+    })
     .from(apiTokens)
     .innerJoin(users, eq(users.id, apiTokens.userId))
     .where(eq(apiTokens.tokenHash, hashApiToken(token)))
     .get();
   if (!row || row.revokedAt || !teamRoleOf(row.user.id, row.teamId)) return null;
-  db.update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.id)).run();
+  // One write a minute at most: scripts polling progress should not turn every read into a write.
+  const now = Date.now();
+  if (!row.lastUsedAt || now - row.lastUsedAt.getTime() > LAST_USED_RESOLUTION_MS) {
+    db.update(apiTokens).set({ lastUsedAt: new Date(now) }).where(eq(apiTokens.id, row.id)).run();
+  }
   return { user: row.user, teamId: row.teamId, tokenId: row.id };
 }

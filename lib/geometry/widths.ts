@@ -27,9 +27,9 @@ import { convexInscribedRadius, isConvexRing } from './convex-width';
 import type { Box } from './types';
 
 export interface WidthOptions {
-  /** Largest lattice (nodes) per feature; larger features use a coarser step (reported in widthStepUm). Default 8,192. */
+  /** Largest lattice (nodes) per feature; larger features use a coarser step (reported in widthStepUm). Default 4,096. */
   maxNodes?: number;
-  /** Lattice steps per mean width 2·area/perimeter (non-convex features off the exact lattice). Default 8. */
+  /** Lattice steps per mean width 2·area/perimeter (non-convex features off the exact lattice). Default 5. */
   stepsPerWidth?: number;
 }
 
@@ -53,7 +53,7 @@ function gcd(a: number, b: number): number {
  * @param bbox the feature's bbox (dbu); area in dbu²; perimeter in dbu (tile seams removed)
  */
 export function featureWidths(coords: ArrayLike<number>, rings: [number, number][], bbox: Box, area: number, perimeter: number, opts: WidthOptions = {}): WidthResult {
-  const maxNodes = opts.maxNodes ?? 8_192;
+  const maxNodes = opts.maxNodes ?? 4_096;
   const bw = bbox[2] - bbox[0], bh = bbox[3] - bbox[1];
   // Rectangle (possibly cut into tile pieces): all edges axis-aligned and the area fills the bbox.
   let manhattan = true;
@@ -88,7 +88,7 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
     step = g / 2 / k;
     exact = true;
   } else {
-    step = meanWidth / (opts.stepsPerWidth ?? 8);
+    step = meanWidth / (opts.stepsPerWidth ?? 5);
     if (nodesAt(step) > maxNodes) step = Math.sqrt((bw * bh) / maxNodes) * 1.05;
     while (nodesAt(step) > maxNodes) step *= 1.1;
   }
@@ -177,19 +177,26 @@ function distanceToRings(coords: ArrayLike<number>, rings: [number, number][], x
  * with halving steps (moves shorter than the current radius never leave the opening).
  */
 function refineLargestDisk(coords: ArrayLike<number>, rings: [number, number][], lat: Lattice, d2: Float64Array, maxD2: number): number {
+  // The three best nodes (ties broken by position) seed the search.
   const starts: number[] = [];
-  for (let q = 0; q < d2.length; q++) if ((d2[q] as number) >= maxD2 - 2 * Math.sqrt(maxD2) + 1) starts.push(q);
-  starts.sort((a, b) => (d2[b] as number) - (d2[a] as number));
+  for (let q = 0; q < d2.length; q++) {
+    const v = d2[q] as number;
+    if (v === 0 || v === Infinity) continue;
+    if (starts.length < 3) starts.push(q);
+    else if (v > (d2[starts[2] as number] as number)) starts[2] = q;
+    else continue;
+    starts.sort((a, b) => (d2[b] as number) - (d2[a] as number));
+  }
   // Lattice D can exceed the true distance off the exact lattice: use exact distances only.
   let best = 0;
   const dirs: [number, number][] = [];
   for (let k = 0; k < 16; k++) dirs.push([Math.cos((k * Math.PI) / 8), Math.sin((k * Math.PI) / 8)]);
-  for (const q of starts.slice(0, 8)) {
+  for (const q of starts.slice(0, 3)) {
     const i = q % lat.nx, j = (q - i) / lat.nx;
     let x = lat.x0 + i * lat.step, y = lat.y0 + j * lat.step;
     let d = distanceToRings(coords, rings, x, y);
     let h = lat.step;
-    for (let it = 0; it < 200 && h > lat.step * 1e-7; it++) {
+    for (let it = 0; it < 120 && h > lat.step * 1e-6; it++) {
       let moved = false;
       for (const [ux, uy] of dirs) {
         const nxp = x + ux * h, nyp = y + uy * h;
@@ -216,7 +223,7 @@ function polishLocal(coords: ArrayLike<number>, rings: [number, number][], lat: 
   let x = cx, y = cy;
   let d = distanceToRings(coords, rings, x, y);
   let h = lat.step / 2;
-  for (let it = 0; it < 120 && h > lat.step * 1e-7; it++) {
+  for (let it = 0; it < 80 && h > lat.step * 1e-6; it++) {
     let moved = false;
     for (let k = 0; k < 16; k++) {
       const nxp = x + Math.cos((k * Math.PI) / 8) * h, nyp = y + Math.sin((k * Math.PI) / 8) * h;

@@ -78,6 +78,7 @@ function groupedUnion(clipper: ClipperLib.Clipper, paths: ClipperLib.Paths): Cli
   let level: ClipperLib.Paths[] = [];
   for (let k = 0; k < paths.length; k += GROUP) level.push(paths.slice(k, k + GROUP));
   for (;;) {
+    if (level.length === 0) return []; // everything had zero area
     const next: ClipperLib.Paths[] = [];
     let group: ClipperLib.Paths = [];
     for (const part of level) {

@@ -39,7 +39,7 @@ export function MethodSectionView({ section, number, depth = 0 }: { section: Met
 function FormulaView({ formula }: { formula: MethodFormula }) {
   return (
     <figure className="rounded-md border border-wafer-200 bg-wafer-50 px-4 py-3">
-      <figcaption className="text-xs font-semibold tracking-wide text-ink-500 uppercase">{formula.label}</figcaption>
+      <figcaption className="text-[13px] font-semibold text-ink-700">{formula.label}</figcaption>
       <pre className="mt-1.5 overflow-x-auto font-mono text-[13.5px] leading-6 whitespace-pre-wrap text-ink-900">{formula.text}</pre>
       {formula.where?.length ? (
         <dl className="mt-2 grid grid-cols-[auto_1fr] gap-x-3 gap-y-0.5 text-[13px] leading-5 text-ink-700">

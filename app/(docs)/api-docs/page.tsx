@@ -52,7 +52,7 @@ export default async function ApiDocsPage() {
               .
             </p>
           </div>
-          <pre className="overflow-x-auto rounded-md bg-ink-900 p-4 font-mono text-xs leading-relaxed text-wafer-50" aria-label="Example request">
+          <pre className="self-start overflow-x-auto rounded-md bg-ink-900 p-4 font-mono text-xs leading-relaxed text-wafer-50" aria-label="Example request">
             <span className="text-ink-300"># list the projects the token reaches</span>
             {'\n'}curl -H &quot;Authorization: Bearer $TRENCHANT_TOKEN&quot; \{'\n'}
             {`     ${base}${API_BASE_PATH}/projects`}
@@ -76,7 +76,7 @@ export default async function ApiDocsPage() {
                   <div className="min-w-0">
                     <p className="font-mono text-[13px] break-all text-ink-900">{`${API_BASE_PATH}${path}`}</p>
                     <p className="text-sm text-ink-700">{operation.summary}</p>
-                    {operation.description ? <p className="mt-0.5 text-xs leading-5 text-ink-500">{operation.description}</p> : null}
+                    {operation.description ? <p className="mt-0.5 text-xs leading-5 text-ink-500">{withCode(operation.description)}</p> : null}
                   </div>
                   <div className="flex flex-wrap items-start gap-1.5 text-[11px] sm:justify-end">
                     <span className="rounded bg-wafer-200 px-1.5 py-0.5 text-ink-700">{ACCESS_LABEL[operation['x-access']]}</span>
@@ -90,5 +90,18 @@ export default async function ApiDocsPage() {
           </Card>
         ))}
     </div>
+  );
+}
+
+/** Renders `backticked` parts of a description (OpenAPI descriptions are CommonMark) as code. */
+function withCode(text: string): React.ReactNode[] {
+  return text.split('`').map((part, i) =>
+    i % 2 === 1 ? (
+      <code key={i} className="font-mono text-[11.5px] text-ink-700">
+        {part}
+      </code>
+    ) : (
+      part
+    ),
   );
 }

@@ -22,12 +22,12 @@ export default function MethodsPage() {
             </li>
             {SECTIONS.map((s, i) => (
               <li key={s.id}>
-                <a href={`#${s.id}`} className="block rounded px-2 py-1 text-ink-700 hover:bg-wafer-200/60 hover:text-ink-900">
-                  <span className="mr-1.5 font-mono text-xs text-ink-500">{i + 1}.</span>
-                  {s.title}
+                <a href={`#${s.id}`} className="flex gap-1.5 rounded px-2 py-1 text-ink-700 hover:bg-wafer-200/60 hover:text-ink-900">
+                  <span className="w-4 shrink-0 pt-px font-mono text-xs text-ink-500">{i + 1}.</span>
+                  <span>{s.title}</span>
                 </a>
                 {s.subsections?.length ? (
-                  <ol className="mt-0.5 mb-1 ml-6 space-y-0.5 border-l border-wafer-300 pl-2 text-[13px]">
+                  <ol className="mt-0.5 mb-1 ml-7 space-y-0.5 border-l border-wafer-300 pl-2 text-[13px]">
                     {s.subsections.map((sub) => (
                       <li key={sub.id}>
                         <a href={`#${sub.id}`} className="block py-0.5 text-ink-500 hover:text-ink-900">

@@ -2,7 +2,7 @@
 
 import { revalidatePath } from 'next/cache';
 import { apiTokenIdInput, apiTokenInput } from '@/lib/api/schemas';
-import { createApiToken, findApiToken, revokeApiToken } from '@/lib/auth/api-tokens';
+import { createApiToken, findApiToken, listApiTokens, MAX_ACTIVE_TOKENS, revokeApiToken } from '@/lib/auth/api-tokens';
 import { requireTeamMember } from '@/lib/auth/guard';
 import { requireUser } from '@/lib/auth/session';
 import { recordAudit } from '@/lib/data/audit';
@@ -19,6 +19,9 @@ export async function createApiTokenAction(_prev: CreateTokenState, formData: Fo
     const user = await requireUser();
     const input = apiTokenInput.parse(values);
     const access = await requireTeamMember(input.teamId, user);
+    if (listApiTokens(user.id).filter((t) => !t.revokedAt).length >= MAX_ACTIVE_TOKENS) {
+      throw new ApiError('conflict', `You already have ${MAX_ACTIVE_TOKENS} active tokens; revoke one you no longer use first.`);
+    }
     const { token, row } = createApiToken(user.id, access.teamId, input.name);
     recordAudit({ actorId: user.id, teamId: access.teamId, action: 'token.create', target: row.id, detail: { name: row.name, prefix: row.prefix } });
     revalidatePath('/account/tokens');

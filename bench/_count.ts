@@ -1,0 +1,10 @@
+import { openRegions, featuresFromRegions } from '../lib/geometry';
+import { benchLayout } from './geometry-layout';
+const n = 150;
+const set = benchLayout(n);
+const r = openRegions(set, 0.001, { regionDbu: [0, 0, n * 10000, n * 10000] });
+let t = performance.now();
+const f = featuresFromRegions(r);
+console.log('features ms', performance.now() - t);
+const lat = f.filter((x) => x.widthStepUm > 0);
+console.log('features', f.length, 'lattice', lat.length, 'exact lattice', lat.filter((x) => x.widthExact).length, 'multi-piece', f.filter((x) => x.pieces > 1).length);
