@@ -78,7 +78,7 @@ export function convolve2d(input: ArrayLike<number>, nx: number, ny: number, ker
   return out;
 }
 
-/** erf(x), Abramowitz & Stegun 7.1.26 refined by one Newton-free series switch: |error| < 1.5e-7. */
+/** erf(x): Maclaurin series for |x| < 0.5, Abramowitz & Stegun 7.1.26 beyond (|error| < 1.5e-7). */
 export function erf(x: number): number {
   const s = x < 0 ? -1 : 1;
   const ax = Math.abs(x);

@@ -12,3 +12,4 @@ export { extractFeatures, featuresFromRegions, classifyFeature, type FeatureOpti
 export { localWidthMap, localWidthFromCoverage } from './local-width';
 export { FeatureIndex } from './feature-index';
 export { gridForBox, alignedPixelUm, lengthGcd } from './grid';
+export { convexInscribedRadius, isConvexRing } from './convex-width';

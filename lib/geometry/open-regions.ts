@@ -4,8 +4,10 @@
  * clipper union is super-linear (stack.md: 91 s for 100k rectangles); per-tile work is linear in the count.
  *
  * Pieces that meet across a tile line are recorded as seams (piece a, piece b, shared length) so features can be
- * stitched back together and the artificial tile edges removed from perimeters. Coordinates are integer dbu;
- * where two slanted edges cross, clipper rounds the crossing to the nearest dbu (the only inexact step).
+ * stitched back together and the artificial tile edges removed from perimeters. Coordinates are integer dbu.
+ * The only inexact step: where a slanted edge crosses another edge, clipper rounds the crossing to the dbu grid
+ * (its rounding also depends on the other vertices in the call, so tilings can differ by ~1 dbu × edge length per
+ * crossing). Manhattan input is exact; tile lines never round a slanted edge for coverage (processTile).
  */
 import ClipperLib from 'clipper-lib';
 import type { PolygonSet } from '../layout/types';
@@ -30,6 +32,12 @@ export interface OpenRegions {
   seamLen: Float64Array;
   /** Tile edge length used, dbu. */
   tileDbu: number;
+  /** Per piece: 1 when its rings are rasterised for coverage. Tiles where a slanted edge crosses the tile boundary
+   * give 0 here and supply `coverageRings` instead (see processTile). */
+  pieceCoverage: Uint8Array;
+  /** Coverage-only rings (signed: counter-clockwise adds, clockwise subtracts), dbu, float coordinates. */
+  coverageCoords: Float64Array;
+  coverageRingOffsets: Uint32Array;
 }
 
 export interface OpenRegionsOptions {
@@ -62,6 +70,9 @@ class Builder {
   seamA: number[] = [];
   seamB: number[] = [];
   seamLen: number[] = [];
+  pieceCoverage: number[] = [];
+  covCoords: number[] = [];
+  covRingOffsets: number[] = [0];
   /** Tile-line stretches: key "v:X" / "h:Y" → [lo, hi, piece, side] flat quadruples. side 0 = piece below/left. */
   lines = new Map<string, number[]>();
 
@@ -69,8 +80,9 @@ class Builder {
     for (let k = start; k < end; k++) this.coords.push(xy[k] as number);
     this.ringOffsets.push(this.coords.length / 2);
   }
-  endPiece(): number {
+  endPiece(coverage = 1): number {
     this.pieceRings.push(this.ringOffsets.length - 1);
+    this.pieceCoverage.push(coverage);
     return this.pieceRings.length - 2;
   }
 }
@@ -142,6 +154,9 @@ function finish(b: Builder, dbuUm: number, region: Box, tile: number): OpenRegio
     seamB: Uint32Array.from(b.seamB),
     seamLen: Float64Array.from(b.seamLen),
     tileDbu: tile,
+    pieceCoverage: Uint8Array.from(b.pieceCoverage),
+    coverageCoords: Float64Array.from(b.covCoords),
+    coverageRingOffsets: Uint32Array.from(b.covRingOffsets),
   };
 }
 
@@ -192,25 +207,34 @@ function processTile(set: PolygonSet, polyBox: Float64Array, members: Uint32Arra
       return;
     }
   }
-  // Crossings of slanted edges are rounded to the integer dbu grid by clipper (as any GDSII geometry is); clipper's
-  // JS port fails beyond its 53-bit range, so finer scaling is not available. Manhattan input is exact.
-  const ox = 0, oy = 0, scale = 1;
+  // Crossings of slanted edges are rounded to the integer dbu grid by clipper (as GDSII geometry is). Finer
+  // scaling is not available: clipper-lib's JS port returns nothing beyond its 53-bit range (tried: 1e10).
+  // Clipping a slanted edge at a tile line would round the crossing to a dbu: where that happens, coverage is
+  // taken instead from the unclipped union of the bucket, clipped to the tile exactly in float64.
+  let slantedCross = false;
+  for (const p of clipperSet) {
+    if (slantedCross) break;
+    if (inside(p)) continue;
+    const s = set.offsets[p] as number, e = set.offsets[p + 1] as number;
+    for (let k = s; k < e; k++) {
+      const n = k + 1 < e ? k + 1 : s;
+      if (set.coords[2 * k] !== set.coords[2 * n] && set.coords[2 * k + 1] !== set.coords[2 * n + 1]) {
+        slantedCross = true;
+        break;
+      }
+    }
+  }
   const clipper = new ClipperLib.Clipper();
   clipper.StrictlySimple = true;
   const paths: ClipperLib.Paths = [];
   for (const p of clipperSet) {
     const path: ClipperLib.Path = [];
     for (let k = set.offsets[p] as number; k < (set.offsets[p + 1] as number); k++) {
-      path.push({ X: ((set.coords[2 * k] as number) - ox) * scale, Y: ((set.coords[2 * k + 1] as number) - oy) * scale });
+      path.push({ X: set.coords[2 * k] as number, Y: set.coords[2 * k + 1] as number });
     }
     if (path.length >= 3) paths.push(path);
   }
-  const tileRect: ClipperLib.Path = [
-    { X: (tb[0] - ox) * scale, Y: (tb[1] - oy) * scale },
-    { X: (tb[2] - ox) * scale, Y: (tb[1] - oy) * scale },
-    { X: (tb[2] - ox) * scale, Y: (tb[3] - oy) * scale },
-    { X: (tb[0] - ox) * scale, Y: (tb[3] - oy) * scale },
-  ];
+  const tileRect: ClipperLib.Path = [{ X: tb[0], Y: tb[1] }, { X: tb[2], Y: tb[1] }, { X: tb[2], Y: tb[3] }, { X: tb[0], Y: tb[3] }];
   const tree = new ClipperLib.PolyTree();
   if (polarity === 'clear') {
     clipper.AddPaths(paths, ClipperLib.PolyType.ptSubject, true);
@@ -221,15 +245,68 @@ function processTile(set: PolygonSet, polyBox: Float64Array, members: Uint32Arra
     clipper.AddPaths(paths, ClipperLib.PolyType.ptClip, true);
     clipper.Execute(ClipperLib.ClipType.ctDifference, tree, ClipperLib.PolyFillType.pftNonZero, ClipperLib.PolyFillType.pftNonZero);
   }
-  const back = (path: ClipperLib.Path): ClipperLib.Path => (scale === 1 ? path : path.map((pt) => ({ X: pt.X / scale + ox, Y: pt.Y / scale + oy })));
   const walk = (node: ClipperLib.PolyNode) => {
     for (const outer of node.Childs()) {
-      const rings = [back(outer.Contour()), ...outer.Childs().map((h) => back(h.Contour()))];
-      emitPieceFromPaths(rings, tb, b);
+      const rings = [outer.Contour(), ...outer.Childs().map((h) => h.Contour())];
+      emitPieceFromPaths(rings, tb, b, slantedCross ? 0 : 1);
       for (const hole of outer.Childs()) walk(hole);
     }
   };
   walk(tree);
+  if (slantedCross) {
+    const u = new ClipperLib.Clipper();
+    u.AddPaths(paths, ClipperLib.PolyType.ptSubject, true);
+    const union: ClipperLib.Paths = [];
+    u.Execute(ClipperLib.ClipType.ctUnion, union, ClipperLib.PolyFillType.pftNonZero, ClipperLib.PolyFillType.pftNonZero);
+    const sign = polarity === 'clear' ? 1 : -1;
+    if (polarity === 'dark') addCoverageRing(b, [tb[0], tb[1], tb[2], tb[1], tb[2], tb[3], tb[0], tb[3]], 1);
+    for (const path of union) {
+      const xy: number[] = [];
+      for (const pt of path) xy.push(pt.X, pt.Y);
+      addCoverageRing(b, clipRingToBox(xy, tb), sign);
+    }
+  }
+}
+
+/** Add a ring for coverage with orientation chosen so it adds (sign 1) or removes (−1) its own signed area. */
+function addCoverageRing(b: Builder, xy: number[], sign: number): void {
+  if (xy.length < 6) return;
+  // Clipper keeps outer rings positive and holes negative; 'dark' flips both.
+  if (sign < 0) {
+    const rev: number[] = [];
+    for (let k = xy.length - 2; k >= 0; k -= 2) rev.push(xy[k] as number, xy[k + 1] as number);
+    xy = rev;
+  }
+  for (const v of xy) b.covCoords.push(v);
+  b.covRingOffsets.push(b.covCoords.length / 2);
+}
+
+/**
+ * Sutherland–Hodgman clip of one ring to an axis-aligned box, in float64. For a concave ring the result may hold
+ * zero-width bridges along the box edges; their edges cancel in signed area accumulation, so coverage is exact.
+ */
+export function clipRingToBox(xy: number[], box: Box): number[] {
+  let poly = xy;
+  for (let side = 0; side < 4 && poly.length >= 6; side++) {
+    const out: number[] = [];
+    const m = poly.length / 2;
+    const val = (x: number, y: number) => (side === 0 ? x - box[0] : side === 1 ? box[2] - x : side === 2 ? y - box[1] : box[3] - y);
+    for (let k = 0; k < m; k++) {
+      const px = poly[2 * k] as number, py = poly[2 * k + 1] as number;
+      const qx = poly[(2 * k + 2) % (2 * m)] as number, qy = poly[(2 * k + 3) % (2 * m)] as number;
+      const dp = val(px, py), dq = val(qx, qy);
+      if (dp >= 0) out.push(px, py);
+      if ((dp >= 0) !== (dq >= 0)) {
+        const t = dp / (dp - dq);
+        // Snap onto the box line exactly so neighbouring tiles meet without slivers.
+        const ix = side === 0 ? box[0] : side === 1 ? box[2] : px + t * (qx - px);
+        const iy = side === 2 ? box[1] : side === 3 ? box[3] : py + t * (qy - py);
+        out.push(ix, iy);
+      }
+    }
+    poly = out;
+  }
+  return poly;
 }
 
 function emitRect(set: PolygonSet, p: number, b: Builder): void {
@@ -244,8 +321,7 @@ function emitRect(set: PolygonSet, p: number, b: Builder): void {
 }
 
 /** Add one piece (outer + holes), orienting outer CCW and holes CW, and record its stretches on tile lines. */
-function emitPieceFromPaths(rings: ClipperLib.Path[], tb: Box, b: Builder): void {
-  const firstPoint = b.coords.length / 2;
+function emitPieceFromPaths(rings: ClipperLib.Path[], tb: Box, b: Builder, coverage = 1): void {
   rings.forEach((ring, r) => {
     const xy: number[] = [];
     for (const pt of ring) xy.push(pt.X, pt.Y);
@@ -258,8 +334,7 @@ function emitPieceFromPaths(rings: ClipperLib.Path[], tb: Box, b: Builder): void
   });
   const piece = b.pieceRings.length - 1;
   const ringStart = b.pieceRings[piece] as number;
-  b.endPiece();
-  void firstPoint;
+  b.endPiece(coverage);
   // Record edges lying on the tile's own boundary lines.
   for (let r = ringStart; r < b.ringOffsets.length - 1; r++) {
     const s = b.ringOffsets[r] as number, e = b.ringOffsets[r + 1] as number;

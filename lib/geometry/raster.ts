@@ -82,13 +82,19 @@ export function rasterizeOpenRegions(regions: OpenRegions, grid: Grid): Float64A
   const scale = regions.dbuUm / grid.pixelUm;
   const ox = grid.x0Um / grid.pixelUm, oy = grid.y0Um / grid.pixelUm;
   const c = regions.coords;
-  for (let r = 0; r < regions.ringCount; r++) {
-    const s = regions.ringOffsets[r] as number, e = regions.ringOffsets[r + 1] as number;
-    for (let k = s; k < e; k++) {
-      const n = k + 1 < e ? k + 1 : s;
-      accumulateEdge(acc, nx, ny, (c[2 * k] as number) * scale - ox, (c[2 * k + 1] as number) * scale - oy, (c[2 * n] as number) * scale - ox, (c[2 * n + 1] as number) * scale - oy);
+  const ringsOf = (xy: Float64Array, offsets: Uint32Array, r0: number, r1: number) => {
+    for (let r = r0; r < r1; r++) {
+      const s = offsets[r] as number, e = offsets[r + 1] as number;
+      for (let k = s; k < e; k++) {
+        const n = k + 1 < e ? k + 1 : s;
+        accumulateEdge(acc, nx, ny, (xy[2 * k] as number) * scale - ox, (xy[2 * k + 1] as number) * scale - oy, (xy[2 * n] as number) * scale - ox, (xy[2 * n + 1] as number) * scale - oy);
+      }
     }
+  };
+  for (let p = 0; p < regions.pieceCount; p++) {
+    if (regions.pieceCoverage[p]) ringsOf(c, regions.ringOffsets, regions.pieceRings[p] as number, regions.pieceRings[p + 1] as number);
   }
+  ringsOf(regions.coverageCoords, regions.coverageRingOffsets, 0, regions.coverageRingOffsets.length - 1);
   const out = new Float64Array(nx * ny);
   for (let j = 0; j < ny; j++) {
     let run = 0;

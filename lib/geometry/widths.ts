@@ -27,7 +27,8 @@ import { convexInscribedRadius, isConvexRing } from './convex-width';
 import type { Box } from './types';
 
 export interface WidthOptions {
-  /** Largest lattice (nodes) per feature; larger features use a coarser step (reported in widthStepUm). Default 4,096. */
+  /** Largest lattice (nodes) per feature; larger features use a coarser step (reported in widthStepUm). Default 4,096
+   * (16× that for the exact Manhattan lattice). */
   maxNodes?: number;
   /** Lattice steps per mean width 2·area/perimeter (non-convex features off the exact lattice). Default 5. */
   stepsPerWidth?: number;
@@ -79,12 +80,13 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
   let exact = false;
   const nodesAt = (s: number) => (Math.ceil(bw / s) + 1) * (Math.ceil(bh / s) + 1);
   const meanWidth = perimeter > 0 ? (2 * area) / perimeter : Math.min(bw, bh);
-  if (manhattan && g > 0 && nodesAt(g / 2) <= maxNodes) {
+  const exactCap = 16 * maxNodes;
+  if (manhattan && g > 0 && nodesAt(g / 2) <= exactCap) {
     // Any divisor of g/2 keeps the lattice exact; refine to ≥ 40 nodes per mean width so disks centred near
     // junctions are sampled finely enough to cover their neighbours (the self-centred test is strict here).
     // Vertices on a fine dbu grid (g of a few dbu) make this lattice too big: then the general path is used.
     let k = Math.max(1, Math.ceil(g / 2 / (meanWidth / 8)));
-    while (k > 1 && nodesAt(g / 2 / k) > maxNodes) k--;
+    while (k > 1 && nodesAt(g / 2 / k) > exactCap) k--;
     step = g / 2 / k;
     exact = true;
   } else {

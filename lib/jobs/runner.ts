@@ -6,6 +6,7 @@
  * (out of memory, native crash), is marked failed with its message; the server and other jobs carry on.
  * One runner per process, kept on globalThis (Next may load this module in several bundles).
  */
+import { existsSync } from 'node:fs';
 import { rm } from 'node:fs/promises';
 import { availableParallelism } from 'node:os';
 import { MessageChannel } from 'node:worker_threads';
@@ -16,7 +17,7 @@ import type { AnalysisTask, AnalysisTaskResult, WorkerMessage } from '@/lib/pipe
 import { isTerminal, publishJobEvent } from './events';
 import { analysisRelDir, resolveData } from './paths';
 import { saveResultRows } from './save-results';
-import { workerFile } from './worker-file';
+import { forgetWorkerFile, workerFile } from './worker-file';
 
 /** How long a cancelled job may take to reach a check point before its thread is terminated. */
 const CANCEL_GRACE_MS = 5_000;
@@ -47,9 +48,19 @@ class JobRunner {
   private pumpAgain = false;
   readonly concurrency = jobConcurrency();
 
+  private poolFile = '';
+
   private async getPool(): Promise<Piscina<AnalysisTask, AnalysisTaskResult>> {
+    // A rebuild of .next while the server runs removes the compiled worker: compile it again and start a new
+    // pool for new jobs (the old one finishes its running tasks, then closes).
+    if (this.pool && !existsSync(/*turbopackIgnore: true*/ this.poolFile)) {
+      void this.pool.close().catch(() => undefined);
+      this.pool = null;
+      forgetWorkerFile();
+    }
     if (this.pool) return this.pool;
     const filename = await workerFile();
+    this.poolFile = filename;
     const memoryMb = Number(process.env.TRENCHANT_JOB_MEMORY_MB);
     this.pool ??= new Piscina<AnalysisTask, AnalysisTaskResult>({
       filename,

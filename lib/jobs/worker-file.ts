@@ -64,3 +64,8 @@ export function workerFile(): Promise<string> {
   holder.__trenchantWorkerFile.catch(() => (holder.__trenchantWorkerFile = undefined));
   return holder.__trenchantWorkerFile;
 }
+
+/** Drop the cached path so the next workerFile() checks (and if needed rebuilds) again. */
+export function forgetWorkerFile(): void {
+  holder.__trenchantWorkerFile = undefined;
+}

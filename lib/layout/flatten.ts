@@ -83,8 +83,14 @@ export function flattenLibrary(lib: GdsLibrary, opts: FlattenOptions = {}): Flat
       const npts = s.coords.length >> 1;
       const dst = o.set.coords;
       const offs = o.set.offsets;
-      if (!rev) {
-        for (let k = 0; k < np; k++) offs[o.poly + k] = o.pt + (starts[k] as number);
+      if (a === 1 && b === 0 && c === 0 && d === 1 && tx === 0 && ty === 0) {
+        // Identity (the top cell's own shapes): a straight copy.
+        const base = o.pt;
+        for (let k = 0; k < np; k++) offs[o.poly + k] = base + (starts[k] as number);
+        dst.set(src.subarray(0, 2 * npts), 2 * base);
+      } else if (!rev) {
+        const base = o.pt;
+        for (let k = 0; k < np; k++) offs[o.poly + k] = base + (starts[k] as number);
         let w = 2 * o.pt;
         for (let k = 0; k < 2 * npts; k += 2) {
           const x = src[k] as number;

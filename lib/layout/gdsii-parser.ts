@@ -8,7 +8,7 @@ import { LayoutReadError } from './errors';
 import { DataType, LAST_RECORD_TYPE, Rec, recordName } from './gdsii-records';
 import { decodeReal8 } from './real8';
 import { GrowF64 } from './grow-buffer';
-import { appendRing, layerKey, newCell, shapesFor, type CellDef, type GdsLibrary } from './library';
+import { appendRing, layerKey, newCell, shapesFor, type CellDef, type CellShapes, type GdsLibrary } from './library';
 import { pathOutline } from './path-outline';
 
 /** Parser states (plain numbers; the style guide avoids TS enums). */
@@ -35,6 +35,15 @@ interface ElementState {
   text: string;
   xy: GrowF64;
   hasXy: boolean;
+}
+
+function i16(b: Uint8Array, q: number, k: number): number {
+  return (((b[q + 2 * k] as number) << 24) | ((b[q + 2 * k + 1] as number) << 16)) >> 16;
+}
+
+function i32(b: Uint8Array, q: number, k: number): number {
+  const i = q + 4 * k;
+  return ((b[i] as number) << 24) | ((b[i + 1] as number) << 16) | ((b[i + 2] as number) << 8) | (b[i + 3] as number);
 }
 
 function hex(b: Uint8Array, from: number, n: number): string {
@@ -153,8 +162,6 @@ export class GdsiiParser {
       this.fail('unknown-record', `unknown record type 0x${type.toString(16).toUpperCase().padStart(2, '0')} at byte ${at}`, at);
     }
     if (dt > DataType.ascii) this.fail('bad-record', `${recordName(type)} record at byte ${at} has invalid data type ${dt}`, at);
-    const i16 = (k: number) => (((b[q + 2 * k] as number) << 24) | ((b[q + 2 * k + 1] as number) << 16)) >> 16;
-    const i32 = (k: number) => ((b[q + 4 * k] as number) << 24) | ((b[q + 4 * k + 1] as number) << 16) | ((b[q + 4 * k + 2] as number) << 8) | (b[q + 4 * k + 3] as number);
 
     switch (this.state) {
       case State.Header:
@@ -215,7 +222,7 @@ export class GdsiiParser {
         }
         return; // STRCLASS, PROPATTR...: skipped
       case State.Element:
-        this.elementRecord(type, dt, b, q, n, at, i16, i32);
+        this.elementRecord(type, dt, b, q, n, at);
         return;
       case State.Done:
         return;
@@ -241,28 +248,28 @@ export class GdsiiParser {
     this.state = State.Element;
   }
 
-  private elementRecord(type: number, dt: number, b: Uint8Array, q: number, n: number, at: number, i16: (k: number) => number, i32: (k: number) => number): void {
+  private elementRecord(type: number, dt: number, b: Uint8Array, q: number, n: number, at: number): void {
     const e = this.el;
     switch (type) {
-      case Rec.LAYER: this.expect(type, dt, DataType.int16, n, 2, at); e.layer = i16(0); return;
+      case Rec.LAYER: this.expect(type, dt, DataType.int16, n, 2, at); e.layer = i16(b, q, 0); return;
       case Rec.DATATYPE: case Rec.TEXTTYPE: case Rec.BOXTYPE: case Rec.NODETYPE:
-        this.expect(type, dt, DataType.int16, n, 2, at); e.datatype = i16(0); return;
-      case Rec.WIDTH: this.expect(type, dt, DataType.int32, n, 4, at); e.width = i32(0); return;
-      case Rec.PATHTYPE: this.expect(type, dt, DataType.int16, n, 2, at); e.pathtype = i16(0); return;
-      case Rec.BGNEXTN: this.expect(type, dt, DataType.int32, n, 4, at); e.bgnExt = i32(0); return;
-      case Rec.ENDEXTN: this.expect(type, dt, DataType.int32, n, 4, at); e.endExt = i32(0); return;
+        this.expect(type, dt, DataType.int16, n, 2, at); e.datatype = i16(b, q, 0); return;
+      case Rec.WIDTH: this.expect(type, dt, DataType.int32, n, 4, at); e.width = i32(b, q, 0); return;
+      case Rec.PATHTYPE: this.expect(type, dt, DataType.int16, n, 2, at); e.pathtype = i16(b, q, 0); return;
+      case Rec.BGNEXTN: this.expect(type, dt, DataType.int32, n, 4, at); e.bgnExt = i32(b, q, 0); return;
+      case Rec.ENDEXTN: this.expect(type, dt, DataType.int32, n, 4, at); e.endExt = i32(b, q, 0); return;
       case Rec.SNAME: this.expect(type, dt, DataType.ascii, n, 1, at); e.sname = this.ascii(b, q, n); e.snameOffset = at; return;
-      case Rec.STRANS: this.expect(type, dt, DataType.bits, n, 2, at); e.strans = i16(0) & 0xffff; return;
+      case Rec.STRANS: this.expect(type, dt, DataType.bits, n, 2, at); e.strans = i16(b, q, 0) & 0xffff; return;
       case Rec.MAG: this.expect(type, dt, DataType.real8, n, 8, at); e.mag = decodeReal8(b, q); return;
       case Rec.ANGLE: this.expect(type, dt, DataType.real8, n, 8, at); e.angle = decodeReal8(b, q); return;
-      case Rec.COLROW: this.expect(type, dt, DataType.int16, n, 4, at); e.cols = i16(0); e.rows = i16(1); return;
+      case Rec.COLROW: this.expect(type, dt, DataType.int16, n, 4, at); e.cols = i16(b, q, 0); e.rows = i16(b, q, 1); return;
       case Rec.STRING: this.expect(type, dt, DataType.ascii, n, 0, at); e.text = this.ascii(b, q, n); return;
       case Rec.XY: {
         this.expect(type, dt, DataType.int32, n, 8, at);
         if (n % 8 !== 0) this.fail('bad-record', `XY record at byte ${at} has ${n} payload bytes, not a whole number of points`, at);
         const d = e.xy.reserve(n >> 2);
         let k = e.xy.length;
-        for (let i = 0; i < n >> 2; i++) d[k++] = i32(i);
+        for (let i = q, end = q + n; i < end; i += 4) d[k++] = ((b[i] as number) << 24) | ((b[i + 1] as number) << 16) | ((b[i + 2] as number) << 8) | (b[i + 3] as number);
         e.xy.length = k;
         e.hasXy = true;
         return;
@@ -277,29 +284,39 @@ export class GdsiiParser {
     }
   }
 
+  private lastShapes: CellShapes | null = null;
+  private lastCell: CellDef | null = null;
+
+  /** Shapes of `cell` on layer/datatype; consecutive elements on one layer skip the map lookup. */
+  private shapesOf(cell: CellDef, layer: number, datatype: number): CellShapes {
+    const last = this.lastShapes;
+    if (last && this.lastCell === cell && last.layer === layer && last.datatype === datatype) return last;
+    this.lastCell = cell;
+    return (this.lastShapes = shapesFor(cell, layer, datatype));
+  }
+
   private endElement(): void {
     const e = this.el;
     const cell = this.cell as CellDef;
-    const what = `${recordName(e.kind)} element at byte ${e.offset}`;
     cell.elementCount++;
     if (e.kind === Rec.NODE) return; // electrical nodes have no mask geometry
-    if (!e.hasXy) this.fail('missing-xy', `${what} has no XY record`, e.offset);
+    if (!e.hasXy) this.fail('missing-xy', `${recordName(e.kind)} element at byte ${e.offset} has no XY record`, e.offset);
     const xy = e.xy.data;
     const pts = e.xy.length >> 1;
     const needLayer = e.kind === Rec.BOUNDARY || e.kind === Rec.PATH || e.kind === Rec.BOX || e.kind === Rec.TEXT;
-    if (needLayer && e.layer < 0) this.fail('bad-record', `${what} has no LAYER record`, e.offset);
+    if (needLayer && e.layer < 0) this.fail('bad-record', `${recordName(e.kind)} element at byte ${e.offset} has no LAYER record`, e.offset);
     switch (e.kind) {
       case Rec.BOUNDARY:
       case Rec.BOX: {
         let m = pts;
         if (m > 1 && xy[0] === xy[2 * m - 2] && xy[1] === xy[2 * m - 1]) m--;
-        if (m < 3) this.fail('bad-record', `${what} has ${pts} points; a closed polygon needs at least 4`, e.offset);
-        appendRing(shapesFor(cell, e.layer, e.datatype), xy, 0, 2 * m);
+        if (m < 3) this.fail('bad-record', `${recordName(e.kind)} element at byte ${e.offset} has ${pts} points; a closed polygon needs at least 4`, e.offset);
+        appendRing(this.shapesOf(cell, e.layer, e.datatype), xy, 0, 2 * m);
         return;
       }
       case Rec.PATH: {
         if (e.pathtype !== 0 && e.pathtype !== 1 && e.pathtype !== 2 && e.pathtype !== 4) {
-          this.fail('bad-record', `${what} has unsupported PATHTYPE ${e.pathtype} (0, 1, 2 or 4 expected)`, e.offset);
+          this.fail('bad-record', `${recordName(e.kind)} element at byte ${e.offset} has unsupported PATHTYPE ${e.pathtype} (0, 1, 2 or 4 expected)`, e.offset);
         }
         const spec = { halfWidth: Math.abs(e.width) / 2, pathtype: e.pathtype, bgnExt: e.bgnExt, endExt: e.endExt };
         const out = this.scratch;
@@ -319,10 +336,10 @@ export class GdsiiParser {
       case Rec.SREF:
       case Rec.AREF: {
         const isA = e.kind === Rec.AREF;
-        if (e.sname === null) this.fail('bad-record', `${what} has no SNAME record`, e.offset);
-        if (pts < (isA ? 3 : 1)) this.fail('bad-record', `${what} has ${pts} XY points, ${isA ? 3 : 1} needed`, e.offset);
-        if (isA && (e.cols < 1 || e.rows < 1)) this.fail('bad-record', `${what} has COLROW ${e.cols}×${e.rows}; both must be at least 1`, e.offset);
-        if (!(e.mag > 0) || !Number.isFinite(e.mag) || !Number.isFinite(e.angle)) this.fail('bad-record', `${what} has MAG ${e.mag} and ANGLE ${e.angle}; MAG must be positive and both finite`, e.offset);
+        if (e.sname === null) this.fail('bad-record', `${recordName(e.kind)} element at byte ${e.offset} has no SNAME record`, e.offset);
+        if (pts < (isA ? 3 : 1)) this.fail('bad-record', `${recordName(e.kind)} element at byte ${e.offset} has ${pts} XY points, ${isA ? 3 : 1} needed`, e.offset);
+        if (isA && (e.cols < 1 || e.rows < 1)) this.fail('bad-record', `${recordName(e.kind)} element at byte ${e.offset} has COLROW ${e.cols}×${e.rows}; both must be at least 1`, e.offset);
+        if (!(e.mag > 0) || !Number.isFinite(e.mag) || !Number.isFinite(e.angle)) this.fail('bad-record', `${recordName(e.kind)} element at byte ${e.offset} has MAG ${e.mag} and ANGLE ${e.angle}; MAG must be positive and both finite`, e.offset);
         const x = xy[0] as number;
         const y = xy[1] as number;
         const cols = isA ? e.cols : 1;

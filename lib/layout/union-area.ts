@@ -70,31 +70,26 @@ function clippedRingArea(path: ClipperLib.Path, side: number, scratch: Scratch):
 const GROUP = 32;
 
 /**
- * Nonzero union of `paths`, merged in groups of GROUP and then the groups' results again, until one remains.
+ * Nonzero union of `paths`: groups of GROUP are united, then the results pairwise, until one remains.
  * Heavily overlapping input (stacked array instances) shrinks at every level, which keeps clipper's sweep small;
  * a single union of thousands of stacked polygons is many times slower.
  */
 function groupedUnion(clipper: ClipperLib.Clipper, paths: ClipperLib.Paths): ClipperLib.Paths {
-  let level: ClipperLib.Paths[] = [];
-  for (let k = 0; k < paths.length; k += GROUP) level.push(paths.slice(k, k + GROUP));
+  if (paths.length === 0) return [];
+  let parts: ClipperLib.Paths[] = [];
+  for (let k = 0; k < paths.length; k += GROUP) parts.push(paths.slice(k, k + GROUP));
+  // Pairwise merge tree: the number of parts halves every round, so this ends after log2(n / GROUP) rounds.
   for (;;) {
-    if (level.length === 0) return []; // everything had zero area
-    const next: ClipperLib.Paths[] = [];
-    let group: ClipperLib.Paths = [];
-    for (const part of level) {
+    const outs = parts.map((part) => {
       clipper.Clear();
       const out: ClipperLib.Paths = [];
       clipper.AddPaths(part, ClipperLib.PolyType.ptSubject, true);
       clipper.Execute(ClipperLib.ClipType.ctUnion, out, ClipperLib.PolyFillType.pftNonZero, ClipperLib.PolyFillType.pftNonZero);
-      if (level.length === 1) return out;
-      group = group.concat(out);
-      if (group.length >= GROUP) {
-        next.push(group);
-        group = [];
-      }
-    }
-    if (group.length > 0) next.push(group);
-    level = next;
+      return out;
+    });
+    if (outs.length === 1) return outs[0] as ClipperLib.Paths;
+    parts = [];
+    for (let k = 0; k < outs.length; k += 2) parts.push((outs[k] as ClipperLib.Paths).concat(outs[k + 1] ?? []));
   }
 }
 

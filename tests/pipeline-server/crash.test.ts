@@ -3,12 +3,11 @@
  * next job runs. The worker is swapped for a test double (fixtures/crashing-worker.mjs) through
  * TRENCHANT_WORKER_FILE; unmarked jobs go to the real compiled worker.
  */
-import { execFileSync } from 'node:child_process';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { TestClient } from '../support/http';
-import { PROJECT_ROOT, startTestServer, type TestServer } from '../support/server';
+import { startTestServer, type TestServer } from '../support/server';
 import { signInAs, startAnalysis, TEST_MODEL, trenchLayoutGds, uploadRevision, waitFor } from './support';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
@@ -20,7 +19,6 @@ describe('a crashing job', () => {
   const settings = (windowUm: number) => ({ etchLayers: [{ layer: 5, datatype: 0 }], densityWindows: [{ windowUm, stepUm: windowUm / 2 }] });
 
   beforeAll(async () => {
-    execFileSync(process.execPath, [path.join(PROJECT_ROOT, 'scripts', 'build-worker.mjs')], { cwd: PROJECT_ROOT });
     server = await startTestServer({ env: { TRENCHANT_WORKER_FILE: path.join(here, 'fixtures', 'crashing-worker.mjs'), TRENCHANT_JOB_CONCURRENCY: '1' } });
     designer = await signInAs(server.baseUrl, 'designer');
     revisionId = (await uploadRevision(designer, trenchLayoutGds(), 'crash test')).id;

@@ -54,8 +54,7 @@ export default async function ApiDocsPage() {
           </div>
           <pre className="self-start overflow-x-auto rounded-md bg-ink-900 p-4 font-mono text-xs leading-relaxed text-wafer-50" aria-label="Example request">
             <span className="text-ink-300"># list the projects the token reaches</span>
-            {'\n'}curl -H &quot;Authorization: Bearer $TRENCHANT_TOKEN&quot; \{'\n'}
-            {`     ${base}${API_BASE_PATH}/projects`}
+            {`\ncurl -H "Authorization: Bearer $TRENCHANT_TOKEN" \\\n     ${base}${API_BASE_PATH}/projects`}
           </pre>
         </div>
       </Card>

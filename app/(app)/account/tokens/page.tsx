@@ -40,8 +40,7 @@ export default async function ApiTokensPage() {
           </div>
           <pre className="self-start overflow-x-auto rounded-md bg-ink-900 p-4 font-mono text-xs leading-relaxed text-wafer-50" aria-label="Example request">
             <span className="text-ink-300"># who am I, and which team does the token reach?</span>
-            {'\n'}curl -H &quot;Authorization: Bearer $TRENCHANT_TOKEN&quot; \{'\n'}
-            {'     '}{base}/api/v1/me
+            {`\ncurl -H "Authorization: Bearer $TRENCHANT_TOKEN" \\\n     ${base}/api/v1/me`}
           </pre>
         </div>
       </Card>
