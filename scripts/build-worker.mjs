@@ -1,9 +1,9 @@
 // Compiles the analysis worker (lib/pipeline/worker.ts and everything it imports) into one ES module that worker
-// threads can load under `next start`, where Next's bundle has no separate worker file. Run by `npm run build`
-// after `next build` (which empties .next), and by the server itself (lib/jobs/worker-file.ts) when the file is
-// missing or older than its sources, so `next build` alone, the test helper and `next dev` work too.
+// threads can load under `next start`, where Next's bundle has no separate worker file. Run by `npm run build`,
+// and by the server itself (lib/jobs/worker-file.ts) when the file is missing or older than its sources, so
+// `next build` alone, the test helper and `next dev` work too. Kept out of .next, which `next build` empties.
 // Writes to a temporary name and renames, so concurrent builders and running pools never see half a file.
-// Output: .next/trenchant/analysis-worker.mjs + analysis-worker.mjs.inputs.json (source files, for staleness).
+// Output: node_modules/.cache/trenchant/analysis-worker.mjs + analysis-worker.mjs.inputs.json (source files, for staleness).
 import { createRequire } from 'node:module';
 import { mkdirSync, renameSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
@@ -11,7 +11,7 @@ import { fileURLToPath } from 'node:url';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const ENTRY = 'lib/pipeline/worker.ts';
-const OUT = path.join(root, '.next', 'trenchant', 'analysis-worker.mjs');
+const OUT = path.join(root, 'node_modules', '.cache', 'trenchant', 'analysis-worker.mjs');
 
 const t0 = Date.now();
 const esbuild = createRequire(path.join(root, 'package.json'))('esbuild');

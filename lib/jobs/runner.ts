@@ -30,7 +30,7 @@ export function jobConcurrency(): number {
   return Math.max(1, Math.floor(availableParallelism() / 2));
 }
 
-type RunningJob = { analysisId: string; controller: AbortController; port: MessagePort | null; cancelRequested: boolean };
+type RunningJob = { analysisId: string; controller: AbortController; port: MessagePort | null; cancelRequested: boolean; started: boolean; crash: string | null };
 type MessagePort = import('node:worker_threads').MessagePort;
 
 type ClaimedRow = {
@@ -51,8 +51,8 @@ class JobRunner {
   private poolFile = '';
 
   private async getPool(): Promise<Piscina<AnalysisTask, AnalysisTaskResult>> {
-    // A rebuild of .next while the server runs removes the compiled worker: compile it again and start a new
-    // pool for new jobs (the old one finishes its running tasks, then closes).
+    // If the compiled worker was removed while the server runs, compile it again and start a new pool for new
+    // jobs (the old one finishes its running tasks, then closes).
     if (this.pool && !existsSync(/*turbopackIgnore: true*/ this.poolFile)) {
       void this.pool.close().catch(() => undefined);
       this.pool = null;
@@ -69,8 +69,17 @@ class JobRunner {
       idleTimeout: 60_000,
       ...(Number.isFinite(memoryMb) && memoryMb > 0 ? { resourceLimits: { maxOldGenerationSizeMb: memoryMb } } : {}),
     });
-    // Errors not tied to a task (a thread failing to start) must not become an uncaught exception.
-    this.pool.on('error', (err: unknown) => console.error('[trenchant] analysis worker error:', err));
+    // A thread that fails to start (e.g. the worker file vanished) reports here, not through its task, whose
+    // promise would then never settle: fail the jobs that have not heard from their worker yet.
+    this.pool.on('error', (err: unknown) => {
+      console.error('[trenchant] analysis worker error:', err);
+      const message = err instanceof Error ? err.message : String(err);
+      for (const job of this.running.values()) {
+        if (job.started) continue;
+        job.crash = `The analysis worker could not start: ${oneLine(message)}`;
+        job.controller.abort();
+      }
+    });
     return this.pool;
   }
 
@@ -87,7 +96,7 @@ class JobRunner {
         while (this.running.size < this.concurrency) {
           const row = this.claimNext();
           if (!row) break;
-          const job: RunningJob = { analysisId: row.id, controller: new AbortController(), port: null, cancelRequested: false };
+          const job: RunningJob = { analysisId: row.id, controller: new AbortController(), port: null, cancelRequested: false, started: false, crash: null };
           this.running.set(row.id, job);
           void this.run(job, row).finally(() => {
             this.running.delete(row.id);
@@ -142,6 +151,7 @@ class JobRunner {
       const channel = new MessageChannel();
       job.port = channel.port1;
       channel.port1.on('message', (m: WorkerMessage) => {
+        job.started = true;
         // Last 5 % is kept for saving the results in the database.
         if (m?.type === 'progress' && m.stage !== 'done') progress(m.stage, Math.min(0.95, m.fraction * 0.95));
       });
@@ -177,7 +187,9 @@ class JobRunner {
       this.finish(row.id, 'done', null, { summary: result.summary, resultDir: analysisRelDir(row.id) });
     } catch (err) {
       await rm(outDir, { recursive: true, force: true }).catch(() => undefined);
-      if (job.cancelRequested || job.controller.signal.aborted) {
+      if (job.crash) {
+        this.finish(row.id, 'failed', { code: 'worker-crash', message: job.crash });
+      } else if (job.cancelRequested || job.controller.signal.aborted) {
         this.finish(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled (the worker was stopped).' });
       } else {
         const message = err instanceof Error ? err.message : String(err);

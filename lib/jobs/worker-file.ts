@@ -1,5 +1,5 @@
 /**
- * Locates the compiled analysis worker (scripts/build-worker.mjs → .next/trenchant/analysis-worker.mjs) and builds
+ * Locates the compiled analysis worker (scripts/build-worker.mjs → node_modules/.cache/trenchant/analysis-worker.mjs) and builds
  * it when it is missing or older than its TypeScript sources. The build runs as a child process (esbuild), so
  * nothing here depends on how Next bundled the server. TRENCHANT_WORKER_FILE overrides the path (no build then).
  */
@@ -7,7 +7,8 @@ import { execFile } from 'node:child_process';
 import { existsSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 
-const OUT_REL = path.join('.next', 'trenchant', 'analysis-worker.mjs');
+// Under node_modules/.cache: `next build` empties .next, which would pull the file from under a running server.
+const OUT_REL = path.join('node_modules', '.cache', 'trenchant', 'analysis-worker.mjs');
 const ENTRY_REL = path.join('lib', 'pipeline', 'worker.ts');
 
 function projectRoot(): string {

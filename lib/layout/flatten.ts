@@ -154,6 +154,7 @@ export function flattenLibrary(lib: GdsLibrary, opts: FlattenOptions = {}): Flat
   const fInst: number[] = [];
   const fT: Placement[] = [];
   const fChildT: (Placement | null)[] = [];
+  const scratchT: Placement = { ...IDENTITY };
   emit(top, IDENTITY);
   fCell.push(top); fRef.push(0); fInst.push(0); fT.push(IDENTITY); fChildT.push(null);
   while (fCell.length > 0) {
@@ -182,12 +183,16 @@ export function flattenLibrary(lib: GdsLibrary, opts: FlattenOptions = {}): Flat
       fChildT[f] = shape;
     }
     const leaf = childDef.refs.length === 0;
+    if (leaf) Object.assign(scratchT, shape);
     do {
       const i = inst % ref.cols;
       const j = (inst - i) / ref.cols;
       const ox = ref.x + i * ref.colDx + j * ref.rowDx;
       const oy = ref.y + i * ref.colDy + j * ref.rowDy;
-      const t: Placement = { ...shape, tx: p.a * ox + p.b * oy + p.tx, ty: p.c * ox + p.d * oy + p.ty };
+      // Leaf instances reuse one scratch placement; frames pushed on the stack need their own.
+      const t: Placement = leaf ? scratchT : { ...shape };
+      t.tx = p.a * ox + p.b * oy + p.tx;
+      t.ty = p.c * ox + p.d * oy + p.ty;
       inst++;
       emit(child, t);
       if (!leaf) {
