@@ -139,7 +139,7 @@ function View({ analysisId, initial, canCancel }: { analysisId: string; initial:
               </div>
             </div>
             {/* eslint-disable-next-line @next/next/no-img-element -- a generated PNG from the API, not a static asset */}
-            <img src={`/api/v1/analyses/${analysisId}/preview.png?map=${preview}&size=640`} alt={`${preview} map of the die, top = +y`} className="mx-auto max-h-[640px] rounded border border-wafer-200" data-testid="preview" />
+            <img src={`/api/v1/analyses/${analysisId}/preview.png?map=${preview}&size=640`} alt={`${preview} map of the die, top = +y`} width={640} height={640} className="mx-auto aspect-square w-full max-w-[640px] rounded border border-wafer-200 bg-wafer-100 object-contain" data-testid="preview" />
             <p className="mt-2 text-center text-xs text-ink-500">
               {preview === 'risk' ? 'Risk: pale = well inside the limits, amber = within 20 % of a limit, red = at or beyond a limit.' : 'Colour from the map minimum (pale) to maximum (dark).'} North is +y.
             </p>

@@ -29,7 +29,7 @@ const SEVERITY_TONE: Record<string, string> = { error: 'text-fail', warning: 'te
 
 const columns = helper.columns([
   helper.accessor('severity', { header: 'Severity', cell: (c) => <span className={`font-mono text-xs font-semibold ${SEVERITY_TONE[c.getValue()] ?? ''}`}>{c.getValue()}</span> }),
-  helper.accessor('kind', { header: 'Kind', cell: (c) => <span className="font-mono text-xs">{c.getValue()}</span> }),
+  helper.accessor('kind', { header: 'Kind', cell: (c) => <span className="font-mono text-xs whitespace-nowrap">{c.getValue()}</span> }),
   helper.accessor('atUm', { header: 'At (µm)', cell: (c) => <span className="font-mono text-xs whitespace-nowrap">{c.getValue().map((v) => v.toFixed(1)).join(', ')}</span> }),
   helper.accessor('measured', {
     header: 'Measured / limit',

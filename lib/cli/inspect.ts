@@ -83,7 +83,8 @@ export async function run(argv: string[]): Promise<number> {
     try {
       layout = await readLayoutFile(file, values.top !== undefined ? { topCell: values.top } : {});
     } catch (err) {
-      throw new Error(`${file}: ${err instanceof Error ? err.message : String(err)}`);
+      const message = err instanceof Error ? err.message : String(err);
+      throw new Error(message.includes(file) ? message : `${file}: ${message}`);
     }
     const report = inspectReport(layout);
     console.log(values.json ? JSON.stringify(report) : table(report, file));

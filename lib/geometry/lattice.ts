@@ -16,56 +16,96 @@ export interface Lattice {
  * @returns Uint8Array nx·ny, 1 = interior node
  */
 export function latticeInterior(coords: ArrayLike<number>, rings: [number, number][], lat: Lattice): Uint8Array {
-  const edges: number[] = []; // ymin, ymax, xa, ya, xb, yb
+  let total = 0;
+  for (const [s, e] of rings) total += e - s;
+  // Non-horizontal edges as ymin, ymax, xa, ya, xb, yb, sorted by ymin (typed arrays: this runs per feature).
+  const raw = new Float64Array(6 * total);
+  let ne = 0;
   for (const [s, e] of rings) {
     for (let k = s; k < e; k++) {
       const n = k + 1 < e ? k + 1 : s;
       const xa = coords[2 * k] as number, ya = coords[2 * k + 1] as number, xb = coords[2 * n] as number, yb = coords[2 * n + 1] as number;
-      if (ya !== yb) edges.push(Math.min(ya, yb), Math.max(ya, yb), xa, ya, xb, yb);
+      if (ya === yb) continue;
+      const o = 6 * ne++;
+      raw[o] = ya < yb ? ya : yb;
+      raw[o + 1] = ya < yb ? yb : ya;
+      raw[o + 2] = xa;
+      raw[o + 3] = ya;
+      raw[o + 4] = xb;
+      raw[o + 5] = yb;
     }
   }
-  const ne = edges.length / 6;
-  const order = Array.from({ length: ne }, (_, k) => k).sort((a, b) => (edges[6 * a] as number) - (edges[6 * b] as number));
+  const order = new Int32Array(ne);
+  for (let k = 0; k < ne; k++) order[k] = k;
+  order.sort((a, b) => (raw[6 * a] as number) - (raw[6 * b] as number));
   const mask = new Uint8Array(lat.nx * lat.ny);
+  const active = new Int32Array(ne);
+  let nActive = 0;
   let next = 0;
-  let active: number[] = [];
-  const up: number[] = [], lo: number[] = []; // pairs (x, dir)
+  const upX = new Float64Array(ne), upD = new Int8Array(ne), loX = new Float64Array(ne), loD = new Int8Array(ne);
+  const rowUp = new Uint8Array(lat.nx);
   for (let j = 0; j < lat.ny; j++) {
     const y = lat.y0 + j * lat.step;
-    while (next < ne && (edges[6 * (order[next] as number)] as number) <= y) active.push(order[next++] as number);
-    active = active.filter((k) => (edges[6 * k + 1] as number) >= y);
-    up.length = 0;
-    lo.length = 0;
-    for (const k of active) {
-      const ymin = edges[6 * k] as number, ymax = edges[6 * k + 1] as number;
-      const xa = edges[6 * k + 2] as number, ya = edges[6 * k + 3] as number, xb = edges[6 * k + 4] as number, yb = edges[6 * k + 5] as number;
+    while (next < ne && (raw[6 * (order[next] as number)] as number) <= y) active[nActive++] = order[next++] as number;
+    let nu = 0, nl = 0, keep = 0;
+    for (let a = 0; a < nActive; a++) {
+      const k = active[a] as number;
+      const ymin = raw[6 * k] as number, ymax = raw[6 * k + 1] as number;
+      if (ymax < y) continue;
+      active[keep++] = k;
+      const xa = raw[6 * k + 2] as number, ya = raw[6 * k + 3] as number, xb = raw[6 * k + 4] as number, yb = raw[6 * k + 5] as number;
       const x = xa === xb ? xa : xa + ((y - ya) * (xb - xa)) / (yb - ya);
       const dir = yb > ya ? 1 : -1;
-      if (ymin <= y && y < ymax) up.push(x, dir);
-      if (ymin < y && y <= ymax) lo.push(x, dir);
+      if (ymin <= y && y < ymax) {
+        insertSorted(upX, upD, nu++, x, dir);
+      }
+      if (ymin < y && y <= ymax) {
+        insertSorted(loX, loD, nl++, x, dir);
+      }
     }
-    const rowUp = windingRow(up, lat);
-    const rowLo = windingRow(lo, lat);
-    const line = j * lat.nx;
-    for (let i = 0; i < lat.nx; i++) if (rowUp[i] && rowLo[i]) mask[line + i] = 1;
+    nActive = keep;
+    if (nu === 0 || nl === 0) continue;
+    windingRow(upX, upD, nu, lat, rowUp);
+    windingRowAnd(loX, loD, nl, lat, rowUp, mask, j * lat.nx);
   }
   return mask;
 }
 
+/** Insertion into the first n entries kept sorted by x (a handful of crossings per row). */
+function insertSorted(xs: Float64Array, ds: Int8Array, n: number, x: number, d: number): void {
+  let i = n;
+  while (i > 0 && (xs[i - 1] as number) > x) {
+    xs[i] = xs[i - 1] as number;
+    ds[i] = ds[i - 1] as number;
+    i--;
+  }
+  xs[i] = x;
+  ds[i] = d;
+}
+
 /** For one half-row: 1 where the winding left of the node is nonzero and crossings through the node cancel. */
-function windingRow(cross: number[], lat: Lattice): Uint8Array {
-  const out = new Uint8Array(lat.nx);
-  const n = cross.length / 2;
-  if (n === 0) return out;
-  const idx = Array.from({ length: n }, (_, k) => k).sort((a, b) => (cross[2 * a] as number) - (cross[2 * b] as number));
+function windingRow(xs: Float64Array, ds: Int8Array, n: number, lat: Lattice, out: Uint8Array): void {
   let w = 0;
   let c = 0;
   for (let i = 0; i < lat.nx; i++) {
     const x = lat.x0 + i * lat.step;
-    while (c < n && (cross[2 * (idx[c] as number)] as number) < x) w += cross[2 * (idx[c++] as number) + 1] as number;
+    while (c < n && (xs[c] as number) < x) w += ds[c++] as number;
     let through = 0;
-    for (let q = c; q < n && (cross[2 * (idx[q] as number)] as number) === x; q++) through += cross[2 * (idx[q] as number) + 1] as number;
-    if (w !== 0 && through === 0) out[i] = 1;
+    for (let q = c; q < n && (xs[q] as number) === x; q++) through += ds[q] as number;
+    out[i] = w !== 0 && through === 0 ? 1 : 0;
   }
-  return out;
+}
+
+/** Same test on the other half-row, AND-ed with `up` into mask[line + i]. */
+function windingRowAnd(xs: Float64Array, ds: Int8Array, n: number, lat: Lattice, up: Uint8Array, mask: Uint8Array, line: number): void {
+  let w = 0;
+  let c = 0;
+  for (let i = 0; i < lat.nx; i++) {
+    const x = lat.x0 + i * lat.step;
+    while (c < n && (xs[c] as number) < x) w += ds[c++] as number;
+    if (w === 0 || !up[i]) continue;
+    let through = 0;
+    for (let q = c; q < n && (xs[q] as number) === x; q++) through += ds[q] as number;
+    if (through === 0) mask[line + i] = 1;
+  }
 }

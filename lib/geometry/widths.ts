@@ -107,10 +107,11 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
   const sc = smallestSelfCentred(d2, lat.nx, lat.ny, exact ? 0 : 1);
   // Off the exact lattice, polish the narrowest centre on the exact distance within two steps (reaches the ridge
   // of a straight-sided trench, whose lattice nodes sit up to half a step off the centre line).
-  const minW = exact || sc.node < 0 ? sc.width : (2 * polishLocal(coords, rings, lat, sc.node)) / step;
+  const edges = edgeList(coords, rings);
+  const minW = exact || sc.node < 0 ? sc.width : (2 * polishLocal(edges, lat, sc.node)) / step;
   // The largest disk's centre may lie between nodes (e.g. a Manhattan frame corner, where it touches a concave
   // corner): polish the best nodes by pattern search on the exact distance to the rings.
-  const maxD = refineLargestDisk(coords, rings, lat, d2, maxD2);
+  const maxD = refineLargestDisk(edges, lat, d2);
   return { minWidth: Math.min(minW * step, 2 * maxD), maxWidth: 2 * maxD, step, exact };
 }
 
@@ -156,29 +157,51 @@ function smallestSelfCentred(d2: Float64Array, nx: number, ny: number, slack: nu
   return { width: 0, node: -1 };
 }
 
-/** Exact distance from (x, y) to the nearest ring edge (dbu). */
-function distanceToRings(coords: ArrayLike<number>, rings: [number, number][], x: number, y: number): number {
-  let best = Infinity;
+/** Ring edges as flat (ax, ay, dx, dy, |d|²) quintuples, built once per feature for the exact distance queries. */
+function edgeList(coords: ArrayLike<number>, rings: [number, number][]): Float64Array {
+  let total = 0;
+  for (const [s, e] of rings) total += e - s;
+  const out = new Float64Array(5 * total);
+  let o = 0;
   for (const [s, e] of rings) {
     for (let k = s; k < e; k++) {
       const n = k + 1 < e ? k + 1 : s;
       const ax = coords[2 * k] as number, ay = coords[2 * k + 1] as number;
       const dx = (coords[2 * n] as number) - ax, dy = (coords[2 * n + 1] as number) - ay;
-      const l2 = dx * dx + dy * dy;
-      let t = l2 > 0 ? ((x - ax) * dx + (y - ay) * dy) / l2 : 0;
-      t = t < 0 ? 0 : t > 1 ? 1 : t;
-      const d2 = (x - ax - t * dx) ** 2 + (y - ay - t * dy) ** 2;
-      if (d2 < best) best = d2;
+      out[o++] = ax;
+      out[o++] = ay;
+      out[o++] = dx;
+      out[o++] = dy;
+      out[o++] = dx * dx + dy * dy;
     }
+  }
+  return out;
+}
+
+/** Exact distance from (x, y) to the nearest edge of `edges` (edgeList form, dbu). */
+function distanceToEdges(edges: Float64Array, x: number, y: number): number {
+  let best = Infinity;
+  for (let o = 0; o < edges.length; o += 5) {
+    const ax = edges[o] as number, ay = edges[o + 1] as number, dx = edges[o + 2] as number, dy = edges[o + 3] as number;
+    const l2 = edges[o + 4] as number;
+    let t = l2 > 0 ? ((x - ax) * dx + (y - ay) * dy) / l2 : 0;
+    t = t < 0 ? 0 : t > 1 ? 1 : t;
+    const ex = x - ax - t * dx, ey = y - ay - t * dy;
+    const d2 = ex * ex + ey * ey;
+    if (d2 < best) best = d2;
   }
   return Math.sqrt(best);
 }
+
+/** The 16 pattern-search directions (cos, sin of k·π/8). */
+const DIR_X = Float64Array.from({ length: 16 }, (_, k) => Math.cos((k * Math.PI) / 8));
+const DIR_Y = Float64Array.from({ length: 16 }, (_, k) => Math.sin((k * Math.PI) / 8));
 
 /**
  * Radius (dbu) of the largest inscribed disk: the best lattice nodes refined by a 16-direction pattern search
  * with halving steps (moves shorter than the current radius never leave the opening).
  */
-function refineLargestDisk(coords: ArrayLike<number>, rings: [number, number][], lat: Lattice, d2: Float64Array, maxD2: number): number {
+function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64Array): number {
   // The three best nodes (ties broken by position) seed the search.
   const starts: number[] = [];
   for (let q = 0; q < d2.length; q++) {
@@ -191,18 +214,16 @@ function refineLargestDisk(coords: ArrayLike<number>, rings: [number, number][],
   }
   // Lattice D can exceed the true distance off the exact lattice: use exact distances only.
   let best = 0;
-  const dirs: [number, number][] = [];
-  for (let k = 0; k < 16; k++) dirs.push([Math.cos((k * Math.PI) / 8), Math.sin((k * Math.PI) / 8)]);
   for (const q of starts.slice(0, 3)) {
     const i = q % lat.nx, j = (q - i) / lat.nx;
     let x = lat.x0 + i * lat.step, y = lat.y0 + j * lat.step;
-    let d = distanceToRings(coords, rings, x, y);
+    let d = distanceToEdges(edges, x, y);
     let h = lat.step;
     for (let it = 0; it < 120 && h > lat.step * 1e-6; it++) {
       let moved = false;
-      for (const [ux, uy] of dirs) {
-        const nxp = x + ux * h, nyp = y + uy * h;
-        const nd = distanceToRings(coords, rings, nxp, nyp);
+      for (let k = 0; k < 16; k++) {
+        const nxp = x + (DIR_X[k] as number) * h, nyp = y + (DIR_Y[k] as number) * h;
+        const nd = distanceToEdges(edges, nxp, nyp);
         if (nd > d + 1e-12 && h < d) {
           x = nxp;
           y = nyp;
@@ -219,18 +240,18 @@ function refineLargestDisk(coords: ArrayLike<number>, rings: [number, number][],
 }
 
 /** Largest exact distance to the rings within two lattice steps of node q (pattern search, dbu). */
-function polishLocal(coords: ArrayLike<number>, rings: [number, number][], lat: Lattice, q: number): number {
+function polishLocal(edges: Float64Array, lat: Lattice, q: number): number {
   const i = q % lat.nx, j = (q - i) / lat.nx;
   const cx = lat.x0 + i * lat.step, cy = lat.y0 + j * lat.step;
   let x = cx, y = cy;
-  let d = distanceToRings(coords, rings, x, y);
+  let d = distanceToEdges(edges, x, y);
   let h = lat.step / 2;
   for (let it = 0; it < 80 && h > lat.step * 1e-6; it++) {
     let moved = false;
     for (let k = 0; k < 16; k++) {
-      const nxp = x + Math.cos((k * Math.PI) / 8) * h, nyp = y + Math.sin((k * Math.PI) / 8) * h;
+      const nxp = x + (DIR_X[k] as number) * h, nyp = y + (DIR_Y[k] as number) * h;
       if (Math.hypot(nxp - cx, nyp - cy) > 2 * lat.step) continue;
-      const nd = distanceToRings(coords, rings, nxp, nyp);
+      const nd = distanceToEdges(edges, nxp, nyp);
       if (nd > d + 1e-12 && h < d) {
         x = nxp;
         y = nyp;
