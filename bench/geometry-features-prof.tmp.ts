@@ -7,8 +7,10 @@ let t = performance.now();
 const regions = openRegions(set, 0.001, { regionDbu: [0, 0, side, side] });
 console.log('union', ((performance.now() - t) / 1000).toFixed(2), 's pieces', regions.pieceCount);
 t = performance.now();
+const c0 = process.cpuUsage();
 const feats = featuresFromRegions(regions);
-console.log('features', ((performance.now() - t) / 1000).toFixed(2), 's n', feats.length);
+const cu = process.cpuUsage(c0);
+console.log('features', ((performance.now() - t) / 1000).toFixed(2), 's cpu', ((cu.user + cu.system) / 1e6).toFixed(2), 'n', feats.length);
 const kinds: Record<string, number> = {};
 let exact = 0, lat = 0;
 for (const f of feats) { kinds[f.kind] = (kinds[f.kind] ?? 0) + 1; if (f.widthExact) exact++; if (f.widthStepUm > 0) lat++; }

@@ -4,19 +4,36 @@
  * (Gaussian L = 500 µm and 4 mm) → features with widths → feature index. Targets: < 10 s in all, < 2 GB peak.
  * Run: npm run bench, or npx tsx bench/geometry.bench.ts
  */
+import { availableParallelism, loadavg } from 'node:os';
 import { pathToFileURL } from 'node:url';
-import { effectiveDensity, featuresFromRegions, FeatureIndex, openRegions, rasterizeOpenRegions, windowDensity, type Grid } from '../lib/geometry';
+import { Worker } from 'node:worker_threads';
+import { effectiveDensity, featuresFromRegions, FeatureIndex, numberFeatures, openRegions, rasterizeOpenRegions, windowDensity, type Feature, type Grid, type OpenRegions } from '../lib/geometry';
 import { benchLayout } from './geometry-layout';
+
+function shardInWorker(regions: OpenRegions, index: number, count: number): Promise<Feature[]> {
+  return new Promise((resolve, reject) => {
+    const w = new Worker(new URL('./geometry-features.worker.ts', import.meta.url));
+    w.once('message', (features: Feature[]) => {
+      resolve(features);
+      void w.terminate();
+    });
+    w.once('error', reject);
+    w.postMessage({ regions, index, count });
+  });
+}
 
 export default async function geometryBench(): Promise<void> {
   let peak = 0;
   const sample = () => (peak = Math.max(peak, process.memoryUsage().rss));
   const timer = setInterval(sample, 20);
-  const rows: [string, number][] = [];
+  // Wall and CPU (user + system) time per stage: on a shared machine the CPU figure is the steadier one.
+  const rows: [string, number, number][] = [];
   const stage = <T>(name: string, fn: () => T): T => {
     const t0 = performance.now();
+    const c0 = process.cpuUsage();
     const r = fn();
-    rows.push([name, performance.now() - t0]);
+    const cu = process.cpuUsage(c0);
+    rows.push([name, performance.now() - t0, (cu.user + cu.system) / 1000]);
     sample();
     return r;
   };
@@ -29,16 +46,29 @@ export default async function geometryBench(): Promise<void> {
   const w2 = stage('window density 700/70 µm', () => windowDensity(cov, grid, { windowUm: 700, stepUm: 70 }));
   const e1 = stage('effective density L = 500 µm', () => effectiveDensity(cov, grid, { lengthUm: 500 }));
   const e2 = stage('effective density L = 4 mm', () => effectiveDensity(cov, grid, { lengthUm: 4000 }));
-  const feats = stage('features + widths', () => featuresFromRegions(regions));
+  const feats = stage('features + widths (1 thread)', () => featuresFromRegions(regions));
+  // Same stage spread over the machine's cores by the caller (FeatureOptions.shard); includes worker start-up and
+  // copying the regions in and the features back.
+  const t0 = performance.now();
+  const sharded = numberFeatures((await Promise.all(Array.from({ length: 2 }, (_, index) => shardInWorker(regions, index, 2)))).flat());
+  rows.push(['features + widths (2 workers, wall only)', performance.now() - t0, NaN]);
+  if (sharded.length !== feats.length || sharded.some((f, k) => f.minWidthUm !== feats[k]?.minWidthUm || f.maxWidthUm !== feats[k]?.maxWidthUm)) throw new Error('sharded features differ from the single-thread run');
   stage('feature index (rbush)', () => new FeatureIndex(feats));
   clearInterval(timer);
   sample();
-  const counted = rows.slice(1).reduce((s, [, ms]) => s + ms, 0);
+  // Two totals: with the feature stage on one thread, and with it sharded over two workers.
+  const sum = (skip: string, col: 1 | 2) => rows.slice(1).filter((r) => !r[0].startsWith(skip)).reduce((s, r) => s + r[col], 0);
+  const counted = sum('features + widths (2', 1), countedCpu = sum('features + widths (2', 2);
+  const counted2 = sum('features + widths (1', 1);
   const kinds: Record<string, number> = {};
   for (const f of feats) kinds[f.kind] = (kinds[f.kind] ?? 0) + 1;
   console.log(`geometry bench: ${set.count} polygons, ${regions.pieceCount} union pieces, ${feats.length} features ${JSON.stringify(kinds)}`);
-  for (const [name, ms] of rows) console.log(`  ${name.padEnd(40)} ${(ms / 1000).toFixed(2).padStart(7)} s`);
-  console.log(`  ${'total (without generation)'.padEnd(40)} ${(counted / 1000).toFixed(2).padStart(7)} s   target < 10 s`);
+  console.log(`  load average ${loadavg().map((v) => v.toFixed(2)).join(' ')} on ${availableParallelism()} cores`);
+  console.log(`  ${'stage'.padEnd(40)} ${'wall'.padStart(9)} ${'cpu'.padStart(9)}`);
+  const secs = (ms: number) => (Number.isNaN(ms) ? '      –  ' : `${(ms / 1000).toFixed(2).padStart(7)} s`);
+  for (const [name, ms, cpu] of rows) console.log(`  ${name.padEnd(40)} ${secs(ms)} ${secs(cpu)}`);
+  console.log(`  ${'total, features on 1 thread'.padEnd(40)} ${secs(counted)} ${secs(countedCpu)}   target < 10 s (without generation)`);
+  console.log(`  ${'total, features on 2 workers'.padEnd(40)} ${secs(counted2)}`);
   console.log(`  peak RSS ${(peak / 2 ** 20).toFixed(0)} MiB (max RSS ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MiB)   target < 2048 MiB`);
   console.log(`  check: 100/50 ${w1.nx}×${w1.ny} min ${w1.min.toFixed(6)} max ${w1.max.toFixed(6)} mean ${w1.mean.toFixed(6)}; 700/70 ${w2.nx}×${w2.ny} min ${w2.min.toFixed(6)} max ${w2.max.toFixed(6)}; global ${w1.globalDensity.toFixed(6)}`);
   console.log(`  check: effective density centre L=500 ${e1[500 * 1000 + 500]?.toFixed(4)}, L=4mm ${e2[500 * 1000 + 500]?.toFixed(4)}`);

@@ -44,25 +44,36 @@ export function convexInscribedRadius(coords: ArrayLike<number>, s: number, e: n
     const nx = (-dy / len) * orient, ny = (dx / len) * orient;
     lines.push(nx, ny, nx * ax + ny * ay);
   }
+  // Sutherland–Hodgman between two preallocated buffers (this runs 60 times per hole).
+  const cap = 4 * (4 + lines.length / 3) + 8; // a clip adds at most one vertex; margin for float noise
+  let poly = new Float64Array(cap), next = new Float64Array(cap);
   const feasible = (r: number): boolean => {
-    let poly = [x0, y0, x1, y0, x1, y1, x0, y1];
-    for (let l = 0; l < lines.length && poly.length >= 6; l += 3) {
+    poly[0] = x0; poly[1] = y0; poly[2] = x1; poly[3] = y0; poly[4] = x1; poly[5] = y1; poly[6] = x0; poly[7] = y1;
+    let len = 8;
+    for (let l = 0; l < lines.length && len >= 6; l += 3) {
       const nx = lines[l] as number, ny = lines[l + 1] as number, c = (lines[l + 2] as number) + r;
-      const out: number[] = [];
-      const m = poly.length / 2;
-      for (let k = 0; k < m; k++) {
-        const px = poly[2 * k] as number, py = poly[2 * k + 1] as number;
-        const qx = poly[(2 * k + 2) % (2 * m)] as number, qy = poly[(2 * k + 3) % (2 * m)] as number;
+      let o = 0;
+      for (let k = 0; k < len; k += 2) {
+        const px = poly[k] as number, py = poly[k + 1] as number;
+        const k2 = k + 2 < len ? k + 2 : 0;
+        const qx = poly[k2] as number, qy = poly[k2 + 1] as number;
         const dp = nx * px + ny * py - c, dq = nx * qx + ny * qy - c;
-        if (dp >= 0) out.push(px, py);
+        if (dp >= 0) {
+          next[o++] = px;
+          next[o++] = py;
+        }
         if ((dp >= 0) !== (dq >= 0)) {
           const t = dp / (dp - dq);
-          out.push(px + t * (qx - px), py + t * (qy - py));
+          next[o++] = px + t * (qx - px);
+          next[o++] = py + t * (qy - py);
         }
       }
-      poly = out;
+      const tmp = poly;
+      poly = next;
+      next = tmp;
+      len = o;
     }
-    return poly.length >= 6;
+    return len >= 6;
   };
   let lo = 0, hi = Math.min(x1 - x0, y1 - y0) / 2 + 1e-9;
   for (let it = 0; it < 60 && hi - lo > 1e-12 * hi; it++) {

@@ -50,16 +50,35 @@ export function squaredDistanceTransform(inside: ArrayLike<number>, nx: number, 
   const n = Math.max(nx, ny);
   const f = new Float64Array(n), d = new Float64Array(n), z = new Float64Array(n + 1);
   const v = new Int32Array(n);
-  for (let q = 0; q < nx * ny; q++) out[q] = inside[q] ? Infinity : 0;
+  // Along columns the input is binary (0 or ∞), where the parabola envelope reduces to the squared distance to
+  // the nearest background pixel in the column: two linear scans give the same integers.
   for (let i = 0; i < nx; i++) {
-    for (let j = 0; j < ny; j++) f[j] = out[j * nx + i] as number;
-    edt1d(f, ny, d, v, z);
-    for (let j = 0; j < ny; j++) out[j * nx + i] = d[j] as number;
+    let last = -1;
+    for (let j = 0; j < ny; j++) {
+      const q = j * nx + i;
+      if (!inside[q]) {
+        last = j;
+        out[q] = 0;
+      } else out[q] = last < 0 ? Infinity : (j - last) * (j - last);
+    }
+    last = -1;
+    for (let j = ny - 1; j >= 0; j--) {
+      const q = j * nx + i;
+      if (!inside[q]) last = j;
+      else if (last >= 0) {
+        const e = (last - j) * (last - j);
+        if (e < (out[q] as number)) out[q] = e;
+      }
+    }
   }
   for (let j = 0; j < ny; j++) {
-    for (let i = 0; i < nx; i++) f[i] = out[j * nx + i] as number;
+    const line = j * nx;
+    let any = false;
+    for (let i = 0; i < nx; i++) if ((out[line + i] as number) !== 0) { any = true; break; }
+    if (!any) continue; // an all-background row stays 0
+    for (let i = 0; i < nx; i++) f[i] = out[line + i] as number;
     edt1d(f, nx, d, v, z);
-    for (let i = 0; i < nx; i++) out[j * nx + i] = d[i] as number;
+    for (let i = 0; i < nx; i++) out[line + i] = d[i] as number;
   }
   return out;
 }

@@ -16,7 +16,7 @@ import type { PolygonSet } from '../layout/types';
 import { openRegions, type OpenRegions } from './open-regions';
 import { ringArea, ringMoments, ringPerimeter } from './ring';
 import type { Box, Feature, FeatureKind, Polarity } from './types';
-import { featureWidths, type WidthOptions } from './widths';
+import { featureWidths, type WidthCache, type WidthOptions } from './widths';
 
 export interface FeatureOptions extends WidthOptions {
   polarity?: Polarity;
@@ -25,6 +25,11 @@ export interface FeatureOptions extends WidthOptions {
   openFieldWidthUm?: number;
   trenchAspect?: number;
   tileDbu?: number;
+  /**
+   * Measure only the features whose root piece index ≡ index (mod count), so callers can spread the work over
+   * workers (each given the same `OpenRegions`) and merge the parts with `numberFeatures`. Default: all.
+   */
+  shard?: { index: number; count: number };
 }
 
 function find(parent: Uint32Array, a: number): number {
@@ -57,27 +62,29 @@ export function featuresFromRegions(regions: OpenRegions, opts: FeatureOptions =
     const a = find(parent, regions.seamA[s] as number), b = find(parent, regions.seamB[s] as number);
     if (a !== b) parent[Math.max(a, b)] = Math.min(a, b);
   }
-  const seamByRoot = new Map<number, number>();
-  for (let s = 0; s < regions.seamA.length; s++) {
-    const r = find(parent, regions.seamA[s] as number);
-    seamByRoot.set(r, (seamByRoot.get(r) ?? 0) + (regions.seamLen[s] as number));
-  }
-  // Group pieces by root (pieces are in tile order; roots are the smallest piece index).
-  const members = new Map<number, number[]>();
-  for (let p = 0; p < n; p++) {
-    const r = find(parent, p);
-    let list = members.get(r);
-    if (!list) members.set(r, (list = []));
-    list.push(p);
-  }
+  // Seam length per root, then pieces grouped by root with a counting sort (typed arrays: ~10⁶ features).
+  const seamSum = new Float64Array(n);
+  for (let s = 0; s < regions.seamA.length; s++) seamSum[find(parent, regions.seamA[s] as number)]! += regions.seamLen[s] as number;
+  const start = new Uint32Array(n + 1);
+  for (let p = 0; p < n; p++) start[find(parent, p) + 1]!++;
+  for (let p = 0; p < n; p++) start[p + 1]! += start[p] as number;
+  const fill = start.slice(0, n);
+  const order = new Uint32Array(n);
+  for (let p = 0; p < n; p++) order[fill[find(parent, p)]!++] = p;
   const u = regions.dbuUm;
   const c = regions.coords;
   const out: Feature[] = [];
-  for (const [root, pieces] of members) {
+  const cache: WidthCache = new Map();
+  // Roots in increasing piece order (a root is the smallest piece index of its group).
+  const shardCount = opts.shard?.count ?? 1, shardIndex = opts.shard?.index ?? 0;
+  for (let root = 0; root < n; root++) {
+    const g0 = start[root] as number, g1 = start[root + 1] as number;
+    if (g1 === g0 || root % shardCount !== shardIndex) continue;
     let area = 0, perim = 0, mx = 0, my = 0;
     const bbox: Box = [Infinity, Infinity, -Infinity, -Infinity];
     const rings: [number, number][] = [];
-    for (const p of pieces) {
+    for (let g = g0; g < g1; g++) {
+      const p = order[g] as number;
       for (let r = regions.pieceRings[p] as number; r < (regions.pieceRings[p + 1] as number); r++) {
         const s = regions.ringOffsets[r] as number, e = regions.ringOffsets[r + 1] as number;
         rings.push([s, e]);
@@ -95,10 +102,11 @@ export function featuresFromRegions(regions: OpenRegions, opts: FeatureOptions =
         }
       }
     }
+    const pieceCount = g1 - g0;
     if (area <= 0) continue;
-    perim -= 2 * (seamByRoot.get(root) ?? 0);
+    perim -= 2 * (seamSum[root] as number);
     // Pieces cut by tile lines are merged first: the exact-distance refinements must not see tile seams.
-    const w = pieces.length > 1 ? featureWidths(...mergePieces(c, rings), bbox, area, perim, opts) : featureWidths(c, rings, bbox, area, perim, opts);
+    const w = pieceCount > 1 && !isBoxFilled(c, rings, bbox, area) ? featureWidths(...mergePieces(c, rings), bbox, area, perim, opts, cache) : featureWidths(c, rings, bbox, area, perim, opts, cache);
     const areaUm2 = area * u * u;
     const minWidthUm = w.minWidth * u, maxWidthUm = w.maxWidth * u;
     const lengthUm = Math.max(minWidthUm > 0 ? areaUm2 / minWidthUm : 0, Math.max(bbox[2] - bbox[0], bbox[3] - bbox[1]) * u);
@@ -114,15 +122,39 @@ export function featuresFromRegions(regions: OpenRegions, opts: FeatureOptions =
       lengthUm,
       widthStepUm: w.step * u,
       widthExact: w.exact,
-      pieces: pieces.length,
+      pieces: pieceCount,
     };
     f.kind = classifyFeature(f, opts);
     out.push(f);
   }
-  // Stable ids: by bbox lower edge, then left edge (reading order from the bottom of the layout).
-  out.sort((a, b) => a.bboxUm[1] - b.bboxUm[1] || a.bboxUm[0] - b.bboxUm[0] || a.centroidUm[0] - b.centroidUm[0]);
-  out.forEach((f, k) => (f.id = k + 1));
-  return out;
+  return numberFeatures(out);
+}
+
+/**
+ * Sort features into id order and number them from 1: by bbox lower edge, then left edge, then centroid x
+ * (reading order from the bottom of the layout). Also merges shards: `numberFeatures([...a, ...b])`.
+ * Mutates each feature's id; returns a new array.
+ */
+export function numberFeatures(out: readonly Feature[]): Feature[] {
+  // Keys in typed arrays and a stable index sort (ties keep extraction order, as Array.prototype.sort would).
+  const m = out.length;
+  const ky = new Float64Array(m), kx = new Float64Array(m), kc = new Float64Array(m);
+  for (let k = 0; k < m; k++) {
+    const f = out[k] as Feature;
+    ky[k] = f.bboxUm[1];
+    kx[k] = f.bboxUm[0];
+    kc[k] = f.centroidUm[0];
+  }
+  const idx = new Uint32Array(m);
+  for (let k = 0; k < m; k++) idx[k] = k;
+  idx.sort((a, b) => (ky[a] as number) - (ky[b] as number) || (kx[a] as number) - (kx[b] as number) || (kc[a] as number) - (kc[b] as number) || a - b);
+  const sorted: Feature[] = new Array<Feature>(m);
+  for (let k = 0; k < m; k++) {
+    const f = out[idx[k] as number] as Feature;
+    f.id = k + 1;
+    sorted[k] = f;
+  }
+  return sorted;
 }
 
 /**
@@ -131,6 +163,19 @@ export function featuresFromRegions(regions: OpenRegions, opts: FeatureOptions =
  */
 export function extractFeatures(set: PolygonSet, dbuUm: number, opts: FeatureOptions = {}): Feature[] {
   return featuresFromRegions(openRegions(set, dbuUm, { polarity: opts.polarity, regionDbu: opts.regionDbu, tileDbu: opts.tileDbu }), opts);
+}
+
+/** An axis-aligned rectangle cut into tile pieces: every edge axis-aligned and the area fills the bbox (no merge needed). */
+function isBoxFilled(c: Float64Array, rings: [number, number][], bbox: Box, area: number): boolean {
+  const full = (bbox[2] - bbox[0]) * (bbox[3] - bbox[1]);
+  if (Math.abs(area - full) > 1e-9 * full) return false;
+  for (const [s, e] of rings) {
+    for (let k = s; k < e; k++) {
+      const n = k + 1 < e ? k + 1 : s;
+      if (c[2 * k] !== c[2 * n] && c[2 * k + 1] !== c[2 * n + 1]) return false;
+    }
+  }
+  return true;
 }
 
 /** Union of a feature's tile pieces (clipper, integer dbu; the pieces only abut, so no new vertices arise). */

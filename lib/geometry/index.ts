@@ -7,8 +7,8 @@ export { windowDensity, summedAreaTable, windowCount, type WindowDensityOptions 
 export { effectiveDensity, convolve2d, densityKernel, reflectIndex, erf, KERNEL_RADIUS_IN_L, MIN_L_PIXELS, type EffectiveDensityOptions, type KernelShape } from './convolve';
 export { squaredDistanceTransform, thicknessTransform } from './distance';
 export { latticeInterior, type Lattice } from './lattice';
-export { featureWidths, type WidthOptions, type WidthResult } from './widths';
-export { extractFeatures, featuresFromRegions, classifyFeature, type FeatureOptions } from './features';
+export { featureWidths, shapeKey, type WidthCache, type WidthOptions, type WidthResult } from './widths';
+export { extractFeatures, featuresFromRegions, classifyFeature, numberFeatures, type FeatureOptions } from './features';
 export { localWidthMap, localWidthFromCoverage } from './local-width';
 export { FeatureIndex } from './feature-index';
 export { gridForBox, alignedPixelUm, lengthGcd } from './grid';

@@ -64,7 +64,9 @@ export function setBbox(set: PolygonSet): Box | null {
 }
 
 class Builder {
-  coords: number[] = [];
+  /** Ring points (growable typed buffer: pushing ~10⁷ numbers into a JS array dominated the union). */
+  coords = new Float64Array(1 << 16);
+  coordLen = 0;
   ringOffsets: number[] = [0];
   pieceRings: number[] = [0];
   seamA: number[] = [];
@@ -77,8 +79,16 @@ class Builder {
   lines = new Map<string, number[]>();
 
   addRing(xy: ArrayLike<number>, start: number, end: number): void {
-    for (let k = start; k < end; k++) this.coords.push(xy[k] as number);
-    this.ringOffsets.push(this.coords.length / 2);
+    if (this.coordLen + (end - start) > this.coords.length) {
+      const grown = new Float64Array(Math.max(2 * this.coords.length, this.coordLen + (end - start)));
+      grown.set(this.coords.subarray(0, this.coordLen));
+      this.coords = grown;
+    }
+    if (xy instanceof Float64Array) {
+      this.coords.set(xy.subarray(start, end), this.coordLen);
+      this.coordLen += end - start;
+    } else for (let k = start; k < end; k++) this.coords[this.coordLen++] = xy[k] as number;
+    this.ringOffsets.push(this.coordLen / 2);
   }
   endPiece(coverage = 1): number {
     this.pieceRings.push(this.ringOffsets.length - 1);
@@ -121,7 +131,10 @@ export function openRegions(set: PolygonSet, dbuUm: number, opts: OpenRegionsOpt
       if (y < y0) y0 = y;
       if (y > y1) y1 = y;
     }
-    polyBox.set([x0, y0, x1, y1], 4 * p);
+    polyBox[4 * p] = x0;
+    polyBox[4 * p + 1] = y0;
+    polyBox[4 * p + 2] = x1;
+    polyBox[4 * p + 3] = y1;
     forEachTile(p, (t) => { counts[t + 1]!++; });
   }
   for (let t = 0; t < ntx * nty; t++) counts[t + 1]! += counts[t] as number;
@@ -145,7 +158,7 @@ function finish(b: Builder, dbuUm: number, region: Box, tile: number): OpenRegio
   return {
     dbuUm,
     regionDbu: region,
-    coords: Float64Array.from(b.coords),
+    coords: b.coords.slice(0, b.coordLen),
     ringOffsets: Uint32Array.from(b.ringOffsets),
     ringCount: b.ringOffsets.length - 1,
     pieceRings: Uint32Array.from(b.pieceRings),
@@ -193,10 +206,16 @@ function processTile(set: PolygonSet, polyBox: Float64Array, members: Uint32Arra
         }
       }
     }
+    // Isolated polygons need no boolean: a rectangle is clipped to the tile directly (exact on integers), a
+    // simple convex polygon strictly inside passes through. Only overlapping clusters go to clipper.
     clipperSet = [];
     for (let a = 0; a < order.length; a++) {
       const p = order[a] as number;
-      if (!touched[a] && inside(p) && isRect(set, p)) emitRect(set, p, b);
+      if (touched[a]) clipperSet.push(p);
+      else if (isRect(set, p)) {
+        if (inside(p)) emitRect(set, p, b);
+        else emitClippedRect(polyBox, p, tb, b);
+      } else if (inside(p) && isSimpleConvex(set, p)) emitRing(set, p, b);
       else clipperSet.push(p);
     }
     if (clipperSet.length === 0) return;
@@ -316,6 +335,67 @@ function emitRect(set: PolygonSet, p: number, b: Builder): void {
   else {
     const r = [xy[0], xy[1], xy[6], xy[7], xy[4], xy[5], xy[2], xy[3]] as number[];
     b.addRing(r, 0, 8);
+  }
+  b.endPiece();
+}
+
+/** An isolated rectangle crossing the tile boundary: its part inside the tile, with seams on the tile lines. */
+function emitClippedRect(polyBox: Float64Array, p: number, tb: Box, b: Builder): void {
+  const x0 = Math.max(polyBox[4 * p] as number, tb[0]), y0 = Math.max(polyBox[4 * p + 1] as number, tb[1]);
+  const x1 = Math.min(polyBox[4 * p + 2] as number, tb[2]), y1 = Math.min(polyBox[4 * p + 3] as number, tb[3]);
+  if (x1 <= x0 || y1 <= y0) return; // touches the tile along a line only: no area here (as clipper)
+  emitPieceFromPaths([[{ X: x0, Y: y0 }, { X: x1, Y: y0 }, { X: x1, Y: y1 }, { X: x0, Y: y1 }]], tb, b);
+}
+
+/**
+ * A simple convex ring: every turn one way (collinear points only going forward) and the edge direction's x
+ * component changes sign exactly twice (a locally convex ring that winds more than once, like a pentagram,
+ * changes it more often). Such a ring is its own nonzero union, so clipper would return it unchanged.
+ */
+function isSimpleConvex(set: PolygonSet, p: number): boolean {
+  const s = set.offsets[p] as number, e = set.offsets[p + 1] as number;
+  const n = e - s;
+  if (n < 3) return false;
+  const c = set.coords;
+  let sign = 0, flips = 0, lastDx = 0;
+  for (let k = 0; k < n; k++) {
+    const a = s + k, bq = s + ((k + 1) % n), cq = s + ((k + 2) % n);
+    const dx1 = (c[2 * bq] as number) - (c[2 * a] as number), dy1 = (c[2 * bq + 1] as number) - (c[2 * a + 1] as number);
+    const dx2 = (c[2 * cq] as number) - (c[2 * bq] as number), dy2 = (c[2 * cq + 1] as number) - (c[2 * bq + 1] as number);
+    if ((dx1 === 0 && dy1 === 0) || (dx2 === 0 && dy2 === 0)) return false; // repeated point
+    const cross = dx1 * dy2 - dy1 * dx2;
+    if (cross === 0) {
+      if (dx1 * dx2 + dy1 * dy2 <= 0) return false; // spike
+    } else {
+      const sg = cross > 0 ? 1 : -1;
+      if (sign === 0) sign = sg;
+      else if (sg !== sign) return false;
+    }
+    if (dx1 !== 0) {
+      const d = dx1 > 0 ? 1 : -1;
+      if (lastDx !== 0 && d !== lastDx) flips++;
+      lastDx = d;
+    }
+  }
+  // Close the cycle of x directions: count the change from the last nonzero dx back to the first.
+  let firstDx = 0;
+  for (let k = 0; k < n && firstDx === 0; k++) {
+    const dx = (c[2 * (s + ((k + 1) % n))] as number) - (c[2 * (s + k)] as number);
+    if (dx !== 0) firstDx = dx > 0 ? 1 : -1;
+  }
+  if (firstDx !== 0 && lastDx !== firstDx) flips++;
+  return sign !== 0 && flips === 2;
+}
+
+/** An isolated simple polygon strictly inside the tile, oriented counter-clockwise. */
+function emitRing(set: PolygonSet, p: number, b: Builder): void {
+  const s = set.offsets[p] as number, e = set.offsets[p + 1] as number;
+  const xy = set.coords.subarray(2 * s, 2 * e);
+  if (ringArea(xy) > 0) b.addRing(xy, 0, xy.length);
+  else {
+    const rev: number[] = [];
+    for (let k = xy.length - 2; k >= 0; k -= 2) rev.push(xy[k] as number, xy[k + 1] as number);
+    b.addRing(rev, 0, rev.length);
   }
   b.endPiece();
 }

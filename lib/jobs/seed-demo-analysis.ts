@@ -3,7 +3,7 @@
  * deep-trench model, so a new user finds finished results (the job runs in the worker pool right after start-up;
  * it takes a second or two). Runs only when the demo project exists and has no layout yet.
  */
-import { randomUUID } from 'node:crypto';
+import { createHash, randomUUID } from 'node:crypto';
 import { mkdir, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import { count, eq } from 'drizzle-orm';
@@ -12,7 +12,6 @@ import { analyses, layoutRevisions, layouts, projects } from '@/db/schema';
 import { DEMO_PROJECTS, DEMO_USERS } from '@/lib/data/demo';
 import { readLayoutBytes } from '@/lib/layout/read';
 import { layerTableOf } from '@/lib/uploads/layouts';
-import { createHash } from 'node:crypto';
 import { createAnalysis } from './analyses';
 import { DEMO_ETCH_LAYER, DEMO_LAYOUT_FILE_NAME, demoLayoutGdsii } from './demo-layout';
 import { revisionRelPath, resolveData } from './paths';

@@ -3,8 +3,9 @@
  * the etch pipeline and the CLI consume it. Pure data: no Node, DOM or database types here.
  *
  * Frame: layout coordinates, +x right, +y up, in integer database units (dbu) stored in float64 (exact up to 2^53).
- * One dbu is `dbuUm` micrometres. Rings are stored without repeating the first point; orientation is not
- * normalised (readers keep what the file has); fill rule for a set of rings is nonzero.
+ * One dbu is `dbuUm` micrometres. Rings are stored without repeating the first point and are counter-clockwise
+ * (readers normalise them, also under reflection), so each polygon is filled on its own as GDSII intends and a
+ * nonzero union of the set is the drawn area. Holes come as keyhole rings, never as opposite-orientation rings.
  */
 
 /** All polygons of one layer/datatype, as flat typed arrays (no per-point objects). */

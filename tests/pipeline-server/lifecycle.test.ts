@@ -64,7 +64,7 @@ describe('cancel', () => {
     // The worker pool is free again: a new job runs to the end.
     const next = await startAnalysis(designer, { revisionId, settings: SLOW_SETTINGS, model: TEST_MODEL });
     expect((await waitFor(designer, next, ['done', 'failed'], 180_000)).status).toBe('done');
-  });
+  }, 400_000);
 });
 
 describe('restart', () => {
@@ -96,5 +96,5 @@ describe('restart', () => {
     const done = await waitFor(designer, id, ['done', 'failed', 'cancelled'], 240_000);
     expect(done.status).toBe('done');
     expect(done.attempts).toBe(2);
-  });
+  }, 600_000); // starts two servers inside the test (each may build the app first)
 });
