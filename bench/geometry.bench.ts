@@ -4,6 +4,7 @@
  * (Gaussian L = 500 µm and 4 mm) → features with widths → feature index. Targets: < 10 s in all, < 2 GB peak.
  * Run: npm run bench, or npx tsx bench/geometry.bench.ts
  */
+import { createRequire } from 'node:module';
 import { availableParallelism, loadavg } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
@@ -12,7 +13,10 @@ import { benchLayout } from './geometry-layout';
 
 function shardInWorker(regions: OpenRegions, index: number, count: number): Promise<Feature[]> {
   return new Promise((resolve, reject) => {
-    const w = new Worker(new URL('./geometry-features.worker.ts', import.meta.url));
+    // The worker is TypeScript: a small bootstrap registers tsx's loader in the worker, then imports it.
+    const api = pathToFileURL(createRequire(import.meta.url).resolve('tsx/esm/api')).href;
+    const file = new URL('./geometry-features.worker.ts', import.meta.url).href;
+    const w = new Worker(`import(${JSON.stringify(api)}).then((m) => { m.register(); return import(${JSON.stringify(file)}); });`, { eval: true });
     w.once('message', (features: Feature[]) => {
       resolve(features);
       void w.terminate();
