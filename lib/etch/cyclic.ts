@@ -39,6 +39,8 @@ export type CyclicRun = {
   lastCycleDepthUm: number;
 };
 
+let scratch = new Float64Array(1024);
+
 /**
  * Run cycles until the target and the recipe time are both passed, or the depth limit / stop threshold is hit.
  * @param perCycleDepthUm depth gained in one cycle starting at depth h (µm), non-increasing in h
@@ -54,13 +56,16 @@ export function runCycles(
   const etchMin = steps.etchStepS / 60;
   const recipeCycles = Math.floor(opts.timeMin / cycleMin + 1e-12);
   const maxCycles = opts.maxCycles ?? 1_000_000;
-  const depths: number[] = [0];
+  // Depth after each cycle, in a module-level buffer reused across calls (a prediction run calls this per opening).
+  let depths = scratch;
+  depths[0] = 0;
+  let count = 1;
   let h = 0;
   let rateStopped = false;
   let limitCycle: number | null = null;
   let targetCycle: number | null = null;
-  while (depths.length - 1 < maxCycles) {
-    const k = depths.length - 1;
+  while (count - 1 < maxCycles) {
+    const k = count - 1;
     if (k > recipeCycles && (targetCycle !== null || h >= opts.targetDepthUm)) break;
     const d = perCycleDepthUm(h);
     if (!(d >= opts.minPerCycleUm) || !(d > 0)) {
@@ -68,7 +73,12 @@ export function runCycles(
       break;
     }
     const next = Math.min(h + d, opts.limitDepthUm);
-    depths.push(next);
+    if (count === depths.length) {
+      const grown = new Float64Array(2 * depths.length);
+      grown.set(depths);
+      depths = scratch = grown;
+    }
+    depths[count++] = next;
     if (targetCycle === null && next >= opts.targetDepthUm) targetCycle = k + 1;
     h = next;
     if (next >= opts.limitDepthUm) {
@@ -76,7 +86,7 @@ export function runCycles(
       break;
     }
   }
-  const last = depths.length - 1;
+  const last = count - 1;
   const at = (i: number) => depths[Math.min(i, last)] ?? 0;
   // Time at which depth H is crossed during cycle c (1-based): linear in time through that cycle's etch step.
   const crossing = (c: number, H: number) => {

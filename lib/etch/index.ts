@@ -24,7 +24,8 @@ export {
   type ProcessModelInput,
   type ModelIssue,
 } from './process-model';
-export { predictFeature, predictDepthUm, ETCH_CAUTION, type FeatureInput, type FeaturePrediction, type StopReason, type PredictOptions } from './predict';
+export { createFeaturePredictor, type FeaturePredictor } from './fast-predict';
+export { predictFeature, predictDepthUm, ETCH_CAUTION, NO_WARNINGS, type FeatureInput, type FeaturePrediction, type StopReason, type PredictOptions } from './predict';
 export { parseCalibrationCsv, calibrationRowsToCsv, CalibrationCsvError, type CalibrationRow } from './calibration-csv';
 export {
   fitCalibration,

@@ -57,7 +57,7 @@ export type FeaturePrediction = {
   warnings: string[];
 };
 
-function checkInput(input: FeatureInput): void {
+export function checkInput(input: FeatureInput): void {
   if (!(Number.isFinite(input.widthUm) && input.widthUm > 0)) throw new RangeError(`width must be a number > 0 µm, got ${input.widthUm}`);
   if (input.kind !== 'trench' && input.kind !== 'hole') throw new RangeError(`kind must be 'trench' or 'hole', got ${String(input.kind)}`);
   for (const [name, v] of [['effective density', input.effectiveDensity], ['exposed fraction', input.exposedFraction]] as const) {
@@ -68,8 +68,7 @@ function checkInput(input: FeatureInput): void {
 const fmt = (v: number) => Number(v.toPrecision(3)).toString();
 
 /** Calibration-range and model-completeness warnings for one prediction. */
-function rangeWarnings(model: ProcessModel, input: FeatureInput, aspectRatio: number): string[] {
-  const out: string[] = [];
+function rangeWarnings(model: ProcessModel, input: FeatureInput, aspectRatio: number, out: string[]): string[] {
   const c = model.calibration;
   if (!c) {
     out.push('model has no calibration record: predictions are uncalibrated estimates');
@@ -160,7 +159,6 @@ export function predictFeature(model: ProcessModel, input: FeatureInput, opts: P
   const T = model.etch.timeMin;
   const target = model.etch.targetDepthUm;
   const { arde, lf, loadedOpenRate, rate, threshold, arDepth, rateDepth, stopDepth, limit, limitIsStopLayer } = kinetics(model, input, opts);
-  const warnings: string[] = [];
 
   let depthUm: number;
   let timeToTargetMin: number | null;
@@ -199,6 +197,45 @@ export function predictFeature(model: ProcessModel, input: FeatureInput, opts: P
     if (timeToTargetMin !== null && !Number.isFinite(timeToTargetMin)) timeToTargetMin = null;
   }
 
+  return assemblePrediction(model, input, { arde, lf, loadedOpenRate, arDepth, rateDepth, stopDepth, limitIsStopLayer }, { depthUm, timeToTargetMin, reachedLimit, timeToLimitMin, cyclic });
+}
+
+/** Per-feature constants of the rate law R(h) = loadedOpenRate · arde(h/w) (see kinetics()). */
+export type KineticConstants = {
+  arde: ArdeEvaluator;
+  lf: number;
+  loadedOpenRate: number;
+  arDepth: number;
+  rateDepth: number;
+  stopDepth: number;
+  limitIsStopLayer: boolean;
+};
+
+/** The time-dependent outcome of one feature's etch, from the integrator, the cycle stepper or the fast tables. */
+export type KineticOutcome = {
+  depthUm: number;
+  timeToTargetMin: number | null;
+  /** The depth limit (stop layer, max AR, rate threshold) was reached at or before the recipe time. */
+  reachedLimit: boolean;
+  timeToLimitMin: number | null;
+  cyclic: FeaturePrediction['cyclic'];
+};
+
+/** Shared frozen empty warnings list (returned when a prediction has none; never mutate a prediction's warnings). */
+export const NO_WARNINGS: string[] = Object.freeze([]) as unknown as string[];
+
+/**
+ * Everything in a FeaturePrediction that follows from the kinetic outcome: stop-layer arrival and over-etch, mask
+ * erosion, stop reason, margins and warnings. Shared by predictFeature and createFeaturePredictor so both give the
+ * same semantics. `sharedEmpty` returns NO_WARNINGS instead of a fresh [] when there are no warnings.
+ */
+export function assemblePrediction(model: ProcessModel, input: FeatureInput, k: KineticConstants, o: KineticOutcome, sharedEmpty = false): FeaturePrediction {
+  const { arde, lf, loadedOpenRate, arDepth, rateDepth, stopDepth, limitIsStopLayer } = k;
+  const { depthUm, timeToTargetMin, reachedLimit, timeToLimitMin, cyclic } = o;
+  const w = input.widthUm;
+  const T = model.etch.timeMin;
+  const target = model.etch.targetDepthUm;
+  const warnings: string[] = [];
   const reachedStopLayer = limitIsStopLayer && reachedLimit;
   const stopped = reachedLimit && !limitIsStopLayer;
   const stopReason: StopReason | null = stopped ? (arDepth <= rateDepth ? 'max-aspect-ratio' : 'rate-threshold') : null;
@@ -210,7 +247,7 @@ export function predictFeature(model: ProcessModel, input: FeatureInput, opts: P
     timeToStopLayerMin = timeToLimitMin;
     if (reachedStopLayer && timeToLimitMin !== null) {
       overEtchTimeMin = Math.max(0, T - timeToLimitMin);
-      overEtchUm = (overEtchTimeMin * rate(stopDepth)) / model.stopLayer.selectivity;
+      overEtchUm = (overEtchTimeMin * loadedOpenRate * arde(stopDepth / w)) / model.stopLayer.selectivity;
       if (model.stopLayer.thicknessUm !== undefined && overEtchUm > model.stopLayer.thicknessUm) {
         warnings.push(`over-etch ${fmt(overEtchUm)} µm exceeds the stop layer thickness ${model.stopLayer.thicknessUm} µm: breaks through`);
       }
@@ -239,7 +276,7 @@ export function predictFeature(model: ProcessModel, input: FeatureInput, opts: P
     warnings.push(`depth exceeds target + tolerance by ${fmt(depthUm - target - model.etch.toleranceUm)} µm (timed etch, no stop layer)`);
   }
   if (aspectRatio > 100) warnings.push(`aspect ratio ${fmt(aspectRatio)} is beyond 100, where the transmission values were validated`);
-  warnings.push(...rangeWarnings(model, input, aspectRatio));
+  rangeWarnings(model, input, aspectRatio, warnings);
   const ardeAtDepth = arde(aspectRatio);
   return {
     kind: input.kind,
@@ -260,6 +297,6 @@ export function predictFeature(model: ProcessModel, input: FeatureInput, opts: P
     stopped,
     stopReason,
     cyclic,
-    warnings,
+    warnings: sharedEmpty && warnings.length === 0 ? NO_WARNINGS : warnings,
   };
 }

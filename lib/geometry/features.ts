@@ -10,6 +10,9 @@
  *    2·(minWidth + area/minWidth), the perimeter of the rectangle of that width and area (rotation-invariant).
  * 5. 'irregular': everything else.
  * Two openings touching only at a point are separate features; openings sharing an edge stretch are one.
+ *
+ * Parallel use: the module has no threads. A caller can give the same `OpenRegions` to n workers with
+ * `shard: { index, count: n }` and merge the parts with `numberFeatures` (same features and ids as one call).
  */
 import ClipperLib from 'clipper-lib';
 import type { PolygonSet } from '../layout/types';

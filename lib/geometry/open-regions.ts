@@ -8,6 +8,9 @@
  * The only inexact step: where a slanted edge crosses another edge, clipper rounds the crossing to the dbu grid
  * (its rounding also depends on the other vertices in the call, so tilings can differ by ~1 dbu × edge length per
  * crossing). Manhattan input is exact; tile lines never round a slanted edge for coverage (processTile).
+ *
+ * Fast path ('clear' polarity): polygons whose bbox touches no other polygon's bbox in the tile skip clipper.
+ * Rectangles are clipped to the tile directly; simple convex polygons strictly inside pass through unchanged.
  */
 import ClipperLib from 'clipper-lib';
 import type { PolygonSet } from '../layout/types';
