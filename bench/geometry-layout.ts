@@ -1,3 +1,5 @@
+import { mulberry32 } from '../lib/random';
+
 /**
  * Seeded synthetic etch layer for the geometry benchmark (mirrored exactly by bench/gdspy_density.py):
  * 1000 × 1000 sites of 10 µm over 10 mm × 10 mm, one polygon per site, 1 dbu = 1 nm.
@@ -6,17 +8,6 @@
  * Only integer arithmetic and Math.floor on the PRNG output, so Python reproduces it bit for bit (24-gon vertices
  * use cos/sin, which may differ by one ulp across languages; rounding to nm hides that in practice).
  */
-export function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
 export function benchLayout(sites = 1000, seed = 4242) {
   const rnd = mulberry32(seed);
   const coords: number[] = [];

@@ -76,17 +76,17 @@ function buildTau(f: ArdeEvaluator, uMax: number): TauTable | null {
   const inv = (u: number) => 1 / f(u);
   const L = new Float64Array(n);
   const dL = new Float64Array(n);
-  let tau = adaptiveIntegral(inv, 0, U0, U0 * 1e-13);
+  let tau = adaptiveIntegral(inv, 0, U0, U0 * 1e-12, 12);
   let count = 0;
   let maxRelError = 0;
   for (let i = 0; i < n; i++) {
     const u = uAt(i);
     if (i > 0) {
       const a = uAt(i - 1);
-      const piece = adaptiveIntegral(inv, a, u, (u - a) * inv(a) * 1e-13);
+      const piece = adaptiveIntegral(inv, a, u, (u - a) * inv(a) * 1e-12, 12);
       // Mid-interval check of the Hermite interpolant against the quadrature (where its error peaks).
       const mid = Math.exp(x0 + (i - 0.5) * dx);
-      const tauMid = tau + adaptiveIntegral(inv, a, mid, (mid - a) * inv(a) * 1e-13);
+      const tauMid = tau + adaptiveIntegral(inv, a, mid, (mid - a) * inv(a) * 1e-12, 12);
       tau += piece;
       const fu = f(u);
       if (!(fu > 0) || !Number.isFinite(tau)) break;
@@ -282,7 +282,8 @@ export function createFeaturePredictor(model: ProcessModel): FeaturePredictor {
     } else {
       const tau = k.tau;
       const uLimit = limit / w;
-      if (!tau || (uLimit > tau.uTop && limit > 0)) return predictFeature(model, input, { arde: evaluators });
+      // uLimit may exceed maxAspectRatio by an ulp (maxAR·w/w); only a truncated table sends features to the reference.
+      if (!tau || (tau.uTop < maxAR && uLimit > tau.uTop && limit > 0)) return predictFeature(model, input, { arde: evaluators });
       if (limit <= 0) {
         outcome = { depthUm: 0, reachedLimit: true, timeToLimitMin: 0, timeToTargetMin: target <= limit ? 0 : null, cyclic: null };
       } else if (!(loadedOpenRate > 0)) {

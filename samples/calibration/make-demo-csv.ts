@@ -6,24 +6,10 @@
  */
 import { writeFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
+import { gaussian, mulberry32 } from '../../lib/random';
 import { calibrationRowsToCsv, parseProcessModel, predictFeature, type ProcessModel } from '../../lib/etch';
 
-/** mulberry32 seeded PRNG → uniform [0, 1). */
-export function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
-/** Standard normal deviates by Box–Muller from a uniform source. */
-export function gaussian(rand: () => number): () => number {
-  return () => Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand());
-}
+export { gaussian, mulberry32 };
 
 export const DEMO_TRUTH = { openRateUmPerMin: 3.2, reactionProbability: 0.22, loadingCoefficient: 0.4 };
 export const DEMO_NOISE_UM = 0.4;

@@ -1,3 +1,4 @@
+export { mulberry32 } from '@/lib/random';
 /** Build PolygonSets in tests from plain rings (dbu). */
 import type { PolygonSet } from '@/lib/layout/types';
 
@@ -41,14 +42,3 @@ export function rot90(r: Ring, quarterTurns: number): Ring {
 
 export const translate = (r: Ring, dx: number, dy: number): Ring => r.map((v, k) => (k % 2 ? v + dy : v + dx));
 
-/** Seeded PRNG (mulberry32) so test data are identical across runs. */
-export function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}

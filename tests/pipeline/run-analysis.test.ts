@@ -56,7 +56,8 @@ describe('runAnalysis on three trenches', () => {
     const m = { ...model, etch: { ...model.etch, targetDepthUm: 44, toleranceUm: 2 } };
     for (const f of r.features) {
       const direct = predictFeature(m, { widthUm: f.widthUm, kind: 'trench', effectiveDensity: f.effectiveDensity, exposedFraction: r.summary.globalDensity });
-      expect(f.depthUm).toBe(direct.depthUm);
+      // reference: predictFeature (adaptive quadrature); the pipeline's tabulated predictor agrees to ~1e-8 relative
+      expect(Math.abs(f.depthUm - direct.depthUm)).toBeLessThanOrEqual(1e-6 * Math.max(1, direct.depthUm));
     }
   });
 

@@ -1,0 +1,58 @@
+/**
+ * Prediction stage benchmark: 1 M random openings (widths 0.5–500 µm log-uniform, trench/hole, densities 0–1,
+ * seeded) through the tabulated predictor (createFeaturePredictor) and, on a sample, the reference predictFeature
+ * (adaptive quadrature per opening), per model variant. Prints µs per opening and the load average.
+ * Run: npm run bench -- prediction, or npx tsx bench/run.ts prediction
+ */
+import { loadavg } from 'node:os';
+import { createArdeEvaluators, createFeaturePredictor, parseProcessModel, predictFeature, type FeatureInput, type ProcessModelInput } from '../lib/etch';
+
+const BASE: ProcessModelInput = {
+  openRateUmPerMin: 3,
+  reactionProbability: 0.2,
+  loading: { coefficient: 0.3, lengthUm: 800 },
+  etch: { timeMin: 10, targetDepthUm: 25, toleranceUm: 1.5, maxAspectRatio: 30 },
+  mode: 'continuous',
+};
+const VARIANTS: [string, Partial<ProcessModelInput>][] = [
+  ['continuous, neutral (pipeline bench model)', {}],
+  ['continuous, ion centre + stop layer', { ion: { angularSigmaDeg: 3, neutralToIonSupplyRatio: 1 }, stopLayer: { depthUm: 28, selectivity: 40 } }],
+  ['cyclic (8 s cycles, 75 cycles)', { mode: 'cyclic', cyclic: { etchStepS: 6, passivationStepS: 2 } }],
+];
+
+function inputs(count: number): FeatureInput[] {
+  let s = 12345;
+  const r = () => ((s = (Math.imul(s, 1664525) + 1013904223) >>> 0) / 4294967296);
+  return Array.from({ length: count }, () => ({ widthUm: 0.5 * Math.pow(1000, r()), kind: r() < 0.5 ? 'trench' : 'hole', effectiveDensity: r(), exposedFraction: 0.3 }));
+}
+
+export default async function predictionBench(): Promise<void> {
+  const N = 1_000_000;
+  const SAMPLE = 2_000;
+  const all = inputs(N);
+  console.log(`load average (1/5/15 min) at start: ${loadavg().map((v) => v.toFixed(2)).join(' ')}`);
+  for (const [name, over] of VARIANTS) {
+    const parsed = parseProcessModel({ ...BASE, ...over });
+    if (!parsed.ok) throw new Error(JSON.stringify(parsed.issues));
+    const model = parsed.model;
+    const tb = performance.now();
+    const fast = createFeaturePredictor(model);
+    fast({ widthUm: 1, kind: 'trench' });
+    fast({ widthUm: 1, kind: 'hole' });
+    const buildMs = performance.now() - tb;
+    const t0 = performance.now();
+    let sink = 0;
+    for (const input of all) sink += fast(input).depthUm;
+    const fastUs = ((performance.now() - t0) * 1000) / N;
+    const arde = createArdeEvaluators(model, model.etch.maxAspectRatio);
+    const t1 = performance.now();
+    for (let i = 0; i < SAMPLE; i++) sink += predictFeature(model, all[i] as FeatureInput, { arde }).depthUm;
+    const refUs = ((performance.now() - t1) * 1000) / SAMPLE;
+    console.log(
+      `${name}: tables ${buildMs.toFixed(0)} ms; fast ${fastUs.toFixed(2)} µs/opening (${((fastUs * N) / 1e6).toFixed(2)} s per 1 M); ` +
+        `reference ${refUs.toFixed(0)} µs/opening (sample ${SAMPLE}; ${((refUs * N) / 1e6).toFixed(0)} s per 1 M); speed-up ${(refUs / fastUs).toFixed(0)}×; ` +
+        `τ error ${fast.maxRelTauError().toExponential(1)} (checksum ${sink.toExponential(3)})`,
+    );
+  }
+  console.log(`load average (1/5/15 min) at end: ${loadavg().map((v) => v.toFixed(2)).join(' ')}`);
+}
