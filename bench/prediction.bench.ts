@@ -5,6 +5,8 @@
  * Run: npm run bench -- prediction, or npx tsx bench/run.ts prediction
  */
 import { loadavg } from 'node:os';
+import type { Feature, Grid } from '../lib/geometry';
+import { predictFeatures } from '../lib/pipeline/predict-features';
 import { createArdeEvaluators, createFeaturePredictor, parseProcessModel, predictFeature, type FeatureInput, type ProcessModelInput } from '../lib/etch';
 
 const BASE: ProcessModelInput = {
@@ -54,5 +56,25 @@ export default async function predictionBench(): Promise<void> {
         `τ error ${fast.maxRelTauError().toExponential(1)} (checksum ${sink.toExponential(3)})`,
     );
   }
+  // The pipeline stage itself (lib/pipeline/predict-features.ts: sampling, cache key, result objects) on 1 M
+  // synthetic openings over a 10 mm die (widths on a 1 nm grid, as from a GDSII database unit).
+  const parsed = parseProcessModel(BASE);
+  if (!parsed.ok) throw new Error('bad bench model');
+  const grid: Grid = { x0Um: 0, y0Um: 0, pixelUm: 10, nx: 1000, ny: 1000 };
+  const effective = new Float32Array(grid.nx * grid.ny);
+  for (let i = 0; i < effective.length; i++) effective[i] = 0.5 + 0.4 * Math.sin(i * 0.001) * Math.cos(i * 0.0007);
+  const features: Feature[] = all.map((input, id) => {
+    const w = Math.round(input.widthUm * 1000) / 1000;
+    const x = ((id * 7919) % 10_000) + 0.5;
+    const y = ((id * 104729) % 10_000) + 0.5;
+    return {
+      id, kind: input.kind === 'hole' ? 'round-hole' : 'trench', centroidUm: [x, y], bboxUm: [x - w / 2, y - w / 2, x + w / 2, y + w / 2],
+      areaUm2: w * 4 * w, perimeterUm: 10 * w, minWidthUm: w, maxWidthUm: w, lengthUm: 4 * w, widthStepUm: 0, widthExact: true, pieces: 1,
+    };
+  });
+  const tp = performance.now();
+  const results = predictFeatures(features, effective, grid, parsed.model, { exposedFraction: 0.3 });
+  const stageS = (performance.now() - tp) / 1000;
+  console.log(`pipeline predictFeatures, ${results.length} openings (continuous, neutral): ${stageS.toFixed(2)} s (${((stageS * 1e6) / results.length).toFixed(2)} µs/opening)`);
   console.log(`load average (1/5/15 min) at end: ${loadavg().map((v) => v.toFixed(2)).join(' ')}`);
 }

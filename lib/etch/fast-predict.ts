@@ -24,7 +24,7 @@
  * that need the rest fall back to predictFeature.
  *
  * Cyclic mode: u_{n+1} = u_n + (d₀Λ/w)·f(u_n) is not scale-free, so cycles are stepped as in predictFeature, with
- * f from a table of ln f in ln u (step 1/512, monotone cubic; exact f below u = 1e-7): measured max relative error
+ * f from a table of f in ln u (step 1/1024, monotone cubic; exact f below u = 1e-7): measured max relative error
  * of f is reported as `maxRelArdeError`; a depth after N cycles inherits about that relative error.
  */
 import { runCycles, scallopDepthUm } from './cyclic';
@@ -39,7 +39,7 @@ import type { FeatureKind } from './transmission';
 const U0 = 1e-9;
 const TAU_STEPS_PER_UNIT_LN = 128;
 const F_U0 = 1e-7;
-const F_STEPS_PER_UNIT_LN = 512;
+const F_STEPS_PER_UNIT_LN = 1024;
 
 type TauTable = {
   x0: number;
@@ -159,13 +159,13 @@ function buildF(f: ArdeEvaluator, uMax: number): FTable {
   const n = Math.ceil((x1 - x0) * F_STEPS_PER_UNIT_LN) + 1;
   const dx = (x1 - x0) / (n - 1);
   const y = new Float64Array(n);
-  for (let i = 0; i < n; i++) y[i] = Math.log(Math.max(1e-300, f(Math.exp(x0 + i * dx))));
+  for (let i = 0; i < n; i++) y[i] = f(Math.exp(x0 + i * dx));
   const table = monotoneTable(x0, dx, y);
   let maxRelError = 0;
   for (let i = 0; i < n - 1; i++) {
     const x = x0 + (i + 0.5) * dx;
     const exact = f(Math.exp(x));
-    if (exact > 1e-300) maxRelError = Math.max(maxRelError, Math.abs(Math.exp(evalTable(table, x)) / exact - 1));
+    if (exact > 1e-300) maxRelError = Math.max(maxRelError, Math.abs(evalTable(table, x) / exact - 1));
   }
   return { table, x1, maxRelError };
 }
@@ -260,7 +260,7 @@ export function createFeaturePredictor(model: ProcessModel): FeaturePredictor {
       const run = runCycles(
         (h) => {
           const u = h / w;
-          return perCycleOpen * (u < F_U0 ? arde(u) : Math.exp(evalTable(table, Math.min(Math.log(u), x1))));
+          return perCycleOpen * (u < F_U0 ? arde(u) : evalTable(table, Math.min(Math.log(u), x1)));
         },
         cyclicSteps,
         { timeMin: T, targetDepthUm: target, limitDepthUm: limit, minPerCycleUm: threshold * cycleMin },

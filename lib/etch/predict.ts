@@ -60,9 +60,11 @@ export type FeaturePrediction = {
 export function checkInput(input: FeatureInput): void {
   if (!(Number.isFinite(input.widthUm) && input.widthUm > 0)) throw new RangeError(`width must be a number > 0 µm, got ${input.widthUm}`);
   if (input.kind !== 'trench' && input.kind !== 'hole') throw new RangeError(`kind must be 'trench' or 'hole', got ${String(input.kind)}`);
-  for (const [name, v] of [['effective density', input.effectiveDensity], ['exposed fraction', input.exposedFraction]] as const) {
-    if (v !== undefined && !(v >= 0 && v <= 1)) throw new RangeError(`${name} must be in [0, 1], got ${v}`);
-  }
+  // Two plain checks (no per-call array): this runs once per opening in the pipeline.
+  const d = input.effectiveDensity;
+  if (d !== undefined && !(d >= 0 && d <= 1)) throw new RangeError(`effective density must be in [0, 1], got ${d}`);
+  const e = input.exposedFraction;
+  if (e !== undefined && !(e >= 0 && e <= 1)) throw new RangeError(`exposed fraction must be in [0, 1], got ${e}`);
 }
 
 const fmt = (v: number) => Number(v.toPrecision(3)).toString();

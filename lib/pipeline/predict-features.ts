@@ -5,8 +5,9 @@
  * Kind mapping (documented in lib/methods): 'round-hole' and 'square-hole' → hole (width = diameter or side);
  * 'trench' → trench; 'open-field' → trench of its smallest width (a wide trench); 'irregular' → trench of its
  * smallest width (the narrowest part lags most, so this is the cautious choice).
- * Identical inputs are predicted once: effective density is rounded to 1e-4 for the cache key (far below any
- * model's accuracy) and that rounded value is the one passed to the model.
+ * Effective density is rounded to 1e-4 (far below any model's accuracy) and that rounded value is the one passed to
+ * the model. Continuous mode has no per-input cache: the tabulated predictor (~2 µs) is cheaper than building a
+ * string key and a million-entry map (measured in bench/prediction.bench.ts); cyclic mode keeps one.
  * Predictions come from createFeaturePredictor (tables built once per model; agrees with predictFeature to ~1e-8
  * relative, tests/etch/fast-predict.test.ts). Empty warning/excursion lists are one shared frozen array each.
  */
@@ -90,8 +91,9 @@ export interface PredictOptions {
 }
 
 export function predictFeatures(features: Feature[], effective: Float32Array, grid: Grid, model: ProcessModel, opts: PredictOptions): FeatureResult[] {
-  const cache = new Map<string, FeaturePrediction>();
   const predict = createFeaturePredictor(model);
+  // Cyclic mode steps every cycle (~10 µs per opening), so repeated openings are predicted once there.
+  const cache = model.mode === 'cyclic' ? new Map<string, FeaturePrediction>() : null;
   const meanWidthNote = 'no measurable smallest width: the mean width 2·area/perimeter was used';
   const range = calibratedRangeOf(model);
   const every = opts.every ?? 2048;
@@ -106,11 +108,13 @@ export function predictFeatures(features: Feature[], effective: Float32Array, gr
     const widthUm = measurable ? f.minWidthUm : f.perimeterUm > 0 ? (2 * f.areaUm2) / f.perimeterUm : 0;
     if (!(widthUm > 0)) throw new RangeError(`opening #${f.id} at (${f.centroidUm[0]}, ${f.centroidUm[1]}) µm has no measurable width`);
     const rho = Math.round(sampleGrid(effective, grid, f.centroidUm[0], f.centroidUm[1]) * 1e4) / 1e4;
-    const key = `${modelKind}|${widthUm}|${rho}`;
-    let p = cache.get(key);
-    if (!p) {
+    let p: FeaturePrediction | undefined;
+    if (cache) {
+      const key = `${modelKind}|${widthUm}|${rho}`;
+      p = cache.get(key);
+      if (!p) cache.set(key, (p = predict({ widthUm, kind: modelKind, effectiveDensity: rho, exposedFraction: opts.exposedFraction })));
+    } else {
       p = predict({ widthUm, kind: modelKind, effectiveDensity: rho, exposedFraction: opts.exposedFraction });
-      cache.set(key, p);
     }
     out[n] = {
       id: f.id,
