@@ -147,7 +147,7 @@ function Form({ projectId, revisions, initialRevisionId, models }: Props) {
               <label key={key} className={`flex cursor-pointer items-center gap-2 rounded-md px-2.5 py-1.5 text-sm ring-1 ${on ? 'bg-copper-400/15 ring-copper-500/50' : 'bg-white ring-wafer-300'}`}>
                 <input type="checkbox" checked={on} onChange={() => setLayers(on ? layers.filter((x) => x !== key) : [...layers, key])} />
                 <span className="font-mono">{key}</span>
-                <span className="text-xs text-ink-500">{l.polygons.toLocaleString('en')} polygons</span>
+                <span className="text-xs text-ink-500">{l.polygons.toLocaleString('en')} {l.polygons === 1 ? 'polygon' : 'polygons'}</span>
               </label>
             );
           })}

@@ -12,6 +12,7 @@
  * Fast path ('clear' polarity): polygons whose bbox touches no other polygon's bbox in the tile skip clipper.
  * Rectangles are clipped to the tile directly; simple convex polygons strictly inside pass through unchanged.
  */
+import { polygonSetsBbox } from '../layout/bbox';
 import ClipperLib from 'clipper-lib';
 import type { PolygonSet } from '../layout/types';
 import type { Box, Polarity } from './types';
@@ -53,17 +54,7 @@ export interface OpenRegionsOptions {
 
 /** Bounding box of a polygon set in dbu, or null when it has no points. */
 export function setBbox(set: PolygonSet): Box | null {
-  const c = set.coords;
-  if (c.length < 2) return null;
-  let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
-  for (let k = 0; k < c.length; k += 2) {
-    const x = c[k] as number, y = c[k + 1] as number;
-    if (x < x0) x0 = x;
-    if (x > x1) x1 = x;
-    if (y < y0) y0 = y;
-    if (y > y1) y1 = y;
-  }
-  return [x0, y0, x1, y1];
+  return polygonSetsBbox([set]);
 }
 
 class Builder {

@@ -10,6 +10,7 @@
  *   beyond `maxPolygons` / `maxPoints` is refused before anything is allocated; instances of cells that flatten to
  *   nothing are never visited; at most `maxLabels` labels are kept (first in traversal order).
  */
+import { polygonSetsBbox } from './bbox';
 import { LayoutReadError } from './errors';
 import type { CellDef, GdsLibrary } from './library';
 import { bottomUpOrder, cellTotals, checkMissingCells, chooseTopCell } from './hierarchy';
@@ -213,19 +214,7 @@ export function flattenLibrary(lib: GdsLibrary, opts: FlattenOptions = {}): Flat
 
 /** Bounding box over all layers, dbu; null when there are no points. */
 export function layoutBbox(layers: PolygonSet[]): [number, number, number, number] | null {
-  let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
-  for (const s of layers) {
-    const c = s.coords;
-    for (let k = 0; k < c.length; k += 2) {
-      const x = c[k] as number;
-      const y = c[k + 1] as number;
-      if (x < x0) x0 = x;
-      if (x > x1) x1 = x;
-      if (y < y0) y0 = y;
-      if (y > y1) y1 = y;
-    }
-  }
-  return x0 <= x1 ? [x0, y0, x1, y1] : null;
+  return polygonSetsBbox(layers);
 }
 
 export { placement };

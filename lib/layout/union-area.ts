@@ -9,6 +9,7 @@
  * rounding. The result is exact for axis-parallel geometry. Where two slanted edges of overlapping polygons cross,
  * clipper rounds the crossing point to the integer grid (≤ 0.5 dbu per coordinate), as any integer union does.
  */
+import { polygonSetsBbox } from './bbox';
 import ClipperLib from 'clipper-lib';
 import type { FlatLayout, PolygonSet } from './types';
 
@@ -174,22 +175,13 @@ export interface LayerSummaryRow {
 export function layerSummary(layout: FlatLayout): LayerSummaryRow[] {
   const s = layout.dbuUm;
   return layout.layers.map((set) => {
-    let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
-    const c = set.coords;
-    for (let k = 0; k < c.length; k += 2) {
-      const x = c[k] as number;
-      const y = c[k + 1] as number;
-      if (x < x0) x0 = x;
-      if (x > x1) x1 = x;
-      if (y < y0) y0 = y;
-      if (y > y1) y1 = y;
-    }
+    const box = polygonSetsBbox([set]);
     return {
       layer: set.layer,
       datatype: set.datatype,
       polygons: set.count,
       areaUm2: unionArea(set).areaDbu2 * s * s,
-      bboxUm: x0 <= x1 ? [x0 * s, y0 * s, x1 * s, y1 * s] : null,
+      bboxUm: box ? [box[0] * s, box[1] * s, box[2] * s, box[3] * s] : null,
     };
   });
 }
