@@ -6,7 +6,9 @@ import { Button } from '@/components/ui/button';
 import { Card } from '@/components/ui/card';
 import type { AnalysisView as AnalysisInfo } from '@/lib/jobs/analyses';
 import { apiJson, formatWhen } from './api-client';
-import { FlagsTable } from './flags-table';
+import { FindingSelectionProvider } from '@/components/analysis/finding-selection';
+import { FindingsSection } from '@/components/findings/findings-section';
+import { AnalysisCanvasSection } from '@/components/viewer/analysis-canvas-section';
 import { QueryProvider } from './query-provider';
 import { ProgressBar, StatusBadge } from './status-badge';
 import { SummaryPanel, type Summary } from './summary-panel';
@@ -33,7 +35,9 @@ const STAGE_LABEL: Record<string, string> = {
 export function AnalysisView(props: { analysisId: string; initial: AnalysisInfo; canCancel: boolean }) {
   return (
     <QueryProvider>
-      <View {...props} />
+      <FindingSelectionProvider>
+        <View {...props} />
+      </FindingSelectionProvider>
     </QueryProvider>
   );
 }
@@ -69,7 +73,6 @@ function View({ analysisId, initial, canCancel }: { analysisId: string; initial:
     enabled: live.status === 'done',
   });
   const cancel = useMutation({ mutationFn: () => apiJson(`/api/v1/analyses/${analysisId}/cancel`, { method: 'POST' }) });
-  const [preview, setPreview] = useState('risk');
   const a = info.data?.analysis ?? initial;
   const active = live.status === 'queued' || live.status === 'running';
 
@@ -127,24 +130,8 @@ function View({ analysisId, initial, canCancel }: { analysisId: string; initial:
       {live.status === 'done' && results.data ? (
         <>
           <SummaryPanel summary={results.data.summary} />
-          <Card className="p-6">
-            <div className="mb-3 flex flex-wrap items-center justify-between gap-3">
-              <h2 className="text-lg font-semibold text-ink-900">Preview</h2>
-              <div className="flex gap-1" role="tablist">
-                {['risk', 'predicted-depth', 'effective-density', 'coverage'].map((m) => (
-                  <button key={m} role="tab" aria-selected={preview === m} onClick={() => setPreview(m)} className={`rounded px-2 py-1 text-xs ${preview === m ? 'bg-ink-900 text-wafer-50' : 'text-ink-700 hover:bg-wafer-200/60'}`}>
-                    {m}
-                  </button>
-                ))}
-              </div>
-            </div>
-            {/* eslint-disable-next-line @next/next/no-img-element -- a generated PNG from the API, not a static asset */}
-            <img src={`/api/v1/analyses/${analysisId}/preview.png?map=${preview}&size=640`} alt={`${preview} map of the die, top = +y`} width={640} height={640} className="mx-auto aspect-square w-full max-w-[640px] rounded border border-wafer-200 bg-wafer-100 object-contain" data-testid="preview" />
-            <p className="mt-2 text-center text-xs text-ink-500">
-              {preview === 'risk' ? 'Risk: pale = well inside the limits, amber = within 20 % of a limit, red = at or beyond a limit.' : 'Colour from the map minimum (pale) to maximum (dark).'} North is +y.
-            </p>
-          </Card>
-          <FlagsTable analysisId={analysisId} />
+          <AnalysisCanvasSection analysisId={analysisId} />
+          <FindingsSection analysisId={analysisId} />
         </>
       ) : null}
       {live.status === 'done' && results.isPending ? <p className="text-sm text-ink-500">Loading results…</p> : null}

@@ -38,6 +38,20 @@ export function can(role: TeamRole, action: TeamAction): boolean {
   return (PERMISSIONS[action] as readonly TeamRole[]).includes(role);
 }
 
+/** What each action means, in the words the permission table on the team page shows (never the raw key). */
+export const PERMISSION_LABEL: Record<TeamAction, string> = {
+  'team.manage': 'Manage the team and its members',
+  'members.invite': 'Invite people',
+  'outbox.view': 'Read the development mail outbox',
+  'project.create': 'Create projects',
+  'layout.upload': 'Upload layout revisions',
+  'analysis.create': 'Start analyses',
+  'model.publish': 'Calibrate and publish process models',
+  'flag.comment': 'Comment on findings',
+  'flag.waive': 'Waive findings (with a reason)',
+  'revision.signoff': 'Sign off an analysis',
+};
+
 /** Human labels used in the UI. */
 export const ROLE_LABEL: Record<TeamRole, string> = {
   admin: 'Admin',

@@ -5,7 +5,7 @@ import { ForbiddenNotice } from '@/components/app/forbidden-notice';
 import { buttonClass } from '@/components/ui/button';
 import { Card, PageTitle } from '@/components/ui/card';
 import { RoleBadge } from '@/components/ui/role-badge';
-import { can, PERMISSIONS, ROLE_LABEL, TEAM_ROLES } from '@/lib/auth/permissions';
+import { can, PERMISSION_LABEL, ROLE_LABEL, TEAM_ACTIONS, TEAM_ROLES } from '@/lib/auth/permissions';
 import { listPendingInvites } from '@/lib/data/invites';
 import { idParam } from '@/lib/data/schemas';
 import { getTeamOverview } from '@/lib/data/teams';
@@ -82,13 +82,13 @@ export default async function TeamPage({ params }: { params: Promise<{ teamId: s
                   ))}
                 </tr>
               </thead>
-              <tbody className="font-mono">
-                {Object.keys(PERMISSIONS).map((action) => (
+              <tbody>
+                {TEAM_ACTIONS.map((action) => (
                   <tr key={action} className="border-t border-wafer-200">
-                    <td className="py-1">{action}</td>
+                    <td className="py-1" title={action}>{PERMISSION_LABEL[action]}</td>
                     {TEAM_ROLES.map((r) => (
                       <td key={r} className="py-1 text-center">
-                        {can(r, action as keyof typeof PERMISSIONS) ? <span className="text-pass">●</span> : <span className="text-ink-300">·</span>}
+                        {can(r, action) ? <span className="text-pass">●</span> : <span className="text-ink-300">·</span>}
                       </td>
                     ))}
                   </tr>
