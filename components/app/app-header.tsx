@@ -23,6 +23,9 @@ export function AppHeader({ user, teams }: { user: AuthUser; teams: { id: string
           <Link href="/methods" className="rounded px-2.5 py-1.5 text-ink-100 hover:bg-ink-800 hover:text-white">
             Methods
           </Link>
+          <Link href="/api-docs" className="rounded px-2.5 py-1.5 text-ink-100 hover:bg-ink-800 hover:text-white">
+            API
+          </Link>
         </nav>
         <div className="ml-auto flex items-center gap-3 text-sm">
           <Link href="/account/tokens" className="text-ink-300 hover:text-white">

@@ -1,6 +1,7 @@
 'use client';
 
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { useRouter } from 'next/navigation';
 import { useEffect, useState } from 'react';
 import { Button } from '@/components/ui/button';
 import { Card } from '@/components/ui/card';
@@ -86,6 +87,7 @@ function View({ analysisId, initial, canCancel }: { analysisId: string; initial:
               {live.status === 'running' ? (STAGE_LABEL[live.stage ?? ''] ?? live.stage ?? '') : live.status === 'queued' ? 'waiting for a free worker' : live.status === 'done' ? 'finished' : ''}
             </span>
           </div>
+          {canCancel && !active ? <RunAgain analysisId={analysisId} /> : null}
           {canCancel && active ? (
             <Button variant="danger" onClick={() => cancel.mutate()} disabled={cancel.isPending} data-testid="cancel-analysis">
               {cancel.isPending ? 'Cancelling…' : 'Cancel analysis'}
@@ -136,6 +138,23 @@ function View({ analysisId, initial, canCancel }: { analysisId: string; initial:
       ) : null}
       {live.status === 'done' && results.isPending ? <p className="text-sm text-ink-500">Loading results…</p> : null}
       {results.error ? <p className="text-sm text-fail">{results.error.message}</p> : null}
+    </div>
+  );
+}
+
+/** Same revision, stored settings and model, as a new analysis (after a cancel, a failure or to repeat a run). */
+function RunAgain({ analysisId }: { analysisId: string }) {
+  const router = useRouter();
+  const rerun = useMutation({
+    mutationFn: () => apiJson<{ analysis: { id: string } }>(`/api/v1/analyses/${analysisId}/rerun`, { method: 'POST' }),
+    onSuccess: (data) => router.push(`/analyses/${data.analysis.id}`),
+  });
+  return (
+    <div className="flex items-center gap-3">
+      {rerun.error ? <span className="text-xs text-fail">{rerun.error.message}</span> : null}
+      <Button variant="secondary" onClick={() => rerun.mutate()} disabled={rerun.isPending} data-testid="run-again">
+        {rerun.isPending ? 'Queuing…' : 'Run again'}
+      </Button>
     </div>
   );
 }

@@ -1,7 +1,9 @@
 'use client';
 
-import { useQuery } from '@tanstack/react-query';
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import Link from 'next/link';
+import { useRouter } from 'next/navigation';
+import { describeSettings } from '@/lib/pipeline/settings-label';
 import { buttonClass } from '@/components/ui/button';
 import { Card } from '@/components/ui/card';
 import { apiJson, formatBytes, formatWhen } from './api-client';
@@ -18,6 +20,7 @@ type Revision = {
   layers: { layer: number; datatype: number; polygons: number }[];
   polygonCount: number;
   sha256: string;
+  note: string;
   analysisCount: number;
 };
 type Layout = { id: string; name: string; revisions: Revision[] };
@@ -31,6 +34,7 @@ type Analysis = {
   errorMessage: string | null;
   revision: { layoutName: string; revision: number };
   model: { name: string; version: string };
+  settings: Record<string, unknown>;
 };
 
 export function ProjectPipelineClient({ projectId, canUpload, canAnalyse }: { projectId: string; canUpload: boolean; canAnalyse: boolean }) {
@@ -82,6 +86,11 @@ export function ProjectPipelineClient({ projectId, canUpload, canAnalyse }: { pr
                         <span className="ml-2 font-mono text-xs text-ink-500">
                           {r.format} · {formatBytes(r.sizeBytes)} · {r.polygonCount.toLocaleString('en')} polygons
                         </span>
+                        {r.note ? (
+                          <p className="mt-0.5 text-xs text-ink-600 italic" data-testid="revision-note">
+                            {r.note}
+                          </p>
+                        ) : null}
                       </td>
                       <td className="py-1.5 pr-3 font-mono text-xs text-ink-700">{r.layers.map((x) => `${x.layer}/${x.datatype}`).join(' ')}</td>
                       <td className="py-1.5 pr-3 text-xs text-ink-500">
@@ -118,6 +127,7 @@ export function ProjectPipelineClient({ projectId, canUpload, canAnalyse }: { pr
                 <th className="py-1 pr-3 font-medium">model</th>
                 <th className="py-1 pr-3 font-medium">status</th>
                 <th className="py-1 pr-3 font-medium">started</th>
+                <th className="py-1" />
               </tr>
             </thead>
             <tbody>
@@ -127,6 +137,9 @@ export function ProjectPipelineClient({ projectId, canUpload, canAnalyse }: { pr
                     <Link href={`/analyses/${a.id}`} className="font-medium text-copper-700 hover:underline">
                       {a.revision.layoutName} r{a.revision.revision}
                     </Link>
+                    <p className="mt-0.5 font-mono text-[11px] text-ink-500" data-testid="analysis-settings-label">
+                      {describeSettings(a.settings)}
+                    </p>
                   </td>
                   <td className="py-2 pr-3 text-xs text-ink-700">
                     {a.model.name} <span className="font-mono text-ink-500">{a.model.version}</span>
@@ -146,6 +159,7 @@ export function ProjectPipelineClient({ projectId, canUpload, canAnalyse }: { pr
                     {formatWhen(a.createdAt)}
                     {a.createdByName ? ` · ${a.createdByName}` : ''}
                   </td>
+                  <td className="py-2 text-right">{canAnalyse && a.status !== 'queued' && a.status !== 'running' ? <RunAgainButton analysisId={a.id} projectId={projectId} /> : null}</td>
                 </tr>
               ))}
             </tbody>
@@ -153,5 +167,26 @@ export function ProjectPipelineClient({ projectId, canUpload, canAnalyse }: { pr
         ) : null}
       </Card>
     </div>
+  );
+}
+
+/** Queues the same revision again with the stored settings and model, then opens the new analysis. */
+function RunAgainButton({ analysisId, projectId }: { analysisId: string; projectId: string }) {
+  const router = useRouter();
+  const queryClient = useQueryClient();
+  const rerun = useMutation({
+    mutationFn: () => apiJson<{ analysis: { id: string } }>(`/api/v1/analyses/${analysisId}/rerun`, { method: 'POST' }),
+    onSuccess: (data) => {
+      void queryClient.invalidateQueries({ queryKey: ['analyses', projectId] });
+      router.push(`/analyses/${data.analysis.id}`);
+    },
+  });
+  return (
+    <span className="inline-flex flex-col items-end">
+      <button type="button" onClick={() => rerun.mutate()} disabled={rerun.isPending} className="text-xs font-medium text-copper-600 hover:underline disabled:opacity-50" data-testid="run-again">
+        {rerun.isPending ? 'Queuing…' : 'Run again'}
+      </button>
+      {rerun.error ? <span className="max-w-48 text-[11px] text-fail">{rerun.error.message}</span> : null}
+    </span>
   );
 }

@@ -1,9 +1,10 @@
 import { Card } from '@/components/ui/card';
+import { formatPercent } from '@/lib/format/percent';
 import type { AnalysisSummary } from '@/lib/pipeline/summary';
 
 export type Summary = AnalysisSummary;
 
-const pct = (v: number) => `${(v * 100).toFixed(1)} %`;
+const pct = (v: number) => formatPercent(v);
 const um = (v: number) => `${v.toFixed(2)} µm`;
 
 function Figure({ label, value, sub }: { label: string; value: string; sub?: string }) {

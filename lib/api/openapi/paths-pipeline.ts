@@ -284,6 +284,25 @@ export const PIPELINE_PATHS: Record<string, PathItemObject> = {
       errors: [409],
     }),
   },
+  '/analyses/{analysisId}/rerun': {
+    post: operation('post', {
+      id: 'rerunAnalysis',
+      tag: 'Analyses',
+      summary: 'Run an analysis again',
+      description: 'Queues a new analysis of the same revision with the stored settings and process model (after a cancel or failure, or to repeat a run). 409 while the analysis is still queued or running; 422 when the stored settings no longer pass validation.',
+      access: 'session-or-token',
+      permission: 'analysis.create',
+      path: analysisId,
+      ok: {
+        202: {
+          description: 'Queued. Follow `events` for progress.',
+          headers: { location: { description: 'URL of the new analysis', schema: str() } },
+          schema: object({ analysis: object({ id: str(), status: { type: 'string', enum: ['queued'] }, url: str(), events: str() }) }),
+        },
+      },
+      errors: [409, 422],
+    }),
+  },
   '/analyses/{analysisId}/results': {
     get: operation('get', {
       id: 'getResults',
