@@ -29,7 +29,7 @@ export function throttleRules() {
     /** one account, any address (not for the account's known addresses): distributed guessing */
     signInAccount: { scope: 'signin-account', free: 10, baseMs: 30_000, maxMs: 15 * MINUTE, decayMs: HOUR },
     /** sign-ups (and invitation accounts) from one address, every attempt counted */
-    signUpAddress: { scope: 'signup-address', free: envInt('TRENCHANT_SIGNUP_MAX_PER_HOUR', 5), baseMs: MINUTE, maxMs: HOUR, decayMs: HOUR },
+    signUpAddress: { scope: 'signup-address', free: envInt('TRENCHANT_SIGNUP_MAX_PER_HOUR', 10), baseMs: MINUTE, maxMs: HOUR, decayMs: HOUR },
   } satisfies Record<string, ThrottleRule>;
 }
 

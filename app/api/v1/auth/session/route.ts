@@ -31,9 +31,10 @@ export async function GET() {
   return Response.json({ user });
 }
 
-/** Sign out. */
+/** Sign out (cookie endpoint: an Authorization header is refused, never combined with the cookie). */
 export async function DELETE(request: Request) {
   try {
+    if (request.headers.get('authorization') !== null) throw new ApiError('unauthorized', 'Sign-out takes the browser session only, not an API token.');
     assertSameOrigin(request);
     await endSession();
     return new Response(null, { status: 204 });
