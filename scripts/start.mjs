@@ -26,7 +26,8 @@ if (!process.env.TRENCHANT_PUBLIC_URL) {
     console.error(`[trenchant] HOST=${host} is not a loopback address: set TRENCHANT_PUBLIC_URL to the URL people open Trenchant at (e.g. https://trenchant.example.com).`);
     process.exit(1);
   }
-  process.env.TRENCHANT_PUBLIC_URL = `http://${host === '::1' ? '[::1]' : host}:${port}`;
+  const urlHost = host === '::1' ? '[::1]' : host === '127.0.0.1' ? 'localhost' : host;
+  process.env.TRENCHANT_PUBLIC_URL = `http://${urlHost}:${port}`;
   console.log(`[trenchant] TRENCHANT_PUBLIC_URL not set; links in mail use ${process.env.TRENCHANT_PUBLIC_URL}`);
 }
 // Started as `node .../next start` so this child's pid is the server itself (npx would leave it orphaned).
