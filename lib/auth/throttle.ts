@@ -114,15 +114,28 @@ export function rememberAddress(email: string, address: string, now = Date.now()
     .run();
 }
 
+const pairKey = (email: string, address: string) => `${email}|${address}`;
+
 /** The counters one sign-in attempt is charged to. */
 export function signInCounters(email: string, address: string, db: Db = getDb()): Counter[] {
   const rules = throttleRules();
   const counters: Counter[] = [
-    { rule: rules.signInPair, key: `${email}|${address}` },
+    { rule: rules.signInPair, key: pairKey(email, address) },
     { rule: rules.signInAddress, key: address },
   ];
   if (!isKnownAddress(email, address, db)) counters.push({ rule: rules.signInAccount, key: email });
   return counters;
+}
+
+/**
+ * After a successful sign-in: the address gets its counted attempt back, the account's counters start over, and
+ * the address becomes one the account-wide backoff never applies to.
+ */
+export function recordSignInSuccess(email: string, address: string, now = Date.now(), db: Db = getDb()): void {
+  const rules = throttleRules();
+  releaseAttempt({ rule: rules.signInAddress, key: address }, db);
+  clearCounters([{ rule: rules.signInPair, key: pairKey(email, address) }, { rule: rules.signInAccount, key: email }], db);
+  rememberAddress(email, address, now, db);
 }
 
 /** "30 s", "4 min": how long to wait, for messages. */

@@ -5,7 +5,7 @@ import { getDb } from '@/db/client';
 import { memberships, teams, users } from '@/db/schema';
 import { hashPassword, verifyPassword } from '@/lib/auth/password';
 import { passwordWeakness } from '@/lib/auth/password-strength';
-import { clearCounters, rememberAddress, releaseAttempt, reserveAttempt, signInCounters, throttleRules, waitText } from '@/lib/auth/throttle';
+import { recordSignInSuccess, reserveAttempt, signInCounters, throttleRules, waitText } from '@/lib/auth/throttle';
 import type { AuthUser } from '@/lib/auth/session';
 import { ApiError } from '@/lib/http/errors';
 import { recordAudit } from './audit';
@@ -37,15 +37,7 @@ export async function authenticate(input: z.infer<typeof signInInput>, clientAdd
     recordAudit({ actorId: row?.id ?? null, action: 'auth.sign_in_failed', detail: { email: input.email, address: clientAddress } });
     throw new ApiError('unauthorized', 'E-mail or password is wrong.');
   }
-  // Success: the address keeps its allowance, the account's counters start over, and this address becomes one
-  // the account-wide backoff never applies to.
-  const rules = throttleRules();
-  releaseAttempt({ rule: rules.signInAddress, key: clientAddress });
-  clearCounters([
-    { rule: rules.signInPair, key: `${input.email}|${clientAddress}` },
-    { rule: rules.signInAccount, key: input.email },
-  ]);
-  rememberAddress(input.email, clientAddress);
+  recordSignInSuccess(input.email, clientAddress);
   recordAudit({ actorId: row.id, action: 'auth.sign_in' });
   return { id: row.id, email: row.email, name: row.name };
 }

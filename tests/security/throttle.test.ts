@@ -99,3 +99,25 @@ describe('database-kept counters', () => {
     }
   });
 });
+
+describe('recordSignInSuccess', () => {
+  let db: Db;
+  beforeEach(() => {
+    db = openDatabase(':memory:');
+    setDbForTesting(db);
+  });
+  afterEach(() => setDbForTesting(undefined));
+
+  it('clears the account and pair waits, gives the address its attempt back and remembers it', async () => {
+    const { recordSignInSuccess } = await import('@/lib/auth/throttle');
+    const rules = throttleRules();
+    const t0 = 9_000_000;
+    for (let i = 0; i < rules.signInPair.free; i++) reserveAttempt(signInCounters('bo@x.example', '10.1.1.1', db), t0 + i, db);
+    expect(waitMs(signInCounters('bo@x.example', '10.1.1.1', db), t0 + 10, db)).toBeGreaterThan(0);
+    recordSignInSuccess('bo@x.example', '10.1.1.1', t0 + 10, db);
+    expect(waitMs(signInCounters('bo@x.example', '10.1.1.1', db), t0 + 11, db)).toBe(0);
+    const address = db.$client.prepare("select count from auth_throttle where scope = 'signin-address'").get() as { count: number };
+    expect(address.count).toBe(rules.signInPair.free - 1);
+    expect(signInCounters('bo@x.example', '10.1.1.1', db).map((c) => c.rule.scope)).not.toContain('signin-account');
+  });
+});
