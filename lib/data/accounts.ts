@@ -51,7 +51,8 @@ export function chargeSignUp(clientAddress: string): void {
 /** ApiError 400 on the `password` field when the password is common or trivial (lib/auth/password-strength.ts). */
 export function assertStrongPassword(password: string, userInputs: string[]): void {
   const weakness = passwordWeakness(password, userInputs);
-  if (weakness) throw new ApiError('bad_request', weakness, { fieldErrors: { password: [weakness] } });
+  // The reason goes on the field (forms show it there); the top-level message stays short so it is not said twice.
+  if (weakness) throw new ApiError('bad_request', 'Choose a password that is harder to guess.', { fieldErrors: { password: [weakness] } });
 }
 
 /** Whether an account exists for this (lower-cased) e-mail. */
