@@ -17,6 +17,19 @@ try {
 
 const port = process.env.PORT ?? '3000';
 const host = process.env.HOST ?? '127.0.0.1';
+// Links in mail are built from TRENCHANT_PUBLIC_URL only, and the production server refuses to start without it.
+// For the local demo on a loopback address the default is this server's own loopback URL; anywhere else the
+// address people reach the server at cannot be guessed, so it must be set.
+if (!process.env.TRENCHANT_PUBLIC_URL) {
+  const loopback = ['127.0.0.1', 'localhost', '::1'].includes(host) || host.startsWith('127.');
+  if (!loopback) {
+    console.error(`[trenchant] HOST=${host} is not a loopback address: set TRENCHANT_PUBLIC_URL to the URL people open Trenchant at (e.g. https://trenchant.example.com).`);
+    process.exit(1);
+  }
+  const urlHost = host === '::1' ? '[::1]' : host === '127.0.0.1' ? 'localhost' : host;
+  process.env.TRENCHANT_PUBLIC_URL = `http://${urlHost}:${port}`;
+  console.log(`[trenchant] TRENCHANT_PUBLIC_URL not set; links in mail use ${process.env.TRENCHANT_PUBLIC_URL}`);
+}
 // Started as `node .../next start` so this child's pid is the server itself (npx would leave it orphaned).
 const server = spawn(process.execPath, [path.join(root, 'node_modules', 'next', 'dist', 'bin', 'next'), 'start', '-H', host, '-p', port], {
   cwd: root,

@@ -1,17 +1,19 @@
 'use server';
 
+import { headers } from 'next/headers';
 import { redirect } from 'next/navigation';
 import { endSession, startSession } from '@/lib/auth/session';
 import { authenticate, signUp } from '@/lib/data/accounts';
 import { signInInput, signUpInput } from '@/lib/data/schemas';
-import { safeNextPath } from '@/lib/http/base-url';
+import { clientAddress } from '@/lib/http/client-address';
+import { safeNextPath } from '@/lib/http/safe-next';
 import { errorToFormState, formValues, type FormState } from '@/lib/http/form-state';
 
 export async function signInAction(_prev: FormState, formData: FormData): Promise<FormState> {
   const { password: _pw, ...values } = formValues(formData);
   try {
     const input = signInInput.parse(formValues(formData));
-    const user = await authenticate(input);
+    const user = await authenticate(input, clientAddress(await headers()));
     await startSession(user.id);
   } catch (error) {
     return errorToFormState(error, values);
@@ -23,7 +25,7 @@ export async function signUpAction(_prev: FormState, formData: FormData): Promis
   const { password: _pw, ...values } = formValues(formData);
   try {
     const input = signUpInput.parse(formValues(formData));
-    const user = await signUp(input);
+    const user = await signUp(input, clientAddress(await headers()));
     await startSession(user.id);
   } catch (error) {
     return errorToFormState(error, values);

@@ -2,12 +2,14 @@ import { DrizzleSQLiteAdapter } from '@lucia-auth/adapter-drizzle';
 import { Lucia, TimeSpan } from 'lucia';
 import { getDb } from '@/db/client';
 import { sessions, users } from '@/db/schema';
+import { HashedSessionAdapter } from './hashed-session-adapter';
 
 /** Name of the session cookie (httpOnly, SameSite=Lax). */
 export const SESSION_COOKIE = 'trenchant_session';
 
 function createLucia() {
-  return new Lucia(new DrizzleSQLiteAdapter(getDb(), sessions, users), {
+  // Session ids are stored as SHA-256 hashes (see HashedSessionAdapter); the cookie carries the plain id.
+  return new Lucia(new HashedSessionAdapter(new DrizzleSQLiteAdapter(getDb(), sessions, users)), {
     sessionExpiresIn: new TimeSpan(30, 'd'),
     sessionCookie: {
       name: SESSION_COOKIE,

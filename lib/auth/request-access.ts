@@ -11,12 +11,12 @@ import { requireUser, type AuthUser } from './session';
 export type RequestAuth = { user: AuthUser; tokenTeamId: string | null };
 
 /**
- * Authenticates an API request: `Authorization: Bearer <token>` when present (a bad or revoked token is 401 —
- * there is no fallback to the cookie), else the session cookie. Non-GET cookie requests must pass the
- * same-origin check; Bearer requests carry no ambient credentials and are exempt.
+ * Authenticates an API request in exactly one way. With an Authorization header: by the Bearer token alone — the
+ * cookie is ignored, a malformed, unknown or revoked token is 401 and nothing falls back to the session; no Origin
+ * check, since a token is no ambient credential a foreign site could make a browser send. Without one: by the
+ * session cookie, and every unsafe method must pass the same-origin check first.
  */
 export async function authenticateRequest(request: Request): Promise<RequestAuth> {
-  assertSameOrigin(request);
   const header = request.headers.get('authorization');
   if (header !== null) {
     const m = /^Bearer\s+(\S+)\s*$/i.exec(header);
@@ -25,7 +25,21 @@ export async function authenticateRequest(request: Request): Promise<RequestAuth
     if (!resolved) throw new ApiError('unauthorized', 'API token is not valid or has been revoked.');
     return { user: resolved.user, tokenTeamId: resolved.teamId };
   }
+  assertSameOrigin(request);
   return { user: await requireUser(), tokenTeamId: null };
+}
+
+/**
+ * For cookie-only endpoints (sign-out, accepting an invitation, ...): refuses any Authorization header with 401
+ * (a token cannot act there, and its presence must not let a cookie through unchecked), then the Origin check,
+ * then the session.
+ */
+export async function requireCookieUser(request: Request): Promise<AuthUser> {
+  if (request.headers.get('authorization') !== null) {
+    throw new ApiError('unauthorized', 'This endpoint takes the browser session only, not an API token.');
+  }
+  assertSameOrigin(request);
+  return requireUser();
 }
 
 /** A token only reaches its own team; other teams' resources look like they do not exist. */

@@ -1,6 +1,6 @@
 import 'server-only';
 import type { Session } from 'lucia';
-import { cookies } from 'next/headers';
+import { cookies, headers } from 'next/headers';
 import { cache } from 'react';
 import { ApiError } from '@/lib/http/errors';
 import { getLucia } from './lucia';
@@ -17,6 +17,9 @@ export type SessionResult = { user: AuthUser; session: Session } | { user: null;
  */
 export const getCurrentSession = cache(async (): Promise<SessionResult> => {
   const lucia = getLucia();
+  // A request with an Authorization header is authenticated by its token or not at all; its cookie never counts
+  // (lib/auth/request-access.ts), so a token-bearing request cannot slip past the Origin check on the cookie.
+  if ((await headers()).get('authorization') !== null) return { user: null, session: null };
   const store = await cookies();
   const sessionId = store.get(lucia.sessionCookieName)?.value ?? null;
   if (!sessionId) return { user: null, session: null };

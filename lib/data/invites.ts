@@ -8,6 +8,7 @@ import { requireTeamPermission } from '@/lib/auth/guard';
 import { ROLE_LABEL, type TeamRole } from '@/lib/auth/permissions';
 import type { AuthUser } from '@/lib/auth/session';
 import { ApiError } from '@/lib/http/errors';
+import { mailBaseUrl, PublicUrlError } from '@/lib/http/public-url';
 import { sendMail } from '@/lib/mail/send';
 import { recordAudit } from './audit';
 import type { inviteInput } from './schemas';
@@ -22,16 +23,23 @@ function tokenHash(token: string): string {
 }
 
 /**
- * Invites `email` to the team with `role` ('members.invite') and mails the link `${baseUrl}/invite/<token>`.
+ * Invites `email` to the team with `role` ('members.invite') and mails the link `<TRENCHANT_PUBLIC_URL>/invite/<token>`
+ * (never built from the request's Host). Without a configured public URL in production nothing is stored or sent.
  * Re-inviting the same address replaces its pending invite. 409 when the address is already a member.
  */
 export async function createInvite(
   teamId: string,
   input: z.infer<typeof inviteInput>,
-  baseUrl: string,
   user?: AuthUser,
 ): Promise<InviteDTO> {
   const access = await requireTeamPermission(teamId, 'members.invite', user);
+  let baseUrl: string;
+  try {
+    baseUrl = mailBaseUrl();
+  } catch (error) {
+    if (error instanceof PublicUrlError) throw new ApiError('internal', error.message);
+    throw error;
+  }
   const db = getDb();
   const team = db.select().from(teams).where(eq(teams.id, teamId)).get();
   if (!team) throw new ApiError('not_found', 'Team not found.');
@@ -53,7 +61,7 @@ export async function createInvite(
     tx.delete(invites).where(and(eq(invites.teamId, teamId), eq(invites.email, input.email), isNull(invites.acceptedAt))).run();
     tx.insert(invites).values(row).run();
   });
-  const link = `${baseUrl.replace(/\/$/, '')}/invite/${token}`;
+  const link = `${baseUrl}/invite/${token}`;
   await sendMail({
     to: input.email,
     teamId,
@@ -81,6 +89,24 @@ export async function listPendingInvites(teamId: string, user?: AuthUser): Promi
     .orderBy(desc(invites.createdAt))
     .all()
     .map((r) => ({ id: r.id, email: r.email, role: r.role, createdAt: r.createdAt.toISOString(), expiresAt: r.expiresAt.toISOString() }));
+}
+
+/**
+ * Cancels a pending invitation of the team ('members.invite'): the row is deleted, so its link stops working at
+ * once (the invite page and accepting both answer "unknown, already used or expired"). 404 when there is no such
+ * pending invitation.
+ */
+export async function cancelInvite(teamId: string, inviteId: string, user?: AuthUser): Promise<void> {
+  const access = await requireTeamPermission(teamId, 'members.invite', user);
+  const db = getDb();
+  const row = db
+    .select({ email: invites.email })
+    .from(invites)
+    .where(and(eq(invites.id, inviteId), eq(invites.teamId, teamId), isNull(invites.acceptedAt)))
+    .get();
+  if (!row) throw new ApiError('not_found', 'No such pending invitation in this team.');
+  db.delete(invites).where(and(eq(invites.id, inviteId), eq(invites.teamId, teamId), isNull(invites.acceptedAt))).run();
+  recordAudit({ actorId: access.user.id, teamId, action: 'members.invite', target: row.email, detail: { cancelled: inviteId } });
 }
 
 /** The pending, unexpired invite behind a token, or null. Needs no session (the token is the credential). */

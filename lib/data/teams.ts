@@ -1,8 +1,8 @@
 import 'server-only';
-import { and, asc, count, eq } from 'drizzle-orm';
+import { and, asc, count, eq, isNull } from 'drizzle-orm';
 import type { z } from 'zod';
 import { getDb } from '@/db/client';
-import { memberships, teams, users } from '@/db/schema';
+import { apiTokens, memberships, teams, users } from '@/db/schema';
 import { requireTeamMember, requireTeamPermission } from '@/lib/auth/guard';
 import type { TeamRole } from '@/lib/auth/permissions';
 import { requireUser, type AuthUser } from '@/lib/auth/session';
@@ -84,9 +84,14 @@ export async function changeMemberRole(
   recordAudit({ actorId: access.user.id, teamId, action: 'team.manage', target: memberId, detail: { role: input.role } });
 }
 
-/** Removes a member ('team.manage'); the last admin cannot be removed (409). */
+/**
+ * Removes a member ('team.manage') and revokes every API token they hold for this team, in one transaction: a
+ * later re-invitation gives them a new membership but never brings an old token back. The last admin cannot
+ * be removed (409).
+ */
 export async function removeMember(teamId: string, memberId: string, user?: AuthUser): Promise<void> {
   const access = await requireTeamPermission(teamId, 'team.manage', user);
+  let revoked = 0;
   getDb().transaction((tx) => {
     const current = tx
       .select({ role: memberships.role })
@@ -98,8 +103,13 @@ export async function removeMember(teamId: string, memberId: string, user?: Auth
       throw new ApiError('conflict', 'A team needs at least one admin.');
     }
     tx.delete(memberships).where(and(eq(memberships.teamId, teamId), eq(memberships.userId, memberId))).run();
+    revoked = tx
+      .update(apiTokens)
+      .set({ revokedAt: new Date() })
+      .where(and(eq(apiTokens.teamId, teamId), eq(apiTokens.userId, memberId), isNull(apiTokens.revokedAt)))
+      .run().changes;
   });
-  recordAudit({ actorId: access.user.id, teamId, action: 'team.manage', target: memberId, detail: { removed: true } });
+  recordAudit({ actorId: access.user.id, teamId, action: 'team.manage', target: memberId, detail: { removed: true, tokensRevoked: revoked } });
 }
 
 type Tx = Parameters<Parameters<ReturnType<typeof getDb>['transaction']>[0]>[0];

@@ -1,18 +1,19 @@
+import { mailBaseUrl, PublicUrlError } from './public-url';
+
+export { safeNextPath } from './safe-next';
+
 /**
- * Absolute base URL for links in e-mails: TRENCHANT_PUBLIC_URL when set, else derived from the request's Host
- * (and X-Forwarded-Proto when TRENCHANT_TRUST_PROXY=1).
+ * Base URL shown on pages (API examples, token help). The configured public URL when there is one; otherwise the
+ * address the viewer used (display only: this value never goes into mail — see mailBaseUrl in ./public-url).
  */
 export function publicBaseUrl(headers: Headers): string {
-  const configured = process.env.TRENCHANT_PUBLIC_URL;
-  if (configured) return configured.replace(/\/$/, '');
+  try {
+    return mailBaseUrl();
+  } catch (error) {
+    if (!(error instanceof PublicUrlError)) throw error;
+  }
   const trustProxy = process.env.TRENCHANT_TRUST_PROXY === '1';
   const host = (trustProxy && headers.get('x-forwarded-host')) || headers.get('host') || '127.0.0.1:3000';
   const proto = (trustProxy && headers.get('x-forwarded-proto')) || 'http';
   return `${proto}://${host}`;
-}
-
-/** A same-site path to continue to after sign-in, or '/projects' when `next` is missing or points elsewhere. */
-export function safeNextPath(next: unknown): string {
-  if (typeof next !== 'string' || !next.startsWith('/') || next.startsWith('//') || next.startsWith('/\\')) return '/projects';
-  return next;
 }

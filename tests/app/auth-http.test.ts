@@ -62,7 +62,7 @@ describe('accounts and sessions over HTTP (demo instance)', () => {
     expect((await stolen.get('/api/v1/me')).status).toBe(401);
   });
 
-  it('rate-limits failed sign-ins per account: after 5 failures even the right password gets 429', async () => {
+  it('backs off failed sign-ins for an account from one address: after 5 failures that address waits (429), other accounts do not', async () => {
     const client = new TestClient(server.baseUrl);
     for (let i = 0; i < 5; i++) {
       expect((await client.post('/api/v1/auth/session', { email: processEngineer.email, password: `wrong-${i}-xxxxx` })).status).toBe(401);
@@ -70,7 +70,7 @@ describe('accounts and sessions over HTTP (demo instance)', () => {
     const blocked = await client.post('/api/v1/auth/session', { email: processEngineer.email, password: DEMO_PASSWORD_DEFAULT });
     expect(blocked.status).toBe(429);
     expect(Number(blocked.headers.get('retry-after'))).toBeGreaterThan(0);
-    // other accounts are unaffected
+    // other accounts are unaffected; the same account from another address is not locked (tests/security)
     expect((await client.post('/api/v1/auth/session', { email: designer.email, password: DEMO_PASSWORD_DEFAULT })).status).toBe(200);
   });
 

@@ -1,33 +1,13 @@
 import nodemailer from 'nodemailer';
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { FailureLimiter } from '@/lib/auth/rate-limit';
 import { safeNextPath } from '@/lib/http/base-url';
 import { ApiError, toErrorResponse } from '@/lib/http/errors';
 import { isSameOriginRequest } from '@/lib/http/origin';
 import { parseMessage } from '@/lib/mail/parse-message';
 import { inviteInput, signUpInput } from '@/lib/data/schemas';
 
-describe('FailureLimiter', () => {
-  it('blocks a key after maxFailures within the window and frees it when the window has passed', () => {
-    const limiter = new FailureLimiter(3, 60_000);
-    const t0 = 1_000_000;
-    for (let i = 0; i < 3; i++) {
-      expect(limiter.retryAfterMs('a', t0 + i)).toBe(0);
-      limiter.recordFailure('a', t0 + i);
-    }
-    expect(limiter.retryAfterMs('a', t0 + 10)).toBe(60_000 - 10);
-    expect(limiter.retryAfterMs('b', t0 + 10)).toBe(0);
-    expect(limiter.retryAfterMs('a', t0 + 60_001)).toBe(0);
-  });
-  it('reset() clears the failures of one key', () => {
-    const limiter = new FailureLimiter(1, 60_000);
-    limiter.recordFailure('a', 5);
-    expect(limiter.retryAfterMs('a', 6)).toBeGreaterThan(0);
-    limiter.reset('a');
-    expect(limiter.retryAfterMs('a', 6)).toBe(0);
-  });
-});
+// The sign-in limits moved to the database: tests/security/throttle.test.ts.
 
 describe('isSameOriginRequest(method, headers)', () => {
   const h = (o: Record<string, string>) => new Headers(o);
@@ -43,9 +23,10 @@ describe('isSameOriginRequest(method, headers)', () => {
     expect(isSameOriginRequest('DELETE', h({ host: 'a.test', origin: 'null' }))).toBe(false);
     expect(isSameOriginRequest('POST', h({ host: 'a.test', origin: 'http://a.test.evil.test' }))).toBe(false);
   });
-  it('falls back to Referer and exempts Bearer-token requests', () => {
+  it('falls back to Referer, and gives an Authorization header no exemption (token-only routes skip the check instead)', () => {
     expect(isSameOriginRequest('POST', h({ host: 'a.test', referer: 'http://a.test/projects' }))).toBe(true);
-    expect(isSameOriginRequest('POST', h({ host: 'a.test', authorization: 'Bearer abc' }))).toBe(true);
+    expect(isSameOriginRequest('POST', h({ host: 'a.test', authorization: 'Bearer abc' }))).toBe(false);
+    expect(isSameOriginRequest('POST', h({ host: 'a.test', authorization: 'Bearer abc', origin: 'http://evil.test' }))).toBe(false);
   });
 });
 

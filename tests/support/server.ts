@@ -73,7 +73,9 @@ export async function startTestServer(options: StartOptions = {}): Promise<TestS
     ...options.env,
   };
   delete env.SMTP_URL;
-  delete env.TRENCHANT_PUBLIC_URL;
+  // Like `npm start` on loopback: mail links point at this server unless a test sets its own value ('' = unset).
+  env.TRENCHANT_PUBLIC_URL = options.env?.TRENCHANT_PUBLIC_URL ?? `http://127.0.0.1:${port}`;
+  if (env.TRENCHANT_PUBLIC_URL === '') delete env.TRENCHANT_PUBLIC_URL;
   const child = spawn(
     process.execPath,
     [path.join(PROJECT_ROOT, 'node_modules', 'next', 'dist', 'bin', 'next'), 'start', '-H', '127.0.0.1', '-p', String(port)],

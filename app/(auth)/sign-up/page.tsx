@@ -2,7 +2,7 @@ import type { Metadata } from 'next';
 import Link from 'next/link';
 import { redirect } from 'next/navigation';
 import { getCurrentSession } from '@/lib/auth/session';
-import { safeNextPath } from '@/lib/http/base-url';
+import { safeNextPath } from '@/lib/http/safe-next';
 import { SignUpForm } from './sign-up-form';
 
 export const metadata: Metadata = { title: 'Create an account' };

@@ -20,7 +20,7 @@ export function SignUpForm({ next }: { next: string }) {
         name="password"
         type="password"
         autoComplete="new-password"
-        hint="At least 10 characters."
+        hint="At least 10 characters; common and easy-to-guess passwords are refused."
         errors={state.fieldErrors?.password}
       />
       <Field label="New team (optional)" name="teamName" defaultValue={v.teamName ?? ''} errors={state.fieldErrors?.teamName} />

@@ -1,12 +1,10 @@
 'use server';
 
 import { revalidatePath } from 'next/cache';
-import { headers } from 'next/headers';
 import { z } from 'zod';
-import { createInvite } from '@/lib/data/invites';
+import { cancelInvite, createInvite } from '@/lib/data/invites';
 import { idParam, inviteInput, roleChangeInput, teamUpdateInput } from '@/lib/data/schemas';
 import { changeMemberRole, removeMember, renameTeam } from '@/lib/data/teams';
-import { publicBaseUrl } from '@/lib/http/base-url';
 import { errorToFormState, formValues, type FormState } from '@/lib/http/form-state';
 
 // Every action re-checks the caller's role through the DAL (requireTeamPermission); the page hiding a form is
@@ -17,7 +15,7 @@ export async function inviteMemberAction(_prev: FormState, formData: FormData): 
   try {
     const teamId = idParam.parse(values.teamId);
     const input = inviteInput.parse(values);
-    await createInvite(teamId, input, publicBaseUrl(await headers()));
+    await createInvite(teamId, input);
     revalidatePath(`/teams/${teamId}`);
     return { ok: true, message: `Invitation sent to ${input.email}.` };
   } catch (error) {
@@ -38,6 +36,8 @@ export async function renameTeamAction(_prev: FormState, formData: FormData): Pr
 }
 
 const memberForm = z.object({ teamId: idParam, userId: idParam });
+// Removal is only done from the confirmation form, which carries this field.
+const removeForm = memberForm.extend({ confirm: z.literal('remove', 'Confirm the removal first.') });
 
 export async function changeRoleAction(_prev: FormState, formData: FormData): Promise<FormState> {
   const values = formValues(formData);
@@ -54,10 +54,24 @@ export async function changeRoleAction(_prev: FormState, formData: FormData): Pr
 export async function removeMemberAction(_prev: FormState, formData: FormData): Promise<FormState> {
   const values = formValues(formData);
   try {
-    const { teamId, userId } = memberForm.parse(values);
+    const { teamId, userId } = removeForm.parse(values);
     await removeMember(teamId, userId);
     revalidatePath(`/teams/${teamId}`);
-    return { ok: true, message: 'Member removed.' };
+    return { ok: true, message: 'Member removed; their API tokens for this team are revoked.' };
+  } catch (error) {
+    return errorToFormState(error, values);
+  }
+}
+
+const inviteForm = z.object({ teamId: idParam, inviteId: idParam });
+
+export async function cancelInviteAction(_prev: FormState, formData: FormData): Promise<FormState> {
+  const values = formValues(formData);
+  try {
+    const { teamId, inviteId } = inviteForm.parse(values);
+    await cancelInvite(teamId, inviteId);
+    revalidatePath(`/teams/${teamId}`);
+    return { ok: true, message: 'Invitation cancelled.' };
   } catch (error) {
     return errorToFormState(error, values);
   }

@@ -10,7 +10,7 @@ import { listPendingInvites } from '@/lib/data/invites';
 import { idParam } from '@/lib/data/schemas';
 import { getTeamOverview } from '@/lib/data/teams';
 import { isApiError } from '@/lib/http/errors';
-import { InviteForm, MemberControls, RenameTeamForm } from './team-forms';
+import { CancelInviteButton, InviteForm, MemberControls, RenameTeamForm } from './team-forms';
 
 export const metadata: Metadata = { title: 'Team' };
 
@@ -53,7 +53,7 @@ export default async function TeamPage({ params }: { params: Promise<{ teamId: s
                     <p className="text-sm font-medium">{m.name}</p>
                     <p className="font-mono text-xs text-ink-500">{m.email}</p>
                   </div>
-                  {manage ? <MemberControls teamId={teamId} userId={m.userId} role={m.role} /> : <RoleBadge role={m.role} />}
+                  {manage ? <MemberControls teamId={teamId} userId={m.userId} role={m.role} name={m.name} /> : <RoleBadge role={m.role} />}
                 </li>
               ))}
             </ul>
@@ -61,11 +61,14 @@ export default async function TeamPage({ params }: { params: Promise<{ teamId: s
           {pending.length > 0 ? (
             <Card>
               <h2 className="border-b border-wafer-200 px-5 py-3 text-sm font-semibold">Pending invitations</h2>
-              <ul className="divide-y divide-wafer-200">
+              <ul className="divide-y divide-wafer-200" data-testid="pending-invites">
                 {pending.map((p) => (
-                  <li key={p.id} className="flex items-center justify-between px-5 py-2.5 text-sm">
+                  <li key={p.id} className="flex items-center justify-between gap-3 px-5 py-2.5 text-sm">
                     <span className="font-mono text-xs">{p.email}</span>
-                    <RoleBadge role={p.role} />
+                    <span className="flex items-center gap-3">
+                      <RoleBadge role={p.role} />
+                      <CancelInviteButton teamId={teamId} inviteId={p.id} email={p.email} />
+                    </span>
                   </li>
                 ))}
               </ul>

@@ -1,11 +1,13 @@
 'use server';
 
+import { headers } from 'next/headers';
 import { redirect } from 'next/navigation';
 import { z } from 'zod';
 import { requireUser, startSession } from '@/lib/auth/session';
 import { createAccount } from '@/lib/data/accounts';
 import { acceptInvite, findInvite } from '@/lib/data/invites';
 import { acceptInviteNewAccountInput } from '@/lib/data/schemas';
+import { clientAddress } from '@/lib/http/client-address';
 import { ApiError } from '@/lib/http/errors';
 import { errorToFormState, formValues, type FormState } from '@/lib/http/form-state';
 
@@ -32,7 +34,7 @@ export async function acceptWithNewAccountAction(_prev: FormState, formData: For
     const input = acceptInviteNewAccountInput.parse(formValues(formData));
     const invite = findInvite(token);
     if (!invite) throw new ApiError('not_found', 'This invitation is unknown, already used or expired.');
-    const user = await createAccount(input.name, invite.email, input.password);
+    const user = await createAccount(input.name, invite.email, input.password, clientAddress(await headers()));
     teamId = acceptInvite(token, user).teamId;
     await startSession(user.id);
   } catch (error) {

@@ -27,7 +27,7 @@ export function NewAccountInviteForm({ token, email }: { token: string; email: s
       <FormAlert message={state.message} />
       <Field label="E-mail" name="email-shown" value={email} readOnly disabled />
       <Field label="Your name" name="name" autoComplete="name" defaultValue={state.values?.name ?? ''} errors={state.fieldErrors?.name} />
-      <Field label="Password" name="password" type="password" autoComplete="new-password" hint="At least 10 characters." errors={state.fieldErrors?.password} />
+      <Field label="Password" name="password" type="password" autoComplete="new-password" hint="At least 10 characters; common and easy-to-guess passwords are refused." errors={state.fieldErrors?.password} />
       <Button type="submit" className="w-full" disabled={pending}>
         Create account and join
       </Button>

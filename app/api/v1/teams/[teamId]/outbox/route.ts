@@ -1,3 +1,4 @@
+import { requireTeamAccess } from '@/lib/auth/request-access';
 import { listOutbox } from '@/lib/data/outbox';
 import { idParam } from '@/lib/data/schemas';
 import { toErrorResponse } from '@/lib/http/errors';
@@ -6,9 +7,11 @@ export const runtime = 'nodejs';
 export const dynamic = 'force-dynamic';
 
 /** Mail the development SMTP server kept for this team ('outbox.view'). */
-export async function GET(_request: Request, ctx: { params: Promise<{ teamId: string }> }) {
+export async function GET(request: Request, ctx: { params: Promise<{ teamId: string }> }) {
   try {
-    return Response.json({ messages: await listOutbox(idParam.parse((await ctx.params).teamId)) });
+    const teamId = idParam.parse((await ctx.params).teamId);
+    const { user } = await requireTeamAccess(request, teamId, 'outbox.view');
+    return Response.json({ messages: await listOutbox(teamId, user) });
   } catch (error) {
     return toErrorResponse(error);
   }
