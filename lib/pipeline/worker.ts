@@ -39,7 +39,8 @@ import type { GridMap, GridUnit } from './grid-file';
 import { writeGridFile } from './grid-file-node';
 import { mapFileName } from './map-files';
 import { runAnalysis, type AnalysisStage } from './run-analysis';
-import { parseAnalysisSettings, type FieldIssue } from './settings';
+import { applyPixelBudget, DEFAULT_ANALYSIS_MEMORY_MB, parseAnalysisSettings, type FieldIssue } from './settings';
+import { dieFrame } from './etch-layers';
 import type { AnalysisSummary } from './summary';
 
 export interface AnalysisTask {
@@ -120,7 +121,22 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
     post('reading', 0);
     const layout = await readLayoutFile(task.layoutPath, { signal: controller.signal, ...(task.topCell ? { topCell: task.topCell } : {}) });
     const flag = task.cancelFlag;
-    const result = runAnalysis(layout, settings.settings, model.model, {
+    // Memory budget: the automatic pixel is chosen within it; an explicit pixel beyond it is refused by name.
+    const bbox = layout.bboxDbu;
+    const dieUm: [number, number] = bbox ? [(bbox[2] - bbox[0]) * layout.dbuUm, (bbox[3] - bbox[1]) * layout.dbuUm] : [0, 0];
+    const budgeted = applyPixelBudget(settings.settings, dieUm, analysisMemoryMb());
+    if (!budgeted.ok) return { ok: false, code: 'bad-input', message: budgeted.message };
+    if (task.maxResultBytes !== undefined && bbox) {
+      // Maps alone (coverage, effective density, local width, aspect ratio, depth, risk: float32 each) already
+      // over the write cap: refuse before computing anything.
+      const { grid } = dieFrame(layout, budgeted.settings);
+      const mapBytes = 6 * 4 * grid.nx * grid.ny;
+      if (mapBytes > task.maxResultBytes) {
+        const label = task.resultBudgetLabel ?? `the limit of ${(task.maxResultBytes / MiB).toFixed(0)} MiB per analysis`;
+        return { ok: false, code: 'over-budget', message: overBudgetMessage(mapBytes, label, 0, 6).replace(' (0 openings, 6 maps)', ` (6 maps of ${grid.nx} × ${grid.ny} pixels at ${grid.pixelUm} µm)`) };
+      }
+    }
+    const result = runAnalysis(layout, budgeted.settings, model.model, {
       signal: controller.signal,
       ...(flag ? { isCancelled: () => Atomics.load(flag, 0) !== 0 } : {}),
       onProgress: (stage, f) => post(stage === 'done' ? 'writing' : stage, READ_SHARE + (1 - READ_SHARE - WRITE_SHARE) * f),
@@ -162,6 +178,12 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
 }
 
 const MiB = 1024 * 1024;
+
+/** Memory for one analysis's pixel maps: TRENCHANT_ANALYSIS_MEMORY_MB, default DEFAULT_ANALYSIS_MEMORY_MB. */
+function analysisMemoryMb(): number {
+  const v = Number(process.env.TRENCHANT_ANALYSIS_MEMORY_MB);
+  return Number.isFinite(v) && v > 0 ? v : DEFAULT_ANALYSIS_MEMORY_MB;
+}
 
 function overBudgetMessage(planned: number, label: string, features: number, maps: number): string {
   return `the results would take ${(planned / MiB).toFixed(1)} MiB (${features} openings, ${maps} maps), above ${label}; choose a coarser pixel (pixel.sizeUm or pixel.maxPixels) or fewer density windows, or ask a team admin to raise the limit`;
