@@ -38,3 +38,10 @@ export async function checkUploadInWorker(file: string, limits: UploadLimits, si
   const p = await pool();
   return p.run({ file, limits }, signal ? { signal } : {});
 }
+
+/** Stops the pool's threads (benchmarks, tests; the server keeps its pool). */
+export async function closeUploadPool(): Promise<void> {
+  const p = holder.__trenchantUploadPool;
+  holder.__trenchantUploadPool = undefined;
+  if (p) await (await p).destroy();
+}

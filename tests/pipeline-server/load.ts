@@ -1,0 +1,55 @@
+/**
+ * A bounded loopback load for a started test server: `clients` concurrent loops request pages and API routes
+ * (signed in as the demo roles) for `durationMs`, while upload bombs are sent alongside. Used by the load test
+ * (tests/pipeline-server/load.test.ts: every request answered, every bomb refused) and by the benchmark
+ * (bench/load.bench.ts: latency percentiles).
+ */
+import type { TestClient } from '../support/http';
+import { PROJECT, signInAs, upload } from './support';
+
+export type LoadSample = { path: string; status: number; ms: number };
+export type BombSample = { status: number; ms: number; message: string };
+export type LoadResult = { samples: LoadSample[]; bombs: BombSample[]; wallMs: number };
+
+export const LOAD_PATHS = ['/projects', `/projects/${PROJECT}`, '/methods', '/api/v1/me', `/api/v1/projects/${PROJECT}/layouts`, `/api/v1/projects/${PROJECT}/analyses`];
+
+export async function runLoad(baseUrl: string, opts: { clients: number; durationMs: number; bomb: Uint8Array; bombs: number }): Promise<LoadResult> {
+  const roles = ['designer', 'process_engineer', 'reviewer', 'admin'] as const;
+  const sessions: TestClient[] = [];
+  for (const role of roles) sessions.push(await signInAs(baseUrl, role));
+  const uploader = sessions[0] as TestClient;
+  // Warm every route once (first hits compile nothing under next start, but fill caches and open the DB).
+  for (const p of LOAD_PATHS) await (await uploader.get(p)).arrayBuffer();
+
+  const samples: LoadSample[] = [];
+  const bombs: BombSample[] = [];
+  const t0 = performance.now();
+  const until = t0 + opts.durationMs;
+  const loop = async (k: number) => {
+    const client = sessions[k % sessions.length] as TestClient;
+    let n = k;
+    while (performance.now() < until) {
+      const path = LOAD_PATHS[n++ % LOAD_PATHS.length] as string;
+      const t = performance.now();
+      const res = await client.get(path);
+      await res.arrayBuffer();
+      samples.push({ path, status: res.status, ms: performance.now() - t });
+    }
+  };
+  const bomber = async () => {
+    for (let b = 0; b < opts.bombs; b++) {
+      const t = performance.now();
+      const res = await upload(uploader, `/api/v1/projects/${PROJECT}/layouts`, opts.bomb, 'bomb.gds', { name: `bomb ${b}` });
+      const body = (await res.json().catch(() => ({}))) as { error?: { message?: string } };
+      bombs.push({ status: res.status, ms: performance.now() - t, message: body.error?.message ?? '' });
+    }
+  };
+  await Promise.all([...Array.from({ length: opts.clients }, (_, k) => loop(k)), bomber()]);
+  return { samples, bombs, wallMs: performance.now() - t0 };
+}
+
+export function percentile(values: number[], p: number): number {
+  if (values.length === 0) return Number.NaN;
+  const sorted = [...values].sort((a, b) => a - b);
+  return sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)] as number;
+}
