@@ -156,7 +156,7 @@ class JobRunner {
     if (row.attempts > maxAttempts) {
       this.finish(row.id, 'failed', {
         code: 'too-many-attempts',
-        message: `This analysis was interrupted ${row.attempts - 1} times (the server stopped while it ran) and was not started again (limit: ${maxAttempts} attempts, TRENCHANT_JOB_MAX_ATTEMPTS). Try a coarser pixel or a smaller layout, or start it again.`,
+        message: `This analysis was interrupted ${row.attempts - 1 === 1 ? 'once' : `${row.attempts - 1} times`} (the server stopped while it ran) and was not started again (limit: ${maxAttempts} attempts, TRENCHANT_JOB_MAX_ATTEMPTS). Try a coarser pixel or a smaller layout, or start it again.`,
       });
       return this.claimNext();
     }
