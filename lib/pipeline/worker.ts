@@ -26,7 +26,7 @@
  * carrying a million objects through structured clone. A failed task leaves only complete files, which the runner
  * may delete.
  */
-import { mkdir, rename, unlink, writeFile } from 'node:fs/promises';
+import { mkdir, open, rename, unlink } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { MessagePort } from 'node:worker_threads';
 import { encodeFeatureFile, FEATURE_FILE_NAME } from '../jobs/feature-file';
@@ -146,7 +146,7 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
     const featureBytes = encodeFeatureFile(result.features);
     // TRGRID1 header + metadata stays far below 64 KiB; float32 samples dominate.
     const mapBytes = result.maps.reduce((n, m) => n + m.grid.nx * m.grid.ny * 4 + 65_536, 0);
-    const planned = featureBytes.length + mapBytes;
+    const planned = featureBytes.byteLength + mapBytes;
     if (task.maxResultBytes !== undefined && planned > task.maxResultBytes) {
       const label = task.resultBudgetLabel ?? `the limit of ${(task.maxResultBytes / MiB).toFixed(0)} MiB per analysis`;
       return { ok: false, code: 'over-budget', message: overBudgetMessage(planned, label, result.features.length, result.maps.length) };
@@ -154,8 +154,8 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
     if (isCancelled()) return cancelled();
 
     await mkdir(task.outDir, { recursive: true });
-    await writeAtomic(join(task.outDir, FEATURE_FILE_NAME), featureBytes);
-    const featureFile: FeatureFileInfo = { file: FEATURE_FILE_NAME, count: result.features.length, bytes: featureBytes.length };
+    await writeAtomic(join(task.outDir, FEATURE_FILE_NAME), [featureBytes.body, featureBytes.tables]);
+    const featureFile: FeatureFileInfo = { file: FEATURE_FILE_NAME, count: result.features.length, bytes: featureBytes.byteLength };
     const maps: MapFile[] = [];
     for (const [n, map] of result.maps.entries()) {
       if (isCancelled()) return cancelled();
@@ -189,11 +189,19 @@ function overBudgetMessage(planned: number, label: string, features: number, map
   return `the results would take ${(planned / MiB).toFixed(1)} MiB (${features} openings, ${maps} maps), above ${label}; choose a coarser pixel (pixel.sizeUm or pixel.maxPixels) or fewer density windows, or ask a team admin to raise the limit`;
 }
 
-/** Write to a temporary name, then rename (a reader never sees half a file). */
-async function writeAtomic(path: string, bytes: Uint8Array): Promise<void> {
+/** Write the parts in order to a temporary name, then rename (a reader never sees half a file). */
+async function writeAtomic(path: string, parts: Uint8Array[]): Promise<void> {
   const tmp = `${path}.tmp-${process.pid}`;
   try {
-    await writeFile(tmp, bytes);
+    const fh = await open(tmp, 'w');
+    try {
+      for (const part of parts) {
+        let done = 0;
+        while (done < part.length) done += (await fh.write(part, done, part.length - done)).bytesWritten;
+      }
+    } finally {
+      await fh.close();
+    }
     await rename(tmp, path);
   } catch (err) {
     await unlink(tmp).catch(() => undefined);

@@ -8,7 +8,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { readFeatureColumns } from '@/lib/jobs/feature-columns';
-import { encodeFeatureFile, readFeatureRange } from '@/lib/jobs/feature-file';
+import { encodeFeatureFile, featureFileBytes, readFeatureRange } from '@/lib/jobs/feature-file';
 import { getResults } from '@/lib/jobs/results';
 import { insertDoneAnalysis, inventedResults, saveAsFile, saveAsRows, tempDb } from './results-store';
 
@@ -52,7 +52,7 @@ describe('feature column file', () => {
   });
 
   it('an empty result set round-trips', () => {
-    const bytes = encodeFeatureFile([]);
+    const bytes = featureFileBytes(encodeFeatureFile([]));
     const f = path.join(dir, 'empty.trfeat');
     writeFileSync(f, bytes);
     expect(readFeatureRange(f, 0, 100).count).toBe(0);
@@ -60,7 +60,7 @@ describe('feature column file', () => {
 
   it('a file with a damaged magic is refused by name', () => {
     const f = path.join(dir, 'bad.trfeat');
-    const bytes = encodeFeatureFile(inventedResults(3));
+    const bytes = featureFileBytes(encodeFeatureFile(inventedResults(3)));
     bytes[0] = 0x58;
     writeFileSync(f, bytes);
     expect(() => readFeatureRange(f, 0, 1)).toThrow(/bad\.trfeat: not a TRFEAT1 file/);

@@ -6,7 +6,7 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { openDatabase, type Db } from '@/db/client';
-import { encodeFeatureFile, FEATURE_FILE_NAME } from '@/lib/jobs/feature-file';
+import { encodeFeatureFile, FEATURE_FILE_NAME, featureFileBytes } from '@/lib/jobs/feature-file';
 import type { FeatureResult } from '@/lib/pipeline/predict-features';
 
 const SHAPES: FeatureResult['shape'][] = ['trench', 'round-hole', 'square-hole', 'open-field', 'irregular'];
@@ -73,7 +73,7 @@ export function saveAsRows(db: Db, analysisId: string, results: FeatureResult[])
 
 /** The new storage: the worker's column file in the analysis folder plus its index row. */
 export function saveAsFile(db: Db, dataDir: string, analysisId: string, results: FeatureResult[]): number {
-  const bytes = encodeFeatureFile(results);
+  const bytes = featureFileBytes(encodeFeatureFile(results));
   const dir = path.join(dataDir, 'analyses', analysisId);
   mkdirSync(dir, { recursive: true });
   writeFileSync(path.join(dir, FEATURE_FILE_NAME), bytes);
