@@ -37,11 +37,13 @@ describe('team limits form', () => {
     await expect(form.getByLabel('Polygons per layout (after flattening)').inputValue()).resolves.toBe('10000000');
     await form.getByLabel('Polygons per layout (after flattening)').fill('12');
     await form.getByRole('button', { name: 'Save limits' }).click();
+    await page.getByTestId('error-maxPolygons').waitFor({ timeout: 30_000 });
     await expect(page.getByTestId('error-maxPolygons').textContent()).resolves.toContain('at least 1,000');
     await form.getByLabel('Polygons per layout (after flattening)').fill('2500000');
     await form.getByLabel('Result size per analysis (MiB)').fill('512');
     await form.getByRole('button', { name: 'Save limits' }).click();
-    await expect(form.getByTestId('form-message').textContent()).resolves.toContain('Limits saved');
+    // The earlier "Please correct…" message stays until the new state arrives: wait for the success text itself.
+    await form.getByText('Limits saved').waitFor({ timeout: 30_000 });
     await screenshot(page, 'team-limits');
     const admin = await signInAs(server.baseUrl, 'admin');
     const got = await json<{ limits: { maxPolygons: number; maxAnalysisBytes: number } }>(await admin.get(`/api/v1/teams/${DEMO_TEAM.id}/limits`));
