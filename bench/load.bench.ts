@@ -5,7 +5,7 @@
  */
 import { loadavg } from 'node:os';
 import { pathToFileURL } from 'node:url';
-import { arefBombGds } from '../tests/jobs/bombs';
+import { arefBombGds, squaresCsv } from '../tests/jobs/bombs';
 import { LOAD_PATHS, percentile, runLoad } from '../tests/pipeline-server/load';
 import { startTestServer } from '../tests/support/server';
 
@@ -15,7 +15,9 @@ export default async function loadBench(): Promise<void> {
     // Let the seeded demo analysis finish so the load does not share the CPU with it.
     await new Promise((r) => setTimeout(r, 8000));
     console.log(`load average ${loadavg().map((v) => v.toFixed(2)).join(' ')}`);
-    const r = await runLoad(server.baseUrl, { clients: 20, durationMs: 15_000, bomb: arefBombGds(), bombs: 10 });
+    // Plus one ~85 MB polygon CSV (1 M squares, 4 M vertex lines), a legitimate large upload checked alongside.
+    const csv = squaresCsv(1_000_000);
+    const r = await runLoad(server.baseUrl, { clients: 20, durationMs: 20_000, bomb: arefBombGds(), bombs: 10, uploads: [{ name: 'big.csv', bytes: csv }] });
     const all = r.samples.map((x) => x.ms);
     const fmt = (v: number) => `${v.toFixed(0)} ms`.padStart(8);
     console.log(`20 clients, ${(r.wallMs / 1000).toFixed(1)} s: ${r.samples.length} requests (${(r.samples.length / (r.wallMs / 1000)).toFixed(0)}/s), ${r.samples.filter((x) => x.status !== 200).length} not 200`);
@@ -26,6 +28,7 @@ export default async function loadBench(): Promise<void> {
     }
     console.log(`  ${'all'.padEnd(44)} ${fmt(percentile(all, 50))} ${fmt(percentile(all, 99))} ${fmt(Math.max(...all))}`);
     const b = r.bombs.map((x) => x.ms);
+    for (const u of r.uploads) console.log(`  upload ${u.name} (${(csv.length / 2 ** 20).toFixed(0)} MiB): ${u.status} in ${(u.ms / 1000).toFixed(1)} s`);
     console.log(`  bombs: ${r.bombs.length} sent, statuses ${[...new Set(r.bombs.map((x) => x.status))].join(',')}, refusal p50 ${fmt(percentile(b, 50))}, max ${fmt(Math.max(...b))}`);
   } finally {
     await server.stop();

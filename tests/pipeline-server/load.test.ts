@@ -7,7 +7,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startTestServer, type TestServer } from '../support/server';
-import { arefBombGds } from '../jobs/bombs';
+import { arefBombGds, squaresCsv } from '../jobs/bombs';
 import { leftovers } from './support';
 import { runLoad } from './load';
 
@@ -20,10 +20,12 @@ describe('load while an upload bomb is refused', () => {
 
   it('answers every page and API request and refuses every bomb with 422', async () => {
     const before = leftovers(server.dbFile);
-    const r = await runLoad(server.baseUrl, { clients: 20, durationMs: 6_000, bomb: arefBombGds(), bombs: 3 });
+    // Also a 200 000-square polygon CSV (≈ 17 MB): checked in the upload pool while the clients are served.
+    const r = await runLoad(server.baseUrl, { clients: 20, durationMs: 6_000, bomb: arefBombGds(), bombs: 3, uploads: [{ name: 'csv200k.csv', bytes: squaresCsv(200_000) }] });
     expect(r.samples.length).toBeGreaterThan(40);
     const bad = r.samples.filter((x) => x.status !== 200);
     expect(bad, JSON.stringify(bad.slice(0, 5))).toEqual([]);
+    expect(r.uploads).toMatchObject([{ name: 'csv200k.csv', status: 201 }]);
     expect(r.bombs).toHaveLength(3);
     for (const b of r.bombs) {
       expect(b.status).toBe(422);
@@ -33,6 +35,6 @@ describe('load while an upload bomb is refused', () => {
     // Liveness only (generous): no single request waits anywhere near a frozen server's many seconds.
     expect(Math.max(...r.samples.map((x) => x.ms))).toBeLessThan(15_000);
     const after = leftovers(server.dbFile);
-    expect(after).toMatchObject({ revisions: before.revisions, layoutFiles: before.layoutFiles, tmpFiles: 0 });
+    expect(after).toMatchObject({ revisions: before.revisions + 1, layoutFiles: before.layoutFiles + 1, tmpFiles: 0 });
   });
 });

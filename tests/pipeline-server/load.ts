@@ -9,11 +9,15 @@ import { PROJECT, signInAs, upload } from './support';
 
 export type LoadSample = { path: string; status: number; ms: number };
 export type BombSample = { status: number; ms: number; message: string };
-export type LoadResult = { samples: LoadSample[]; bombs: BombSample[]; wallMs: number };
+export type UploadSample = { name: string; status: number; ms: number };
+export type LoadResult = { samples: LoadSample[]; bombs: BombSample[]; uploads: UploadSample[]; wallMs: number };
 
 export const LOAD_PATHS = ['/projects', `/projects/${PROJECT}`, '/methods', '/api/v1/me', `/api/v1/projects/${PROJECT}/layouts`, `/api/v1/projects/${PROJECT}/analyses`];
 
-export async function runLoad(baseUrl: string, opts: { clients: number; durationMs: number; bomb: Uint8Array; bombs: number }): Promise<LoadResult> {
+export async function runLoad(
+  baseUrl: string,
+  opts: { clients: number; durationMs: number; bomb: Uint8Array; bombs: number; uploads?: { name: string; bytes: Uint8Array | string }[] },
+): Promise<LoadResult> {
   const roles = ['designer', 'process_engineer', 'reviewer', 'admin'] as const;
   const sessions: TestClient[] = [];
   for (const role of roles) sessions.push(await signInAs(baseUrl, role));
@@ -23,6 +27,7 @@ export async function runLoad(baseUrl: string, opts: { clients: number; duration
 
   const samples: LoadSample[] = [];
   const bombs: BombSample[] = [];
+  const uploads: UploadSample[] = [];
   const t0 = performance.now();
   const until = t0 + opts.durationMs;
   const loop = async (k: number) => {
@@ -44,8 +49,18 @@ export async function runLoad(baseUrl: string, opts: { clients: number; duration
       bombs.push({ status: res.status, ms: performance.now() - t, message: body.error?.message ?? '' });
     }
   };
-  await Promise.all([...Array.from({ length: opts.clients }, (_, k) => loop(k)), bomber()]);
-  return { samples, bombs, wallMs: performance.now() - t0 };
+  // Large legitimate uploads (e.g. a big CSV) alongside, from another session.
+  const uploader2 = sessions[3] as TestClient;
+  const bigUploads = async () => {
+    for (const u of opts.uploads ?? []) {
+      const t = performance.now();
+      const res = await upload(uploader2, `/api/v1/projects/${PROJECT}/layouts`, u.bytes, u.name, { name: u.name });
+      await res.arrayBuffer();
+      uploads.push({ name: u.name, status: res.status, ms: performance.now() - t });
+    }
+  };
+  await Promise.all([...Array.from({ length: opts.clients }, (_, k) => loop(k)), bomber(), bigUploads()]);
+  return { samples, bombs, uploads, wallMs: performance.now() - t0 };
 }
 
 export function percentile(values: number[], p: number): number {
