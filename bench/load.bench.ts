@@ -16,8 +16,9 @@ export default async function loadBench(): Promise<void> {
     await new Promise((r) => setTimeout(r, 8000));
     console.log(`load average ${loadavg().map((v) => v.toFixed(2)).join(' ')}`);
     // Plus one ~85 MB polygon CSV (1 M squares, 4 M vertex lines), a legitimate large upload checked alongside.
-    const csv = squaresCsv(1_000_000);
-    const r = await runLoad(server.baseUrl, { clients: 20, durationMs: 20_000, bomb: arefBombGds(), bombs: 10, uploads: [{ name: 'big.csv', bytes: csv }] });
+    // BENCH_LOAD_CSV=0 leaves it out (bombs only).
+    const csv = process.env.BENCH_LOAD_CSV === '0' ? '' : squaresCsv(1_000_000);
+    const r = await runLoad(server.baseUrl, { clients: 20, durationMs: 20_000, bomb: arefBombGds(), bombs: 10, uploads: csv ? [{ name: 'big.csv', bytes: csv }] : [] });
     const all = r.samples.map((x) => x.ms);
     const fmt = (v: number) => `${v.toFixed(0)} ms`.padStart(8);
     console.log(`20 clients, ${(r.wallMs / 1000).toFixed(1)} s: ${r.samples.length} requests (${(r.samples.length / (r.wallMs / 1000)).toFixed(0)}/s), ${r.samples.filter((x) => x.status !== 200).length} not 200`);

@@ -6,8 +6,8 @@
  *
  * Early refusal: GDSII is parsed (raw records only, bounded by the file size), then the flattened polygon and
  * point counts are computed bottom-up over the cell graph and compared with the limits before any flattened
- * coordinate is allocated. CSV vertices are counted while streaming and reading stops at the first vertex past
- * the limit; CSV polygons (≥ 3 vertices each, so bounded by the point limit) are compared at the end.
+ * coordinate is allocated. CSV polygons (csv-polygon-counter.ts) and vertices are counted while streaming and
+ * reading stops at the first polygon or vertex past its limit.
  */
 import { createReadStream } from 'node:fs';
 import { LayoutReadError } from '@/lib/layout/errors';
@@ -16,6 +16,7 @@ import { flattenLibrary } from '@/lib/layout/flatten';
 import { GdsiiParser } from '@/lib/layout/gdsii-parser';
 import { bottomUpOrder, cellTotals, checkMissingCells, chooseTopCell } from '@/lib/layout/hierarchy';
 import type { FlatLayout } from '@/lib/layout/types';
+import { CsvPolygonCounter } from './csv-polygon-counter';
 
 export type UploadLimits = { maxPolygons: number; maxPoints: number };
 export type LimitName = 'polygons' | 'points';
@@ -76,7 +77,14 @@ function sniff(head: Uint8Array): 'gdsii' | 'csv' | null {
 export async function checkLayoutChunks(chunks: AsyncIterable<Uint8Array>, limits: UploadLimits): Promise<UploadCheckResult> {
   let gds: GdsiiParser | null = null;
   let csv: CsvPolygonReader | null = null;
+  const counter = new CsvPolygonCounter();
   let head = new Uint8Array(0);
+  // CSV: count polygons on the bytes first, so a file over the limit stops at the first polygon past it.
+  const feedCsv = (bytes: Uint8Array): UploadCheckResult | null => {
+    if (counter.push(bytes) > limits.maxPolygons) return overLimit('polygons', limits.maxPolygons, limits.maxPolygons + 1, true, ` (refused at CSV line ${counter.line})`);
+    csv!.push(bytes);
+    return null;
+  };
   try {
     for await (const input of chunks) {
       const chunk = input.constructor === Uint8Array ? input : new Uint8Array(input.buffer, input.byteOffset, input.byteLength);
@@ -90,10 +98,18 @@ export async function checkLayoutChunks(chunks: AsyncIterable<Uint8Array>, limit
         if (kind === 'gdsii') gds = new GdsiiParser();
         else if (kind === 'csv') csv = new CsvPolygonReader(limits.maxPoints);
         else return { ok: false, code: 'unreadable', message: `not a GDSII stream (no HEADER record at byte 0) nor a "${CSV_MAGIC}" CSV` };
-        (gds ?? csv)!.push(head);
+        if (gds) gds.push(head);
+        else {
+          const refused = feedCsv(head);
+          if (refused) return refused;
+        }
         continue;
       }
-      (gds ?? csv)!.push(chunk);
+      if (gds) gds.push(chunk);
+      else {
+        const refused = feedCsv(chunk);
+        if (refused) return refused;
+      }
     }
     if (!gds && !csv) {
       const kind = sniff(head);
@@ -101,9 +117,14 @@ export async function checkLayoutChunks(chunks: AsyncIterable<Uint8Array>, limit
       if (kind === 'gdsii') gds = new GdsiiParser();
       else if (kind === 'csv') csv = new CsvPolygonReader(limits.maxPoints);
       else return { ok: false, code: 'unreadable', message: `not a GDSII stream (no HEADER record at byte 0) nor a "${CSV_MAGIC}" CSV` };
-      (gds ?? csv)!.push(head);
+      if (gds) gds.push(head);
+      else {
+        const refused = feedCsv(head);
+        if (refused) return refused;
+      }
     }
     if (csv) {
+      if (counter.finish() > limits.maxPolygons) return overLimit('polygons', limits.maxPolygons, limits.maxPolygons + 1, true, ` (refused at CSV line ${counter.line})`);
       const layout = csv.finish();
       const d = describe(layout);
       if (d.polygonCount > limits.maxPolygons) return overLimit('polygons', limits.maxPolygons, d.polygonCount, false);

@@ -63,10 +63,35 @@ describe('upload check limits', () => {
     expect(r.message).toContain('more than 1,000 flattened points');
   });
 
-  it('refuses a CSV over the polygon limit with the count', async () => {
+  it('stops reading a CSV at the first polygon past the polygon limit, naming its line', async () => {
     const csv = new TextEncoder().encode(squaresCsv(300));
     const r = await checkLayoutChunks(chunks(csv, 1000), { maxPolygons: 299, maxPoints: 10_000 });
-    expect(r).toMatchObject({ ok: false, code: 'over-limit', limit: 'polygons', count: 300 });
+    expect(r).toMatchObject({ ok: false, code: 'over-limit', limit: 'polygons', count: 300, atLeast: true });
+    // Polygon 300 starts on line 2 + 299 × 4 + 1 = 1199.
+    if (!r.ok) expect(r.message).toContain('refused at CSV line 1199');
+    // Exactly at the limit: accepted.
+    expect((await checkLayoutChunks(chunks(csv, 1000), { maxPolygons: 300, maxPoints: 10_000 })).ok).toBe(true);
+  });
+
+  it('counts CSV polygons as the reader does, whatever the chunk boundaries (comments, blank lines, CRLF, spaces)', async () => {
+    const text = [
+      '# trenchant-polygons v1',
+      '# unit=um dbu=0.001',
+      '',
+      'layer, datatype, polygon, x, y',
+      '1,0,a,0,0', '1,0,a,1,0', '1,0,a,1,1',
+      '# a comment between polygons',
+      '1,0,b,0,0', '1,0,b,1,0', '', '1,0,b,1,1',
+      '2,0,a,0,0', '2,0,a,1,0', '2,0,a,1,1',
+      '1,0,c,5,5', '1,0,c,6,5', '1,0,c,6,6', '1,0,c,5,6',
+    ].join('\r\n');
+    const bytes = new TextEncoder().encode(text);
+    const reference = await checkLayoutChunks(chunks(bytes, bytes.length), { maxPolygons: 100, maxPoints: 100 });
+    expect(reference).toMatchObject({ ok: true, polygonCount: 4 });
+    for (let size = 1; size <= 40; size++) {
+      expect(await checkLayoutChunks(chunks(bytes, size), { maxPolygons: 4, maxPoints: 100 }), `chunk ${size}`).toMatchObject({ ok: true, polygonCount: 4 });
+      expect(await checkLayoutChunks(chunks(bytes, size), { maxPolygons: 3, maxPoints: 100 }), `chunk ${size}`).toMatchObject({ ok: false, limit: 'polygons', message: expect.stringContaining('CSV line 16)') });
+    }
   });
 
   it('reports unreadable files with the reader message', async () => {

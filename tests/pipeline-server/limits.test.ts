@@ -56,10 +56,15 @@ describe('resource limits', () => {
     const res = await upload(designer, `/api/v1/projects/${PROJECT}/layouts`, slowLayoutGds(), 'holes.gds', { name: 'holes' });
     expect(res.status).toBe(422);
     expect((await json<ErrorBody>(res)).error.message).toContain("3,601 flattened polygons, above this team's limit of 1,000 flattened polygons");
-    // CSV: 1001 squares × 4 vertices passes the point limit only up to vertex 4000, refused at the next one.
+    // CSV: 1001 squares: polygon 1001 starts on line 2 + 1000 × 4 + 1 = 4003 and is refused there.
     const csv = await upload(designer, `/api/v1/projects/${PROJECT}/layouts`, squaresCsv(1001), 'squares.csv', { name: 'squares' });
     expect(csv.status).toBe(422);
-    expect((await json<ErrorBody>(csv)).error.message).toContain("more than 4,000 flattened points (vertices), above this team's limit of 4,000");
+    expect((await json<ErrorBody>(csv)).error.message).toContain("(refused at CSV line 4003) has more than 1,000 flattened polygons, above this team's limit of 1,000");
+    // 1000 squares fit the polygon limit but have 4000 vertices: over the point limit of 3,999.
+    expect((await admin.request(LIMITS_URL, { method: 'PUT', json: { ...DEFAULTS, maxPolygons: 1000, maxPoints: 3999 } })).status).toBe(200);
+    const pts = await upload(designer, `/api/v1/projects/${PROJECT}/layouts`, squaresCsv(1000), 'squares.csv', { name: 'squares' });
+    expect(pts.status).toBe(422);
+    expect((await json<ErrorBody>(pts)).error.message).toContain("more than 3,999 flattened points (vertices), above this team's limit of 3,999");
     // A small layout still goes through.
     expect((await upload(designer, `/api/v1/projects/${PROJECT}/layouts`, trenchLayoutGds(), 'small.gds', { name: 'small' })).status).toBe(201);
     expect((await admin.request(LIMITS_URL, { method: 'PUT', json: DEFAULTS })).status).toBe(200);
