@@ -60,11 +60,11 @@ describe('resource limits', () => {
     const csv = await upload(designer, `/api/v1/projects/${PROJECT}/layouts`, squaresCsv(1001), 'squares.csv', { name: 'squares' });
     expect(csv.status).toBe(422);
     expect((await json<ErrorBody>(csv)).error.message).toContain("(refused at CSV line 4003) has more than 1,000 flattened polygons, above this team's limit of 1,000");
-    // 1000 squares fit the polygon limit but have 4000 vertices: over the point limit of 3,999.
-    expect((await admin.request(LIMITS_URL, { method: 'PUT', json: { ...DEFAULTS, maxPolygons: 1000, maxPoints: 3999 } })).status).toBe(200);
-    const pts = await upload(designer, `/api/v1/projects/${PROJECT}/layouts`, squaresCsv(1000), 'squares.csv', { name: 'squares' });
+    // 1001 squares fit a polygon limit of 1500 but have 4004 vertices: refused at vertex 4001 (line 4003).
+    expect((await admin.request(LIMITS_URL, { method: 'PUT', json: { ...DEFAULTS, maxPolygons: 1500, maxPoints: 4000 } })).status).toBe(200);
+    const pts = await upload(designer, `/api/v1/projects/${PROJECT}/layouts`, squaresCsv(1001), 'squares.csv', { name: 'squares' });
     expect(pts.status).toBe(422);
-    expect((await json<ErrorBody>(pts)).error.message).toContain("more than 3,999 flattened points (vertices), above this team's limit of 3,999");
+    expect((await json<ErrorBody>(pts)).error.message).toContain("(refused at CSV line 4003) has more than 4,000 flattened points (vertices), above this team's limit of 4,000");
     // A small layout still goes through.
     expect((await upload(designer, `/api/v1/projects/${PROJECT}/layouts`, trenchLayoutGds(), 'small.gds', { name: 'small' })).status).toBe(201);
     expect((await admin.request(LIMITS_URL, { method: 'PUT', json: DEFAULTS })).status).toBe(200);
