@@ -30,6 +30,7 @@ import { mkdir, open, rename, unlink } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { MessagePort } from 'node:worker_threads';
 import { encodeFeatureFile, FEATURE_FILE_NAME } from '../jobs/feature-file';
+import { lowerThreadPriority } from '../jobs/thread-priority';
 import { parseProcessModel } from '../etch';
 import { LayoutReadError } from '../layout/errors';
 import { readLayoutFile } from '../layout/read';
@@ -83,6 +84,9 @@ export interface MapFile {
 export type AnalysisTaskResult =
   | { ok: true; summary: AnalysisSummary; featureFile: FeatureFileInfo; flags: Flag[]; maps: MapFile[] }
   | { ok: false; code: 'cancelled' | 'bad-settings' | 'bad-model' | 'layout-unreadable' | 'bad-input' | 'over-budget'; message: string; issues?: FieldIssue[] };
+
+// The request thread should win the CPU over analyses (a pool thread runs many tasks; this is per thread).
+lowerThreadPriority();
 
 /** Overall fraction given to reading the layout and to writing maps; the analysis gets the rest. */
 const READ_SHARE = 0.15;
