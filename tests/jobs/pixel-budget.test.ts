@@ -97,6 +97,22 @@ describe('worker write cap', () => {
     expect(r.featureFile.count).toBe(10);
   });
 
+  it('derives the automatic pixel within the memory budget even when settings allow 100 M pixels', async () => {
+    const prev = process.env.TRENCHANT_ANALYSIS_MEMORY_MB;
+    process.env.TRENCHANT_ANALYSIS_MEMORY_MB = '10'; // 262 144 pixels
+    try {
+      const r = await analyse({ layoutPath: gds, settings: { etchLayers: [{ layer: 5, datatype: 0 }], pixel: { maxPixels: 100_000_000 } }, model: MODEL, outDir: join(dir, 'auto') });
+      expect(r.ok).toBe(true);
+      if (!r.ok) return;
+      const { nx, ny } = r.summary.grid as { nx: number; ny: number };
+      expect(nx * ny).toBeLessThanOrEqual(262_144);
+      expect(nx * ny).toBeGreaterThan(262_144 / 4); // chosen near the budget, not far below it
+    } finally {
+      if (prev === undefined) delete process.env.TRENCHANT_ANALYSIS_MEMORY_MB;
+      else process.env.TRENCHANT_ANALYSIS_MEMORY_MB = prev;
+    }
+  });
+
   it('refuses an explicit pixel beyond the memory budget before analysing', async () => {
     const prev = process.env.TRENCHANT_ANALYSIS_MEMORY_MB;
     process.env.TRENCHANT_ANALYSIS_MEMORY_MB = '10';
