@@ -137,7 +137,7 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
       const mapBytes = 6 * 4 * grid.nx * grid.ny;
       if (mapBytes > task.maxResultBytes) {
         const label = task.resultBudgetLabel ?? `the limit of ${(task.maxResultBytes / MiB).toFixed(0)} MiB per analysis`;
-        return { ok: false, code: 'over-budget', message: overBudgetMessage(mapBytes, label, 0, 6).replace(' (0 openings, 6 maps)', ` (6 maps of ${grid.nx} × ${grid.ny} pixels at ${grid.pixelUm} µm)`) };
+        return { ok: false, code: 'over-budget', message: overBudgetMessage(mapBytes, label, `6 maps of ${grid.nx} × ${grid.ny} pixels at ${grid.pixelUm} µm`) };
       }
     }
     const result = runAnalysis(layout, budgeted.settings, model.model, {
@@ -153,7 +153,7 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
     const planned = featureBytes.byteLength + mapBytes;
     if (task.maxResultBytes !== undefined && planned > task.maxResultBytes) {
       const label = task.resultBudgetLabel ?? `the limit of ${(task.maxResultBytes / MiB).toFixed(0)} MiB per analysis`;
-      return { ok: false, code: 'over-budget', message: overBudgetMessage(planned, label, result.features.length, result.maps.length) };
+      return { ok: false, code: 'over-budget', message: overBudgetMessage(planned, label, `${result.features.length} openings, ${result.maps.length} maps`) };
     }
     if (isCancelled()) return cancelled();
 
@@ -189,8 +189,8 @@ function analysisMemoryMb(): number {
   return Number.isFinite(v) && v > 0 ? v : DEFAULT_ANALYSIS_MEMORY_MB;
 }
 
-function overBudgetMessage(planned: number, label: string, features: number, maps: number): string {
-  return `the results would take ${(planned / MiB).toFixed(1)} MiB (${features} openings, ${maps} maps), above ${label}; choose a coarser pixel (pixel.sizeUm or pixel.maxPixels) or fewer density windows, or ask a team admin to raise the limit`;
+function overBudgetMessage(planned: number, label: string, what: string): string {
+  return `the results would take ${(planned / MiB).toFixed(1)} MiB (${what}), above ${label}; choose a coarser pixel (pixel.sizeUm or pixel.maxPixels) or fewer density windows, or ask a team admin to raise the limit`;
 }
 
 /** Write the parts in order to a temporary name, then rename (a reader never sees half a file). */
