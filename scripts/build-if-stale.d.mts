@@ -5,3 +5,4 @@ export declare function buildIfStale(
   root: string,
   opts?: { log?: (line: string) => void; stdio?: 'inherit' | 'pipe'; rememberFailure?: boolean },
 ): { built: boolean; reason: string | null };
+export declare function buildEnv(base?: Record<string, string | undefined>): { env: NodeJS.ProcessEnv; cleanup: () => void };

@@ -2,7 +2,7 @@
 // server helper (tests/support/server.ts). A lock directory keeps concurrent callers from building twice.
 import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { existsSync, mkdirSync, readdirSync, rmSync, statSync, writeFileSync, readFileSync } from 'node:fs';
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, rmSync, statSync, writeFileSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 
@@ -38,6 +38,19 @@ export function buildStaleReason(root) {
     if (newestMtime(path.join(root, rel)) > built) return `${rel} changed since the last build`;
   }
   return null;
+}
+
+/**
+ * Environment for `next build`. Prerendering renders pages that open the database before they reach cookies()
+ * and bail out to dynamic rendering, which created ./data/trenchant.db in a fresh clone; unless the caller chose a
+ * database, the build gets a throwaway one in a temporary folder (`cleanup` removes it).
+ */
+export function buildEnv(base = process.env) {
+  const env = { ...base, NEXT_TELEMETRY_DISABLED: '1' };
+  if (base.TRENCHANT_DB) return { env, cleanup: () => undefined };
+  const dir = mkdtempSync(path.join(tmpdir(), 'trenchant-build-db-'));
+  env.TRENCHANT_DB = path.join(dir, 'build.db');
+  return { env, cleanup: () => rmSync(dir, { recursive: true, force: true }) };
 }
 
 function sleep(ms) {
@@ -88,13 +101,19 @@ export function buildIfStale(root, { log = (l) => console.log(l), stdio = 'inher
     if (previous) throw new Error(`${previous}\n(the same sources failed to build before; change a file to retry)`);
     const sources = newestSourceMtime(root);
     log(`[trenchant] building the app (${reason}) ...`);
-    const run = spawnSync(process.execPath, [path.join(root, 'node_modules', 'next', 'dist', 'bin', 'next'), 'build'], {
-      cwd: root,
-      stdio: stdio === 'inherit' ? 'inherit' : 'pipe',
-      encoding: 'utf8',
-      env: { ...process.env, NEXT_TELEMETRY_DISABLED: '1' },
-      maxBuffer: 64 * 1024 * 1024,
-    });
+    const { env, cleanup } = buildEnv();
+    let run;
+    try {
+      run = spawnSync(process.execPath, [path.join(root, 'node_modules', 'next', 'dist', 'bin', 'next'), 'build'], {
+        cwd: root,
+        stdio: stdio === 'inherit' ? 'inherit' : 'pipe',
+        encoding: 'utf8',
+        env,
+        maxBuffer: 64 * 1024 * 1024,
+      });
+    } finally {
+      cleanup();
+    }
     if (run.status !== 0) {
       const tail = `${run.stdout ?? ''}\n${run.stderr ?? ''}`.trim().split('\n').slice(-40).join('\n');
       const message = `next build failed (exit ${run.status})${tail ? `:\n${tail}` : ''}`;

@@ -6,3 +6,4 @@ export * from './mail';
 export * from './tokens';
 export * from './analyses';
 export * from './security';
+export * from './limits';

@@ -16,11 +16,13 @@ export type SessionResult = { user: AuthUser; session: Session } | { user: null;
  * in server components the cookie store is read-only, and the next action or handler refreshes it).
  */
 export const getCurrentSession = cache(async (): Promise<SessionResult> => {
-  const lucia = getLucia();
   // A request with an Authorization header is authenticated by its token or not at all; its cookie never counts
   // (lib/auth/request-access.ts), so a token-bearing request cannot slip past the Origin check on the cookie.
   if ((await headers()).get('authorization') !== null) return { user: null, session: null };
   const store = await cookies();
+  // Opened only after headers()/cookies(): prerendering at build time stops at those, so a build never opens
+  // (and creates) the default database.
+  const lucia = getLucia();
   const sessionId = store.get(lucia.sessionCookieName)?.value ?? null;
   if (!sessionId) return { user: null, session: null };
   const result = await lucia.validateSession(sessionId);

@@ -1,9 +1,13 @@
 /**
  * Per-opening results of a finished analysis as columns (typed arrays), for bulk readers: the viewer's what-if
- * worker, reports, exports. This is the one bulk read path; where the rows are stored (SQLite table today) is
- * this module's business, so the storage can change without touching the readers.
+ * worker, reports, exports. This is the one bulk read path; where the rows are stored is this module's business,
+ * so the storage can change without touching the readers. Today: the worker's column file (feature-file.ts,
+ * indexed in analysis_feature_files) for new analyses, the analysis_features table for ones saved before it.
  */
+import path from 'node:path';
 import type { Db } from '@/db/client';
+import { readFeatureRange } from './feature-file';
+import { analysisRelDir, resolveData } from './paths';
 
 export const MODEL_KIND_CODE = { trench: 0, hole: 1 } as const;
 
@@ -53,6 +57,30 @@ type Row = {
 /** All openings of `analysisId` in feature-id order (empty columns when the analysis has none). */
 export function readFeatureColumns(db: Db, analysisId: string): FeatureColumns {
   const sqlite = db.$client;
+  const stored = featureFileOf(db, analysisId);
+  if (stored) {
+    const f = readFeatureRange(stored, 0, Number.POSITIVE_INFINITY);
+    return {
+      count: f.count,
+      featureId: f.featureId,
+      modelKind: f.modelKind,
+      xUm: f.xUm,
+      yUm: f.yUm,
+      x0Um: f.x0Um,
+      y0Um: f.y0Um,
+      x1Um: f.x1Um,
+      y1Um: f.y1Um,
+      areaUm2: f.areaUm2,
+      widthUm: f.widthUm,
+      lengthUm: f.lengthUm,
+      effectiveDensity: f.effectiveDensity,
+      depthUm: f.depthUm,
+      aspectRatio: f.aspectRatio,
+      marginUm: f.marginUm,
+      overEtchUm: f.overEtchUm,
+      reachesTarget: f.reachesTarget,
+    };
+  }
   const n = (sqlite.prepare('SELECT count(*) AS n FROM analysis_features WHERE analysis_id = ?').get(analysisId) as { n: number }).n;
   const c: FeatureColumns = {
     count: n,
@@ -104,4 +132,10 @@ export function readFeatureColumns(db: Db, analysisId: string): FeatureColumns {
   }
   if (k < n) c.count = k;
   return c;
+}
+
+/** Absolute path of the analysis's per-opening column file, or null when its rows are in the table (or absent). */
+export function featureFileOf(db: Db, analysisId: string): string | null {
+  const row = db.$client.prepare('SELECT file FROM analysis_feature_files WHERE analysis_id = ?').get(analysisId) as { file: string } | undefined;
+  return row ? resolveData(path.join(analysisRelDir(analysisId), row.file)) : null;
 }

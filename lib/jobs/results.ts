@@ -8,6 +8,8 @@ import type { Db } from '@/db/client';
 import { analyses, analysisFeatures, analysisFlags, analysisMaps, type AnalysisMapRow, type AnalysisRow } from '@/db/schema';
 import { ApiError } from '@/lib/http/errors';
 import { FLAG_KINDS, FLAG_SEVERITIES } from '@/lib/pipeline/settings';
+import { featureFileOf } from './feature-columns';
+import { readFeatureRange } from './feature-file';
 
 function finishedAnalysis(db: Db, analysisId: string): AnalysisRow {
   const a = db.select().from(analyses).where(eq(analyses.id, analysisId)).get();
@@ -51,8 +53,51 @@ function mapInfo(analysisId: string, m: AnalysisMapRow): MapInfo {
   };
 }
 
+/** One page of per-opening results in the API's item shape (the same fields the analysis_features table gave). */
+function featureItemsFromFile(file: string, page: z.infer<typeof pageQuery>) {
+  const f = readFeatureRange(file, page.offset, page.limit);
+  const items = [];
+  for (let k = 0; k < f.count; k++) {
+    const at = (c: Float64Array) => c[k] as number;
+    items.push({
+      featureId: f.featureId[k] as number,
+      shape: f.shapes[f.shape[k] as number] ?? '',
+      modelKind: f.modelKind[k] === 1 ? 'hole' : 'trench',
+      areaUm2: at(f.areaUm2),
+      widthUm: at(f.widthUm),
+      lengthUm: at(f.lengthUm),
+      effectiveDensity: at(f.effectiveDensity),
+      depthUm: at(f.depthUm),
+      aspectRatio: at(f.aspectRatio),
+      marginUm: at(f.marginUm),
+      overEtchUm: at(f.overEtchUm),
+      reachesTarget: f.reachesTarget[k] === 1,
+      id: f.featureId[k] as number,
+      centroidUm: [at(f.xUm), at(f.yUm)] as [number, number],
+      bboxUm: [at(f.x0Um), at(f.y0Um), at(f.x1Um), at(f.y1Um)] as [number, number, number, number],
+      warnings: splitWarnings(f.warningTexts[f.warnings[k] as number] ?? ''),
+    });
+  }
+  return items;
+}
+
+function splitWarnings(w: string): string[] {
+  return w ? w.split('; ') : [];
+}
+
 export function getResults(db: Db, analysisId: string, page: z.infer<typeof pageQuery>) {
   const a = finishedAnalysis(db, analysisId);
+  const maps = db.select().from(analysisMaps).where(eq(analysisMaps.analysisId, analysisId)).all();
+  const file = featureFileOf(db, analysisId);
+  if (file) {
+    const total = (db.$client.prepare('SELECT count FROM analysis_feature_files WHERE analysis_id = ?').get(analysisId) as { count: number }).count;
+    return {
+      analysisId,
+      summary: a.summary,
+      maps: maps.map((m) => mapInfo(analysisId, m)),
+      features: { total, offset: page.offset, limit: page.limit, items: featureItemsFromFile(file, page) },
+    };
+  }
   const total = db.select({ n: count() }).from(analysisFeatures).where(eq(analysisFeatures.analysisId, analysisId)).get()?.n ?? 0;
   const rows = db
     .select()
@@ -62,7 +107,6 @@ export function getResults(db: Db, analysisId: string, page: z.infer<typeof page
     .limit(page.limit)
     .offset(page.offset)
     .all();
-  const maps = db.select().from(analysisMaps).where(eq(analysisMaps.analysisId, analysisId)).all();
   return {
     analysisId,
     summary: a.summary,
@@ -76,7 +120,7 @@ export function getResults(db: Db, analysisId: string, page: z.infer<typeof page
         id: r.featureId,
         centroidUm: [xUm, yUm] as [number, number],
         bboxUm: [x0Um, y0Um, x1Um, y1Um] as [number, number, number, number],
-        warnings: warnings ? warnings.split('; ') : [],
+        warnings: splitWarnings(warnings),
       })),
     },
   };

@@ -1,9 +1,14 @@
 /**
  * The analysis job runner: a piscina pool of worker threads fed from the `analyses` table (the queue). At most
  * TRENCHANT_JOB_CONCURRENCY jobs run at once (default: one per two cores, at least 1). Progress goes to the DB
- * (throttled) and to SSE subscribers (every message). Cancel asks the worker to stop at its next check point and
- * terminates the thread if it has not stopped within a grace period. A job that throws, or whose thread dies
- * (out of memory, native crash), is marked failed with its message; the server and other jobs carry on.
+ * (throttled) and to SSE subscribers (every message). Cancel sets a flag in shared memory (SharedArrayBuffer) that
+ * the worker polls at every check point, also in the middle of the synchronous analysis, and terminates the
+ * thread if it has not stopped within a grace period. A job that throws, or whose thread dies (out of memory,
+ * native crash), is marked failed with its message; the server and other jobs carry on. A job requeued after a
+ * shutdown runs again, at most TRENCHANT_JOB_MAX_ATTEMPTS times in all (default 3): one that keeps taking the
+ * process down is then marked failed instead of crashing every restart.
+ * Each job may write at most the team's per-analysis result limit, and no more than is left of the team's quota
+ * of stored results (lib/jobs/team-limits.ts); the worker refuses before writing anything.
  * One runner per process, kept on globalThis (Next may load this module in several bundles).
  */
 import { existsSync } from 'node:fs';
@@ -17,10 +22,18 @@ import type { AnalysisTask, AnalysisTaskResult, WorkerMessage } from '@/lib/pipe
 import { isTerminal, publishJobEvent } from './events';
 import { analysisRelDir, resolveData } from './paths';
 import { saveResultRows } from './save-results';
+import { getTeamLimits, teamStoredResultBytes } from './team-limits';
 import { forgetWorkerFile, workerFile } from './worker-file';
 
 /** How long a cancelled job may take to reach a check point before its thread is terminated. */
-const CANCEL_GRACE_MS = 5_000;
+const CANCEL_GRACE_MS = 3_000;
+const MiB = 1024 * 1024;
+
+/** Most times a job is picked up (first run + runs after restarts) before it is marked failed. */
+export function jobMaxAttempts(): number {
+  const env = Number(process.env.TRENCHANT_JOB_MAX_ATTEMPTS);
+  return Number.isInteger(env) && env >= 1 ? env : 3;
+}
 /** DB progress writes at most this often per job (SSE subscribers get every message). */
 const PROGRESS_WRITE_MS = 500;
 
@@ -30,7 +43,16 @@ export function jobConcurrency(): number {
   return Math.max(1, Math.floor(availableParallelism() / 2));
 }
 
-type RunningJob = { analysisId: string; controller: AbortController; port: MessagePort | null; cancelRequested: boolean; started: boolean; crash: string | null };
+type RunningJob = {
+  analysisId: string;
+  controller: AbortController;
+  port: MessagePort | null;
+  /** Element 0 set to 1 (Atomics.store) = cancel; shared with the worker thread. */
+  flag: Int32Array;
+  cancelRequested: boolean;
+  started: boolean;
+  crash: string | null;
+};
 type MessagePort = import('node:worker_threads').MessagePort;
 
 type ClaimedRow = {
@@ -39,6 +61,7 @@ type ClaimedRow = {
   model: string;
   stored_path: string;
   top_cell: string;
+  team_id: string;
 };
 
 class JobRunner {
@@ -96,7 +119,15 @@ class JobRunner {
         while (this.running.size < this.concurrency) {
           const row = this.claimNext();
           if (!row) break;
-          const job: RunningJob = { analysisId: row.id, controller: new AbortController(), port: null, cancelRequested: false, started: false, crash: null };
+          const job: RunningJob = {
+            analysisId: row.id,
+            controller: new AbortController(),
+            port: null,
+            flag: new Int32Array(new SharedArrayBuffer(4)),
+            cancelRequested: false,
+            started: false,
+            crash: null,
+          };
           this.running.set(row.id, job);
           void this.run(job, row).finally(() => {
             this.running.delete(row.id);
@@ -117,10 +148,18 @@ class JobRunner {
         `UPDATE analyses SET status = 'running', stage = 'starting', progress = 0, started_at = ?, attempts = attempts + 1,
            error_code = NULL, error_message = NULL
          WHERE id = (SELECT id FROM analyses WHERE status = 'queued' ORDER BY created_at, id LIMIT 1)
-         RETURNING id, settings, model, revision_id`,
+         RETURNING id, settings, model, revision_id, project_id, attempts`,
       )
-      .get(Date.now()) as { id: string; settings: string; model: string; revision_id: string } | undefined;
+      .get(Date.now()) as { id: string; settings: string; model: string; revision_id: string; project_id: string; attempts: number } | undefined;
     if (!row) return null;
+    const maxAttempts = jobMaxAttempts();
+    if (row.attempts > maxAttempts) {
+      this.finish(row.id, 'failed', {
+        code: 'too-many-attempts',
+        message: `This analysis was interrupted ${row.attempts - 1 === 1 ? 'once' : `${row.attempts - 1} times`} (the server stopped while it ran) and was not started again (limit: ${maxAttempts} attempts, TRENCHANT_JOB_MAX_ATTEMPTS). Try a coarser pixel or a smaller layout, or start it again.`,
+      });
+      return this.claimNext();
+    }
     const rev = sqlite.prepare('SELECT stored_path, top_cell FROM layout_revisions WHERE id = ?').get(row.revision_id) as
       | { stored_path: string; top_cell: string }
       | undefined;
@@ -128,8 +167,9 @@ class JobRunner {
       this.finish(row.id, 'failed', { code: 'missing-revision', message: 'the layout revision of this analysis no longer exists' });
       return this.claimNext();
     }
+    const team = sqlite.prepare('SELECT team_id FROM projects WHERE id = ?').get(row.project_id) as { team_id: string } | undefined;
     publishJobEvent({ analysisId: row.id, status: 'running', stage: 'starting', progress: 0, errorMessage: null });
-    return { id: row.id, settings: row.settings, model: row.model, stored_path: rev.stored_path, top_cell: rev.top_cell };
+    return { id: row.id, settings: row.settings, model: row.model, stored_path: rev.stored_path, top_cell: rev.top_cell, team_id: team?.team_id ?? '' };
   }
 
   private async run(job: RunningJob, row: ClaimedRow): Promise<void> {
@@ -147,6 +187,11 @@ class JobRunner {
     };
     try {
       await rm(outDir, { recursive: true, force: true }); // leftovers of an interrupted attempt
+      const budget = this.resultBudget(row);
+      if (!budget.ok) {
+        this.finish(row.id, 'failed', { code: 'over-quota', message: budget.message });
+        return;
+      }
       const pool = await this.getPool();
       const channel = new MessageChannel();
       job.port = channel.port1;
@@ -162,6 +207,9 @@ class JobRunner {
         model: JSON.parse(row.model),
         outDir,
         port: channel.port2,
+        cancelFlag: job.flag,
+        maxResultBytes: budget.maxBytes,
+        resultBudgetLabel: budget.label,
         ...(row.top_cell ? { topCell: row.top_cell } : {}),
       };
       let result: AnalysisTaskResult;
@@ -199,6 +247,27 @@ class JobRunner {
     }
   }
 
+  /**
+   * What this job may write: the team's per-analysis limit, or what is left of its stored-results quota when
+   * that is less. A team already at its quota gets a message instead.
+   */
+  private resultBudget(row: ClaimedRow): { ok: true; maxBytes: number; label: string } | { ok: false; message: string } {
+    if (!row.team_id) return { ok: true, maxBytes: Number.MAX_SAFE_INTEGER, label: 'no limit' };
+    const db = getDb();
+    const limits = getTeamLimits(db, row.team_id);
+    const stored = teamStoredResultBytes(db, row.team_id);
+    const left = limits.maxStoredBytes - stored;
+    const mib = (n: number) => `${Math.round(n / MiB).toLocaleString('en-US')} MiB`;
+    if (left <= 0) {
+      return {
+        ok: false,
+        message: `This team's stored results take ${mib(stored)}, at its quota of ${mib(limits.maxStoredBytes)}; delete old analyses or ask a team admin to raise the quota on the team page.`,
+      };
+    }
+    if (left < limits.maxAnalysisBytes) return { ok: true, maxBytes: left, label: `the ${mib(left)} left of this team's quota of ${mib(limits.maxStoredBytes)} for stored results` };
+    return { ok: true, maxBytes: limits.maxAnalysisBytes, label: `this team's limit of ${mib(limits.maxAnalysisBytes)} per analysis` };
+  }
+
   /** Writes a terminal state (only over queued/running, so a late result never overwrites a cancel). */
   private finish(
     analysisId: string,
@@ -218,6 +287,7 @@ class JobRunner {
     if (status !== 'done') {
       sqlite.prepare('DELETE FROM analysis_flags WHERE analysis_id = ?').run(analysisId);
       sqlite.prepare('DELETE FROM analysis_features WHERE analysis_id = ?').run(analysisId);
+      sqlite.prepare('DELETE FROM analysis_feature_files WHERE analysis_id = ?').run(analysisId);
       sqlite.prepare('DELETE FROM analysis_maps WHERE analysis_id = ?').run(analysisId);
     }
     const row = sqlite.prepare('SELECT progress FROM analyses WHERE id = ?').get(analysisId) as { progress: number } | undefined;
@@ -234,6 +304,7 @@ class JobRunner {
     if (job) {
       if (!job.cancelRequested) {
         job.cancelRequested = true;
+        Atomics.store(job.flag, 0, 1);
         job.port?.postMessage({ type: 'cancel' });
         // The worker stops at its next check point; if it does not, terminate its thread.
         setTimeout(() => {

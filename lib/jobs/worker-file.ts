@@ -1,14 +1,17 @@
 /**
- * Locates the compiled analysis worker (scripts/build-worker.mjs → node_modules/.cache/trenchant/analysis-worker.mjs) and builds
- * it when it is missing or older than its TypeScript sources. The build runs as a child process (esbuild), so
- * nothing here depends on how Next bundled the server. TRENCHANT_WORKER_FILE overrides the path (no build then).
+ * Locates the compiled worker files (scripts/build-worker.mjs → node_modules/.cache/trenchant/analysis-worker.mjs
+ * and upload-worker.mjs) and builds them when missing or older than their TypeScript sources. The build runs as a
+ * child process (esbuild), so nothing here depends on how Next bundled the server. TRENCHANT_WORKER_FILE overrides
+ * the analysis worker's path, TRENCHANT_UPLOAD_WORKER_FILE the upload worker's (no build then).
  */
 import { execFile } from 'node:child_process';
 import { existsSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 
 // Under node_modules/.cache: `next build` empties .next, which would pull the file from under a running server.
-const OUT_REL = path.join('node_modules', '.cache', 'trenchant', 'analysis-worker.mjs');
+const OUT_DIR_REL = path.join('node_modules', '.cache', 'trenchant');
+const OUT_REL = path.join(OUT_DIR_REL, 'analysis-worker.mjs');
+const UPLOAD_OUT_REL = path.join(OUT_DIR_REL, 'upload-worker.mjs');
 const ENTRY_REL = path.join('lib', 'pipeline', 'worker.ts');
 
 function projectRoot(): string {
@@ -17,7 +20,11 @@ function projectRoot(): string {
 
 /** Null when the compiled worker is up to date, else why it needs building. */
 export function workerStaleReason(root = projectRoot()): string | null {
-  const out = path.join(/*turbopackIgnore: true*/ root, OUT_REL);
+  return fileStaleReason(root, OUT_REL) ?? fileStaleReason(root, UPLOAD_OUT_REL);
+}
+
+function fileStaleReason(root: string, outRel: string): string | null {
+  const out = path.join(/*turbopackIgnore: true*/ root, outRel);
   const manifest = `${out}.inputs.json`;
   if (!existsSync(/*turbopackIgnore: true*/ out) || !existsSync(/*turbopackIgnore: true*/ manifest)) return 'not built yet';
   if (!existsSync(/*turbopackIgnore: true*/ path.join(/*turbopackIgnore: true*/ root, ENTRY_REL))) return null; // deployed without sources: use what is there
@@ -64,6 +71,25 @@ export function workerFile(): Promise<string> {
   // A failed build is retried on the next call.
   holder.__trenchantWorkerFile.catch(() => (holder.__trenchantWorkerFile = undefined));
   return holder.__trenchantWorkerFile;
+}
+
+const uploadHolder = globalThis as typeof globalThis & { __trenchantUploadWorkerFile?: Promise<string> };
+
+/** Absolute path of an up-to-date upload check worker (built with the analysis worker when needed). */
+export function uploadWorkerFile(): Promise<string> {
+  const override = process.env.TRENCHANT_UPLOAD_WORKER_FILE;
+  if (override) return Promise.resolve(path.resolve(override));
+  uploadHolder.__trenchantUploadWorkerFile ??= (async () => {
+    const root = projectRoot();
+    const reason = fileStaleReason(root, UPLOAD_OUT_REL);
+    if (reason) {
+      console.log(`[trenchant] compiling the worker files (${reason})`);
+      await runBuild(root);
+    }
+    return path.join(/*turbopackIgnore: true*/ root, UPLOAD_OUT_REL);
+  })();
+  uploadHolder.__trenchantUploadWorkerFile.catch(() => (uploadHolder.__trenchantUploadWorkerFile = undefined));
+  return uploadHolder.__trenchantUploadWorkerFile;
 }
 
 /** Drop the cached path so the next workerFile() checks (and if needed rebuilds) again. */

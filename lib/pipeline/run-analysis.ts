@@ -109,6 +109,7 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   const regionDbu = layout.bboxDbu ?? undefined;
   // One exact union of the etch layers serves coverage and features (it is the expensive part on big layouts).
   const regions = openRegions(set, layout.dbuUm, { polarity, regionDbu });
+  clock.within(0.7); // cancel check point between the union and the raster (each can take seconds)
   const coverage = Float32Array.from(rasterizeOpenRegions(regions, grid));
   const globalDensity = dieDensity(coverage, grid, frame.dieBboxUm);
 

@@ -224,3 +224,45 @@ export function resolveKernel(settings: AnalysisSettings, model: ModelEtchDefaul
     fromModel: k.kind === null && k.lengthUm === null,
   };
 }
+
+/**
+ * Memory an analysis needs per map pixel, in bytes: coverage, the exact raster accumulator, the padded FFT buffers
+ * of the effective density, local width and the painted maps. Measured 26–68 bytes per pixel on 1–16 M pixel
+ * grids (peak RSS over the baseline, 10 mm demo die); 100 M pixels took 3.7 GB (≈ 37 B). 40 is the planning value.
+ */
+export const BYTES_PER_PIXEL_ESTIMATE = 40;
+/** Default memory for an analysis's pixel maps when TRENCHANT_ANALYSIS_MEMORY_MB is not set. */
+export const DEFAULT_ANALYSIS_MEMORY_MB = 800;
+
+/** Most pixels an analysis may use within `memoryMb` of map memory. */
+export function pixelBudget(memoryMb: number): number {
+  return Math.max(1_000, Math.floor((memoryMb * 1024 * 1024) / BYTES_PER_PIXEL_ESTIMATE));
+}
+
+export type PixelBudgetResult =
+  | { ok: true; settings: AnalysisSettings; budgetPixels: number; clamped: boolean }
+  | { ok: false; message: string };
+
+/**
+ * Settings with `pixel.maxPixels` lowered to the memory budget, so the automatic pixel is derived from the die
+ * within it. An explicit `pixel.sizeUm` that would need more pixels than the budget is refused with a message
+ * naming the budget and the pixel size that fits. `dieUm` is the die's width and height (layout bounding box).
+ */
+export function applyPixelBudget(settings: AnalysisSettings, dieUm: [number, number], memoryMb: number): PixelBudgetResult {
+  const budgetPixels = pixelBudget(memoryMb);
+  const clamped = settings.pixel.maxPixels > budgetPixels;
+  const maxPixels = Math.min(settings.pixel.maxPixels, budgetPixels);
+  const [w, h] = dieUm;
+  if (settings.pixel.sizeUm !== 'auto' && w > 0 && h > 0) {
+    const p = settings.pixel.sizeUm;
+    const n = Math.max(1, Math.ceil(w / p - 1e-9)) * Math.max(1, Math.ceil(h / p - 1e-9));
+    if (n > budgetPixels) {
+      const fits = choosePixelUm(w, h, settings.densityWindows, budgetPixels);
+      return {
+        ok: false,
+        message: `pixel size ${p} µm gives ${n.toLocaleString('en-US')} pixels over the ${w} × ${h} µm die, above the memory budget of ${budgetPixels.toLocaleString('en-US')} pixels (${memoryMb} MB at about ${BYTES_PER_PIXEL_ESTIMATE} bytes per pixel, TRENCHANT_ANALYSIS_MEMORY_MB); use a pixel of at least ${fits} µm or 'auto'`,
+      };
+    }
+  }
+  return { ok: true, settings: clamped ? { ...settings, pixel: { ...settings.pixel, maxPixels } } : settings, budgetPixels, clamped };
+}

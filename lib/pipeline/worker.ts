@@ -2,8 +2,10 @@
  * Worker-thread entry for one analysis, shaped for piscina: `pool.run(task, { transferList: [port] })` with the
  * default export as the task function. Thin on purpose: read the layout, validate, runAnalysis, write the maps.
  *
- * Task (AnalysisTask): { layoutPath, settings, model, outDir, port?, cancelFlag?, topCell? } — settings and model
- * are raw JSON and are validated here (so a stored analysis replays exactly as stored).
+ * Task (AnalysisTask): { layoutPath, settings, model, outDir, port?, cancelFlag?, topCell?, maxResultBytes? } —
+ * settings and model are raw JSON and are validated here (so a stored analysis replays exactly as stored).
+ * maxResultBytes caps what the task may write (maps + per-opening file); over it nothing is written and the task
+ * resolves { ok: false, code: 'over-budget' } naming the limit and the size.
  *
  * Messages worker → parent on `port` (WorkerMessage):
  *   { type: 'progress', stage, fraction }   stage in ANALYSIS_STAGES order then 'reading' first and 'writing' /
@@ -19,12 +21,16 @@
  *
  * Result (AnalysisTaskResult): expected failures resolve `{ ok: false, code, message, issues? }` so the job runner
  * can store them without parsing messages; anything else (a bug) rejects and the runner marks the job failed.
- * Files: one TRGRID1 file per map in outDir (names from map-files.ts), written atomically; a failed task leaves only
- * complete files, which the runner may delete.
+ * Files: one TRGRID1 file per map in outDir (names from map-files.ts) and the per-opening results as one TRFEAT1
+ * column file (lib/jobs/feature-file.ts), all written atomically; the result names the feature file instead of
+ * carrying a million objects through structured clone. A failed task leaves only complete files, which the runner
+ * may delete.
  */
-import { mkdir } from 'node:fs/promises';
+import { mkdir, open, rename, unlink } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { MessagePort } from 'node:worker_threads';
+import { encodeFeatureFile, FEATURE_FILE_NAME } from '../jobs/feature-file';
+import { lowerThreadPriority } from '../jobs/thread-priority';
 import { parseProcessModel } from '../etch';
 import { LayoutReadError } from '../layout/errors';
 import { readLayoutFile } from '../layout/read';
@@ -33,9 +39,9 @@ import type { Flag } from './flags';
 import type { GridMap, GridUnit } from './grid-file';
 import { writeGridFile } from './grid-file-node';
 import { mapFileName } from './map-files';
-import type { FeatureResult } from './predict-features';
 import { runAnalysis, type AnalysisStage } from './run-analysis';
-import { parseAnalysisSettings, type FieldIssue } from './settings';
+import { applyPixelBudget, DEFAULT_ANALYSIS_MEMORY_MB, parseAnalysisSettings, type FieldIssue } from './settings';
+import { dieFrame } from './etch-layers';
 import type { AnalysisSummary } from './summary';
 
 export interface AnalysisTask {
@@ -48,6 +54,17 @@ export interface AnalysisTask {
   /** Shared cancel flag: non-zero element 0 = cancel (see module doc). */
   cancelFlag?: Int32Array;
   topCell?: string;
+  /** Most bytes this task may write (maps + per-opening file); unset = no cap. */
+  maxResultBytes?: number;
+  /** How the refusal names that cap, e.g. "this team's limit of 2,048 MiB per analysis". */
+  resultBudgetLabel?: string;
+}
+
+/** The per-opening results file the task wrote (inside outDir). */
+export interface FeatureFileInfo {
+  file: string;
+  count: number;
+  bytes: number;
 }
 
 export type WorkerStage = 'reading' | AnalysisStage | 'writing';
@@ -65,8 +82,11 @@ export interface MapFile {
 }
 
 export type AnalysisTaskResult =
-  | { ok: true; summary: AnalysisSummary; features: FeatureResult[]; flags: Flag[]; maps: MapFile[] }
-  | { ok: false; code: 'cancelled' | 'bad-settings' | 'bad-model' | 'layout-unreadable' | 'bad-input'; message: string; issues?: FieldIssue[] };
+  | { ok: true; summary: AnalysisSummary; featureFile: FeatureFileInfo; flags: Flag[]; maps: MapFile[] }
+  | { ok: false; code: 'cancelled' | 'bad-settings' | 'bad-model' | 'layout-unreadable' | 'bad-input' | 'over-budget'; message: string; issues?: FieldIssue[] };
+
+// The request thread should win the CPU over analyses (a pool thread runs many tasks; this is per thread).
+lowerThreadPriority();
 
 /** Overall fraction given to reading the layout and to writing maps; the analysis gets the rest. */
 const READ_SHARE = 0.15;
@@ -105,23 +125,51 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
     post('reading', 0);
     const layout = await readLayoutFile(task.layoutPath, { signal: controller.signal, ...(task.topCell ? { topCell: task.topCell } : {}) });
     const flag = task.cancelFlag;
-    const result = runAnalysis(layout, settings.settings, model.model, {
+    // Memory budget: the automatic pixel is chosen within it; an explicit pixel beyond it is refused by name.
+    const bbox = layout.bboxDbu;
+    const dieUm: [number, number] = bbox ? [(bbox[2] - bbox[0]) * layout.dbuUm, (bbox[3] - bbox[1]) * layout.dbuUm] : [0, 0];
+    const budgeted = applyPixelBudget(settings.settings, dieUm, analysisMemoryMb());
+    if (!budgeted.ok) return { ok: false, code: 'bad-input', message: budgeted.message };
+    if (task.maxResultBytes !== undefined && bbox) {
+      // Maps alone (coverage, effective density, local width, aspect ratio, depth, risk: float32 each) already
+      // over the write cap: refuse before computing anything.
+      const { grid } = dieFrame(layout, budgeted.settings);
+      const mapBytes = 6 * 4 * grid.nx * grid.ny;
+      if (mapBytes > task.maxResultBytes) {
+        const label = task.resultBudgetLabel ?? `the limit of ${(task.maxResultBytes / MiB).toFixed(0)} MiB per analysis`;
+        return { ok: false, code: 'over-budget', message: overBudgetMessage(mapBytes, label, `6 maps of ${grid.nx} × ${grid.ny} pixels at ${grid.pixelUm} µm`) };
+      }
+    }
+    const result = runAnalysis(layout, budgeted.settings, model.model, {
       signal: controller.signal,
       ...(flag ? { isCancelled: () => Atomics.load(flag, 0) !== 0 } : {}),
       onProgress: (stage, f) => post(stage === 'done' ? 'writing' : stage, READ_SHARE + (1 - READ_SHARE - WRITE_SHARE) * f),
     });
 
+    const isCancelled = () => controller.signal.aborted || (flag !== undefined && Atomics.load(flag, 0) !== 0);
+    const featureBytes = encodeFeatureFile(result.features);
+    // TRGRID1 header + metadata stays far below 64 KiB; float32 samples dominate.
+    const mapBytes = result.maps.reduce((n, m) => n + m.grid.nx * m.grid.ny * 4 + 65_536, 0);
+    const planned = featureBytes.byteLength + mapBytes;
+    if (task.maxResultBytes !== undefined && planned > task.maxResultBytes) {
+      const label = task.resultBudgetLabel ?? `the limit of ${(task.maxResultBytes / MiB).toFixed(0)} MiB per analysis`;
+      return { ok: false, code: 'over-budget', message: overBudgetMessage(planned, label, `${result.features.length} openings, ${result.maps.length} maps`) };
+    }
+    if (isCancelled()) return cancelled();
+
     await mkdir(task.outDir, { recursive: true });
+    await writeAtomic(join(task.outDir, FEATURE_FILE_NAME), [featureBytes.body, featureBytes.tables]);
+    const featureFile: FeatureFileInfo = { file: FEATURE_FILE_NAME, count: result.features.length, bytes: featureBytes.byteLength };
     const maps: MapFile[] = [];
     for (const [n, map] of result.maps.entries()) {
-      if (controller.signal.aborted || (task.cancelFlag && Atomics.load(task.cancelFlag, 0) !== 0)) return cancelled();
+      if (isCancelled()) return cancelled();
       const file = mapFileName(map);
       const bytes = await writeGridFile(join(task.outDir, file), map);
       maps.push({ kind: map.kind, unit: map.unit, file, grid: map.grid, meta: map.meta, bytes });
       post('writing', 1 - WRITE_SHARE + (WRITE_SHARE * (n + 1)) / result.maps.length);
     }
     post('done', 1);
-    return { ok: true, summary: result.summary, features: result.features, flags: result.flags, maps };
+    return { ok: true, summary: result.summary, featureFile, flags: result.flags, maps };
   } catch (err) {
     if (isAbortError(err) || (err instanceof LayoutReadError && err.code === 'aborted')) return cancelled();
     if (err instanceof LayoutReadError) return { ok: false, code: 'layout-unreadable', message: err.message };
@@ -130,6 +178,38 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
   } finally {
     task.port?.off('message', onMessage);
     task.port?.close();
+  }
+}
+
+const MiB = 1024 * 1024;
+
+/** Memory for one analysis's pixel maps: TRENCHANT_ANALYSIS_MEMORY_MB, default DEFAULT_ANALYSIS_MEMORY_MB. */
+function analysisMemoryMb(): number {
+  const v = Number(process.env.TRENCHANT_ANALYSIS_MEMORY_MB);
+  return Number.isFinite(v) && v > 0 ? v : DEFAULT_ANALYSIS_MEMORY_MB;
+}
+
+function overBudgetMessage(planned: number, label: string, what: string): string {
+  return `the results would take ${(planned / MiB).toFixed(1)} MiB (${what}), above ${label}; choose a coarser pixel (pixel.sizeUm or pixel.maxPixels) or fewer density windows, or ask a team admin to raise the limit`;
+}
+
+/** Write the parts in order to a temporary name, then rename (a reader never sees half a file). */
+async function writeAtomic(path: string, parts: Uint8Array[]): Promise<void> {
+  const tmp = `${path}.tmp-${process.pid}`;
+  try {
+    const fh = await open(tmp, 'w');
+    try {
+      for (const part of parts) {
+        let done = 0;
+        while (done < part.length) done += (await fh.write(part, done, part.length - done)).bytesWritten;
+      }
+    } finally {
+      await fh.close();
+    }
+    await rename(tmp, path);
+  } catch (err) {
+    await unlink(tmp).catch(() => undefined);
+    throw err;
   }
 }
 

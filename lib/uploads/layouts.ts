@@ -12,9 +12,10 @@ import type { Db } from '@/db/client';
 import { analyses, layoutRevisions, layouts, users, type LayerTableRow, type LayoutFormat, type LayoutRevisionRow } from '@/db/schema';
 import { ApiError } from '@/lib/http/errors';
 import { revisionRelPath, resolveData } from '@/lib/jobs/paths';
-import { LayoutReadError } from '@/lib/layout/errors';
-import { readLayoutFile } from '@/lib/layout/read';
+import { getTeamLimits, teamOfProject } from '@/lib/jobs/team-limits';
 import type { FlatLayout } from '@/lib/layout/types';
+import type { UploadCheckResult } from './check-layout';
+import { checkUploadInWorker } from './check-pool';
 import { receiveUpload, removeQuietly, type ReceivedFile } from './receive';
 
 const CSV_MAGIC = '# trenchant-polygons v1';
@@ -87,7 +88,11 @@ function toRevisionView(r: LayoutRevisionRow, layout: { id: string; name: string
   };
 }
 
-async function validateLayoutFile(file: ReceivedFile): Promise<{ format: LayoutFormat; layout: FlatLayout }> {
+/**
+ * Recognises the format from the first bytes (here: cheap), then reads and checks the whole file in the upload
+ * worker pool against the team's limits (never on this thread: see check-layout.ts).
+ */
+async function validateLayoutFile(file: ReceivedFile, limits: { maxPolygons: number; maxPoints: number }): Promise<Extract<UploadCheckResult, { ok: true }>> {
   const sniffed = sniffLayoutFormat(file.head);
   if (file.sizeBytes === 0) throw new ApiError('unprocessable', `${file.originalName}: the file is empty (0 bytes).`);
   if (!sniffed) {
@@ -96,13 +101,16 @@ async function validateLayoutFile(file: ReceivedFile): Promise<{ format: LayoutF
       `${file.originalName}: not a layout Trenchant can read — neither a GDSII stream (HEADER record 00 06 00 02 at byte 0) nor a polygon CSV starting with "${CSV_MAGIC}"; first bytes: ${hex(file.head)}.`,
     );
   }
+  let checked: UploadCheckResult;
   try {
-    const layout = await readLayoutFile(file.tmpPath);
-    return { format: sniffed, layout };
+    checked = await checkUploadInWorker(file.tmpPath, limits);
   } catch (err) {
-    if (err instanceof LayoutReadError) throw new ApiError('unprocessable', `${file.originalName}: ${err.message}`);
-    throw err;
+    // The check's thread died (out of memory, native crash): the file is refused, the server carries on.
+    console.error('[trenchant] upload check worker failed:', err);
+    throw new ApiError('unprocessable', `${file.originalName}: the layout could not be checked within the upload worker's memory; nothing was stored.`);
   }
+  if (!checked.ok) throw new ApiError('unprocessable', `${file.originalName}: ${checked.message}.`.replace(/\.\.$/, '.'));
+  return checked;
 }
 
 /** Receives an upload and stores it as the next revision of a layout in `projectId`. */
@@ -112,7 +120,8 @@ export async function storeLayoutUpload(db: Db, input: { projectId: string; user
   try {
     const parsed = uploadFields.safeParse({ name: fields.name || undefined, layoutId: input.layoutId ?? (fields.layoutId || undefined), note: fields.note || undefined });
     if (!parsed.success) throw parsed.error;
-    const { format, layout } = await validateLayoutFile(file);
+    const checked = await validateLayoutFile(file, getTeamLimits(db, teamOfProject(db, input.projectId)));
+    const format = checked.format;
     const name = parsed.data.name ?? (file.originalName.replace(/\.[^.]*$/, '').trim() || 'layout');
 
     let existing = parsed.data.layoutId
@@ -144,12 +153,12 @@ export async function storeLayoutUpload(db: Db, input: { projectId: string; user
         sizeBytes: file.sizeBytes,
         format,
         storedPath: rel,
-        layerTable: layerTableOf(layout),
-        topCell: layout.topCell,
-        libraryName: layout.libraryName,
-        dbuUm: layout.dbuUm,
-        bboxDbu: layout.bboxDbu ? [...layout.bboxDbu] as [number, number, number, number] : null,
-        polygonCount: layout.layers.reduce((n, s) => n + s.count, 0),
+        layerTable: checked.layers,
+        topCell: checked.topCell,
+        libraryName: checked.libraryName,
+        dbuUm: checked.dbuUm,
+        bboxDbu: checked.bboxDbu,
+        polygonCount: checked.polygonCount,
         note: parsed.data.note ?? '',
       };
       tx.insert(layoutRevisions).values(rev).run();

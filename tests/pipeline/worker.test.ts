@@ -9,6 +9,7 @@ import { MessageChannel } from 'node:worker_threads';
 import { fileURLToPath } from 'node:url';
 import { Piscina } from 'piscina';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { readFeatureRange } from '@/lib/jobs/feature-file';
 import { readGridFile } from '@/lib/pipeline/grid-file-node';
 import analyse, { type AnalysisTaskResult, type WorkerMessage } from '@/lib/pipeline/worker';
 import { TEST_MODEL_JSON, trenchGdsii, type RectUm } from './fixtures';
@@ -48,10 +49,11 @@ describe('analyse (worker entry)', () => {
     port1.close();
     expect(r.ok).toBe(true);
     if (!r.ok) return;
-    expect(r.features).toHaveLength(3);
+    expect(r.featureFile).toMatchObject({ file: 'features.trfeat', count: 3 });
+    expect(readFeatureRange(join(outDir, r.featureFile.file), 0, 10).widthUm.length).toBe(3);
     expect(r.flags.filter((f) => f.kind === 'under-target-depth').map((f) => f.featureId)).toEqual([1]);
     expect(JSON.parse(JSON.stringify(r))).toEqual(r); // survives a JSON round trip unchanged
-    expect((await readdir(outDir)).sort()).toEqual(r.maps.map((m) => m.file).sort());
+    expect((await readdir(outDir)).sort()).toEqual([...r.maps.map((m) => m.file), r.featureFile.file].sort());
     const depth = await readGridFile(join(outDir, 'predicted-depth.trgrid'));
     expect(depth.grid).toEqual(r.summary.grid);
     const stages = seen.map((m) => m.stage).filter((s, k, all) => all[k - 1] !== s);

@@ -11,6 +11,9 @@ import { idParam } from '@/lib/data/schemas';
 import { getTeamOverview } from '@/lib/data/teams';
 import { isApiError } from '@/lib/http/errors';
 import { CancelInviteButton, InviteForm, MemberControls, RenameTeamForm } from './team-forms';
+import { TeamLimitsForm } from '@/components/teams/team-limits-form';
+import { getDb } from '@/db/client';
+import { DEFAULT_TEAM_LIMITS, getTeamLimits, teamStoredResultBytes } from '@/lib/jobs/team-limits';
 
 export const metadata: Metadata = { title: 'Team' };
 
@@ -111,6 +114,12 @@ export default async function TeamPage({ params }: { params: Promise<{ teamId: s
             <Card className="p-5">
               <h2 className="mb-3 text-sm font-semibold">Settings</h2>
               <RenameTeamForm teamId={teamId} name={team.name} />
+            </Card>
+          ) : null}
+          {manage ? (
+            <Card className="p-5">
+              <h2 className="mb-3 text-sm font-semibold">Resource limits</h2>
+              <TeamLimitsForm teamId={teamId} limits={getTeamLimits(getDb(), teamId)} defaults={DEFAULT_TEAM_LIMITS} storedBytes={teamStoredResultBytes(getDb(), teamId)} />
             </Card>
           ) : null}
           {!invite && !manage ? (

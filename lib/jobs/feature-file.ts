@@ -1,0 +1,246 @@
+/**
+ * Per-opening results as one column file (`TRFEAT1`), written by the analysis worker and read by the server, so a
+ * million openings cross from the worker to the server as a file instead of a structured-cloned array of objects.
+ * Pure codec plus positional reads (node:fs only; no DB), so the worker bundle can include it.
+ *
+ * Layout, little-endian: magic "TRFEAT1\0"; uint32 header length H; H bytes of UTF-8 JSON
+ * `{ count, columns: [{ name, dtype, offset }], tables: { offset, length } }`; zero padding; each column as a
+ * packed array at its `offset` (from the start of the file, a multiple of 8); then at `tables.offset` the string
+ * tables as UTF-8 JSON `{ shapes: string[], warnings: string[] }`. The header depends only on the count, so the
+ * columns are written straight into the output buffer (one allocation for a million openings) and the string
+ * tables, known only after the scan, go last. dtypes: f64, i32, u32, u8. `shape` and `warnings` are indices into
+ * the string tables (warnings: the row's warnings joined by "; ", calibrated-range excursions appended as
+ * "<quantity> outside the calibrated range", as the table stored them).
+ * NaN numbers are stored as 0, like the analysis_features table did (SQLite REAL NOT NULL cannot hold NaN).
+ */
+import { closeSync, openSync, readSync } from 'node:fs';
+import type { FeatureResult } from '@/lib/pipeline/predict-features';
+
+export const FEATURE_FILE_NAME = 'features.trfeat';
+const MAGIC = 'TRFEAT1\0';
+
+export const F64_COLUMNS = [
+  'xUm',
+  'yUm',
+  'x0Um',
+  'y0Um',
+  'x1Um',
+  'y1Um',
+  'areaUm2',
+  'widthUm',
+  'lengthUm',
+  'effectiveDensity',
+  'depthUm',
+  'aspectRatio',
+  'marginUm',
+  'overEtchUm',
+] as const;
+export type F64Column = (typeof F64_COLUMNS)[number];
+
+type Dtype = 'f64' | 'i32' | 'u32' | 'u8';
+const WIDTH: Record<Dtype, number> = { f64: 8, i32: 4, u32: 4, u8: 1 };
+const COLUMN_TYPES: [string, Dtype][] = [
+  ['featureId', 'i32'],
+  ...F64_COLUMNS.map((c): [string, Dtype] => [c, 'f64']),
+  ['shape', 'u8'],
+  ['modelKind', 'u8'],
+  ['reachesTarget', 'u8'],
+  ['warnings', 'u32'],
+];
+
+export interface FeatureFileHeader {
+  count: number;
+  columns: { name: string; dtype: Dtype; offset: number }[];
+  tables: { offset: number; length: number };
+}
+
+export interface FeatureFileTables {
+  shapes: string[];
+  warnings: string[];
+}
+
+/** Columns in memory (what the file holds, decoded). modelKind: 0 = trench, 1 = hole. */
+export interface FeatureFileColumns extends Record<F64Column, Float64Array> {
+  count: number;
+  featureId: Int32Array;
+  shape: Uint8Array;
+  modelKind: Uint8Array;
+  reachesTarget: Uint8Array;
+  warnings: Uint32Array;
+  shapes: string[];
+  warningTexts: string[];
+}
+
+const num = (v: number) => (Number.isNaN(v) ? 0 : v);
+const align8 = (n: number) => (n + 7) & ~7;
+
+function warningText(r: FeatureResult): string {
+  if (r.warnings.length === 0 && r.excursions.length === 0) return '';
+  return [...r.warnings, ...r.excursions.map((e) => `${e.quantity} outside the calibrated range`)].join('; ');
+}
+
+/** The encoded file in two parts: header + columns, then the string tables (write them in this order). */
+export interface EncodedFeatureFile {
+  body: Uint8Array;
+  tables: Uint8Array;
+  byteLength: number;
+}
+
+/** Header and column offsets for `n` rows; the columns end where the string tables begin. */
+function layoutFor(n: number): { header: FeatureFileHeader; end: number } {
+  const header: FeatureFileHeader = { count: n, columns: [], tables: { offset: 0, length: 0 } };
+  // Offsets' digits change the header's length: size it with generous room (96 bytes per column entry).
+  const room = align8(12 + JSON.stringify(header).length + 96 * COLUMN_TYPES.length + 64);
+  let at = room;
+  header.columns = COLUMN_TYPES.map(([name, dtype]) => {
+    const col = { name, dtype, offset: at };
+    at = align8(at + n * WIDTH[dtype]);
+    return col;
+  });
+  header.tables.offset = at;
+  return { header, end: at };
+}
+
+/** Encodes results (about 125 bytes per opening) with the columns written in place. */
+export function encodeFeatureFile(results: FeatureResult[]): EncodedFeatureFile {
+  const n = results.length;
+  const { header, end } = layoutFor(n);
+  const body = new Uint8Array(end);
+  const col = new Map(header.columns.map((c) => [c.name, c.offset]));
+  const f64 = (name: string) => new Float64Array(body.buffer, col.get(name) as number, n);
+  const xUm = f64('xUm');
+  const yUm = f64('yUm');
+  const x0Um = f64('x0Um');
+  const y0Um = f64('y0Um');
+  const x1Um = f64('x1Um');
+  const y1Um = f64('y1Um');
+  const areaUm2 = f64('areaUm2');
+  const widthUm = f64('widthUm');
+  const lengthUm = f64('lengthUm');
+  const effectiveDensity = f64('effectiveDensity');
+  const depthUm = f64('depthUm');
+  const aspectRatio = f64('aspectRatio');
+  const marginUm = f64('marginUm');
+  const overEtchUm = f64('overEtchUm');
+  const featureId = new Int32Array(body.buffer, col.get('featureId') as number, n);
+  const shape = new Uint8Array(body.buffer, col.get('shape') as number, n);
+  const modelKind = new Uint8Array(body.buffer, col.get('modelKind') as number, n);
+  const reachesTarget = new Uint8Array(body.buffer, col.get('reachesTarget') as number, n);
+  const warnings = new Uint32Array(body.buffer, col.get('warnings') as number, n);
+  const shapeIndex = new Map<string, number>();
+  const warningIndex = new Map<string, number>([['', 0]]);
+  for (let k = 0; k < n; k++) {
+    const r = results[k] as FeatureResult;
+    featureId[k] = r.id;
+    xUm[k] = num(r.centroidUm[0]);
+    yUm[k] = num(r.centroidUm[1]);
+    x0Um[k] = num(r.bboxUm[0]);
+    y0Um[k] = num(r.bboxUm[1]);
+    x1Um[k] = num(r.bboxUm[2]);
+    y1Um[k] = num(r.bboxUm[3]);
+    areaUm2[k] = num(r.areaUm2);
+    widthUm[k] = num(r.widthUm);
+    lengthUm[k] = num(r.lengthUm);
+    effectiveDensity[k] = num(r.effectiveDensity);
+    depthUm[k] = num(r.depthUm);
+    aspectRatio[k] = num(r.aspectRatio);
+    marginUm[k] = num(r.marginUm);
+    overEtchUm[k] = num(r.overEtchUm);
+    let s = shapeIndex.get(r.shape);
+    if (s === undefined) shapeIndex.set(r.shape, (s = shapeIndex.size));
+    shape[k] = s;
+    modelKind[k] = r.modelKind === 'hole' ? 1 : 0;
+    reachesTarget[k] = r.reachesTarget ? 1 : 0;
+    if (r.warnings.length === 0 && r.excursions.length === 0) continue; // warnings[k] = 0 (''), already zero
+    const w = warningText(r);
+    let wi = warningIndex.get(w);
+    if (wi === undefined) warningIndex.set(w, (wi = warningIndex.size));
+    warnings[k] = wi;
+  }
+  const tableJson: FeatureFileTables = { shapes: [...shapeIndex.keys()], warnings: [...warningIndex.keys()] };
+  const tables = new TextEncoder().encode(JSON.stringify(tableJson));
+  header.tables.length = tables.length;
+  const json = new TextEncoder().encode(JSON.stringify(header));
+  const room = header.columns[0]?.offset ?? end;
+  if (12 + json.length > room) throw new Error('feature file header outgrew its room');
+  for (let i = 0; i < 8; i++) body[i] = MAGIC.charCodeAt(i);
+  new DataView(body.buffer).setUint32(8, json.length, true);
+  body.set(json, 12);
+  return { body, tables, byteLength: body.length + tables.length };
+}
+
+/** Both parts in one buffer (tests, small files). */
+export function featureFileBytes(e: EncodedFeatureFile): Uint8Array {
+  const out = new Uint8Array(e.byteLength);
+  out.set(e.body);
+  out.set(e.tables, e.body.length);
+  return out;
+}
+
+export class FeatureFileError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'FeatureFileError';
+  }
+}
+
+function parseHeader(bytes: Uint8Array, file: string): FeatureFileHeader {
+  for (let i = 0; i < 8; i++) if (bytes[i] !== MAGIC.charCodeAt(i)) throw new FeatureFileError(`${file}: not a ${MAGIC.slice(0, 7)} file`);
+  const len = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength).getUint32(8, true);
+  if (12 + len > bytes.length) throw new FeatureFileError(`${file}: header runs past the end`);
+  return JSON.parse(new TextDecoder().decode(bytes.subarray(12, 12 + len))) as FeatureFileHeader;
+}
+
+/** Reads the header and string tables of a feature file (three small positional reads). */
+export function readFeatureFileHeader(fd: number, file: string): FeatureFileHeader & FeatureFileTables {
+  const head = new Uint8Array(12);
+  if (readSync(fd, head, 0, 12, 0) < 12) throw new FeatureFileError(`${file}: shorter than its header`);
+  const len = new DataView(head.buffer).getUint32(8, true);
+  if (len > 64 * 1024 * 1024) throw new FeatureFileError(`${file}: implausible header length ${len}`);
+  const all = new Uint8Array(12 + len);
+  if (readSync(fd, all, 0, all.length, 0) < all.length) throw new FeatureFileError(`${file}: header runs past the end`);
+  const header = parseHeader(all, file);
+  const t = new Uint8Array(header.tables.length);
+  if (t.length > 0 && readSync(fd, t, 0, t.length, header.tables.offset) < t.length) throw new FeatureFileError(`${file}: string tables are truncated`);
+  const tables = JSON.parse(new TextDecoder().decode(t)) as FeatureFileTables;
+  return { ...header, ...tables };
+}
+
+function typed(dtype: Dtype, buf: ArrayBuffer, offset: number, n: number): Float64Array | Int32Array | Uint32Array | Uint8Array {
+  if (dtype === 'f64') return new Float64Array(buf, offset, n);
+  if (dtype === 'i32') return new Int32Array(buf, offset, n);
+  if (dtype === 'u32') return new Uint32Array(buf, offset, n);
+  return new Uint8Array(buf, offset, n);
+}
+
+/**
+ * Rows [from, from + n) of every column (n clipped to the file), read with one positional read per column into
+ * fresh aligned buffers. Reading the whole file is `readFeatureRange(file, 0, Infinity)`.
+ */
+export function readFeatureRange(file: string, from: number, n: number): FeatureFileColumns {
+  const fd = openSync(file, 'r');
+  try {
+    const h = readFeatureFileHeader(fd, file);
+    const start = Math.max(0, Math.min(from, h.count));
+    const count = Math.max(0, Math.min(h.count - start, n));
+    const out: Record<string, unknown> = { count, shapes: h.shapes, warningTexts: h.warnings };
+    for (const c of h.columns) {
+      const w = WIDTH[c.dtype];
+      const buf = new ArrayBuffer(count * w);
+      const want = count * w;
+      if (want > 0) {
+        let got = 0;
+        const view = new Uint8Array(buf);
+        while (got < want) {
+          const r = readSync(fd, view, got, want - got, c.offset + start * w + got);
+          if (r <= 0) throw new FeatureFileError(`${file}: column ${c.name} is truncated`);
+          got += r;
+        }
+      }
+      out[c.name] = typed(c.dtype, buf, 0, count);
+    }
+    return out as unknown as FeatureFileColumns;
+  } finally {
+    closeSync(fd);
+  }
+}
