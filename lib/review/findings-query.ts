@@ -55,6 +55,10 @@ export const findingsQuery = z.object({
   /** A user id, or "none" for unassigned findings. */
   assignee: z.string().max(64).optional(),
   q: z.string().max(200).optional(),
+  /** Exactly this finding key (flat view). */
+  key: z.string().max(200).optional(),
+  /** Return the page holding this finding key (or its group) instead of `offset`; see FindingsPage.located. */
+  locate: z.string().max(200).optional(),
   sort: z.enum(FINDING_SORTS).default('rank'),
   dir: z.enum(['asc', 'desc']).default('asc'),
   offset: z.coerce.number().int().min(0).default(0),
@@ -64,6 +68,7 @@ export type FindingsQuery = z.infer<typeof findingsQuery>;
 
 /** Whether one finding passes the filters of `q` (everything but the group). */
 export function matchesFilters(f: FindingItem, q: FindingsQuery): boolean {
+  if (q.key && f.key !== q.key) return false;
   if (q.kind && f.kind !== q.kind) return false;
   if (q.severity && f.severity !== q.severity) return false;
   if (q.status && f.status !== q.status) return false;
@@ -103,9 +108,16 @@ function compareGroups(a: GroupRow, b: GroupRow, sort: FindingsQuery['sort']): n
   return compareItems(a.first, b.first, sort);
 }
 
+/** Row id of the located finding: its key (flat) or its group's id; null when filtered out or unknown. */
+type Located = { located: string | null };
 export type FindingsPage =
-  | { view: 'flat'; total: number; offset: number; limit: number; items: FindingItem[] }
-  | { view: 'groups'; total: number; offset: number; limit: number; items: GroupRow[]; findings: number };
+  | ({ view: 'flat'; total: number; offset: number; limit: number; items: FindingItem[] } & Located)
+  | ({ view: 'groups'; total: number; offset: number; limit: number; items: GroupRow[]; findings: number } & Located);
+
+/** The offset of the page that holds row `index`, or `fallback` when there is no such row. */
+function pageOffset(index: number, limit: number, fallback: number): number {
+  return index < 0 ? fallback : Math.floor(index / limit) * limit;
+}
 
 /** Groups of all findings, computed once per list (group ids do not depend on the filters). */
 export function groupsOf(items: readonly FindingItem[]): FindingGroup[] {
@@ -122,7 +134,9 @@ export function queryFindings(items: readonly FindingItem[], q: FindingsQuery, g
       pool = items.filter((f) => keys.has(f.key));
     }
     const rows = pool.filter((f) => matchesFilters(f, q)).sort((a, b) => sign * compareItems(a, b, q.sort === 'count' ? 'rank' : q.sort));
-    return { view: 'flat', total: rows.length, offset: q.offset, limit: q.limit, items: rows.slice(q.offset, q.offset + q.limit) };
+    const at = q.locate ? rows.findIndex((f) => f.key === q.locate) : -1;
+    const offset = pageOffset(at, q.limit, q.offset);
+    return { view: 'flat', total: rows.length, offset, limit: q.limit, items: rows.slice(offset, offset + q.limit), located: at >= 0 ? (q.locate as string) : null };
   }
   const byKey = new Map(items.map((f) => [f.key, f]));
   const rows: GroupRow[] = [];
@@ -146,5 +160,11 @@ export function queryFindings(items: readonly FindingItem[], q: FindingsQuery, g
     });
   }
   rows.sort((a, b) => sign * compareGroups(a, b, q.sort));
-  return { view: 'groups', total: rows.length, offset: q.offset, limit: q.limit, items: rows.slice(q.offset, q.offset + q.limit), findings };
+  let at = -1;
+  if (q.locate) {
+    const g = groups.find((x) => x.memberKeys.includes(q.locate as string));
+    at = g ? rows.findIndex((r) => r.id === g.id) : -1;
+  }
+  const offset = pageOffset(at, q.limit, q.offset);
+  return { view: 'groups', total: rows.length, offset, limit: q.limit, items: rows.slice(offset, offset + q.limit), findings, located: at >= 0 ? (rows[at] as GroupRow).id : null };
 }

@@ -146,3 +146,19 @@ describe('queryFindings(items, query)', () => {
     expect(members.total).toBe(3);
   });
 });
+
+describe('queryFindings locate (a canvas selection finds its row)', () => {
+  it('returns the page holding the finding and the row to highlight, in both views', async () => {
+    const db = await reviewDb();
+    const xs = Array.from({ length: 12 }, (_, i) => 100 + i * 40);
+    const id = await storeAnalysis(db, xs.map(narrow), 1);
+    const items = loadFindings(db, id).items;
+    const target = items[9]?.key as string;
+    const flat = queryFindings(items, findingsQuery.parse({ view: 'flat', limit: '5', locate: target }));
+    expect(flat).toMatchObject({ offset: 5, located: target });
+    expect(flat.items.map((f) => ('key' in f ? f.key : ''))).toContain(target);
+    const grouped = queryFindings(items, findingsQuery.parse({ locate: target }));
+    expect(grouped.located).toBe(grouped.items[0]?.id);
+    expect(queryFindings(items, findingsQuery.parse({ view: 'flat', locate: 'no-such-key' })).located).toBeNull();
+  });
+});
