@@ -142,7 +142,7 @@ export function FindingsTable(props: Props) {
   );
 }
 
-const MEMBER_PAGE = 50;
+const MEMBER_PAGE = 20;
 
 /** A group's members, loaded when the group is opened, 50 at a time. */
 function GroupMembers({ analysisId, group, colSpan, openKey, onPick }: { analysisId: string; group: GroupRow; colSpan: number; openKey: string | null; onPick: (f: FindingItem) => void }) {
@@ -162,13 +162,13 @@ function GroupMembers({ analysisId, group, colSpan, openKey, onPick }: { analysi
               <button
                 type="button"
                 onClick={() => onPick(f)}
-                className={`flex w-full flex-wrap items-baseline gap-x-4 px-1 py-1 text-left text-xs hover:bg-white ${openKey === f.key ? 'bg-copper-300/20' : ''}`}
+                className={`grid w-full grid-cols-[16rem_9rem_9rem_auto_auto] items-baseline gap-x-3 px-1 py-1 text-left text-xs hover:bg-white ${openKey === f.key ? 'bg-copper-300/20' : ''}`}
               >
-                <span className="font-mono">{f.key}</span>
+                <span className="truncate font-mono">{f.key}</span>
                 <span className="font-mono text-ink-500">{f.atUm.map((v) => v.toFixed(1)).join(', ')} µm</span>
                 <span className="font-mono">{measuredText(f)}</span>
                 <StatusPill status={f.status} />
-                {f.assignee ? <span className="text-ink-500">{f.assignee.name}</span> : null}
+                <span className="text-ink-500">{f.assignee?.name ?? ''}</span>
               </button>
             </li>
           ))}

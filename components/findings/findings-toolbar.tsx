@@ -35,7 +35,7 @@ export function FindingsToolbar(props: { state: FindingsUrlState; update: (p: Fi
           </button>
         ))}
       </div>
-      <select aria-label="Kind" className={select} value={state.kind ?? ''} onChange={(e) => set({ kind: e.target.value })}>
+      <select aria-label="Kind" className={`${select} max-w-52`} value={state.kind ?? ''} onChange={(e) => set({ kind: e.target.value })}>
         <option value="">all kinds</option>
         {props.kinds.map((k) => (
           <option key={k}>{k}</option>
