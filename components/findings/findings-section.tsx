@@ -23,7 +23,8 @@ export function FindingsSection({ analysisId }: { analysisId: string }) {
   const [state, update] = useFindingsUrl();
   const { selected, select } = useFindingSelection();
   const qc = useQueryClient();
-  const [locate, setLocate] = useState<string | null>(null);
+  // a link to one finding (?finding=KEY, e.g. from a notification) opens on the page that holds it, like a canvas pick
+  const [locate, setLocate] = useState<string | null>(() => state.finding ?? null);
   const [checked, setChecked] = useState<Set<string>>(new Set());
 
   useEffect(() => {
@@ -43,11 +44,11 @@ export function FindingsSection({ analysisId }: { analysisId: string }) {
 
   // a located row may be on another page: follow the server's page, then stop locating
   useEffect(() => {
-    if (!locate || !data) return;
+    if (!locate || !data || list.isPlaceholderData) return;
     const page = Math.floor(data.offset / PAGE_SIZE) + 1;
     setLocate(null);
     if (String(page) !== (state.page ?? '1')) update({ page: page === 1 ? '' : String(page) });
-  }, [data, locate]);
+  }, [data, locate, list.isPlaceholderData]);
   const [highlight, setHighlight] = useState<string | null>(null);
   useEffect(() => {
     if (data?.located) setHighlight(data.located);

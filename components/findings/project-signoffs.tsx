@@ -8,7 +8,7 @@ export function ProjectSignoffs({ projectId }: { projectId: string }) {
   const rows = projectSignoffs(getDb(), projectId);
   return (
     <Card className="mt-6 p-6">
-      <h2 className="text-sm font-semibold">Sign-offs</h2>
+      <h2 className="text-lg font-semibold text-ink-900">Sign-offs</h2>
       {rows.length === 0 ? (
         <p className="mt-1 text-sm text-ink-500">No analysis of this project is signed off yet. A reviewer signs off once every error finding is waived or verified.</p>
       ) : (

@@ -146,6 +146,44 @@ describe('review in the browser with two roles', () => {
     expect(((await s.json()) as { error: { message: string } }).error.message).toMatch(/still open or unwaived/);
   });
 
+  it('a link to one finding (as a canvas pick does) opens the page that holds it and highlights its row', async () => {
+    const reviewer = await signIn(server.baseUrl, 'reviewer@larkspur.example', PASSWORD);
+    const all = (await (await reviewer.get(`/api/v1/analyses/${analysisId}/findings?view=flat&limit=500`)).json()) as { items: { key: string }[] };
+    const target = all.items[60]?.key as string; // row 61: page 3 at 25 rows a page
+    const page = await signInPage('reviewer@larkspur.example');
+    await page.goto(`${server.baseUrl}/analyses/${analysisId}?view=flat&finding=${encodeURIComponent(target)}`);
+    const row = page.locator(`[data-testid=finding-row][data-row-id="${target}"]`);
+    await row.waitFor();
+    expect(await row.getAttribute('aria-selected')).toBe('true');
+    expect(await page.textContent('[data-testid=findings-page]')).toMatch(/page 3 of/);
+    expect(new URL(page.url()).searchParams.get('page')).toBe('3');
+    await page.close();
+  });
+
+  it('reviewer: waives every error group in one bulk change (with a reason), signs off, and the project page shows it', async () => {
+    const page = await signInPage('reviewer@larkspur.example');
+    await page.goto(`${server.baseUrl}/analyses/${analysisId}?severity=error`);
+    await page.locator('[data-testid=finding-group-row]').first().waitFor();
+    expect(await page.locator('[data-testid=signoff-button]').isDisabled()).toBe(true);
+    await page.locator('input[aria-label="Check every row on this page"]').check();
+    await page.locator('[data-testid=bulk-status]').selectOption('waived');
+    await page.fill('[data-testid=bulk-reason]', 'Accepted for the first engineering lot; to be re-checked on calibration wafers.');
+    await page.click('[data-testid=bulk-apply]');
+    await page.locator('[data-testid=signoff-state]:has-text("Ready for sign-off")').waitFor();
+    await page.click('[data-testid=signoff-button]');
+    await page.locator('[data-testid=signoff-done]').waitFor();
+    expect(await page.textContent('[data-testid=signoff-done]')).toMatch(/Signed off.*Rafael Odum.*demo-1/s);
+    await screenshot(page, 'review-signed-off');
+    await page.goto(`${server.baseUrl}/projects/demo-kestrel`);
+    expect(await page.textContent('[data-testid=project-signoffs]')).toMatch(/signed off by Rafael Odum/);
+    await page.close();
+
+    const reviewer = await signIn(server.baseUrl, 'reviewer@larkspur.example', PASSWORD);
+    const after = await reviewer.post(`/api/v1/analyses/${analysisId}/findings/bulk`, { keys: [findingKey], status: 'open' });
+    expect(after.status).toBe(409);
+    expect(((await after.json()) as { error: { message: string } }).error.message).toMatch(/new analysis/);
+  });
+
   it('API: CSV export lists every stored finding with the waiver', async () => {
     const reviewer = await signIn(server.baseUrl, 'reviewer@larkspur.example', PASSWORD);
     const res = await reviewer.get(`/api/v1/analyses/${analysisId}/findings.csv`);

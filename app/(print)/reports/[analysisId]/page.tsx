@@ -53,7 +53,7 @@ export default async function ReportPage({ params }: { params: Promise<{ analysi
           </p>
         </div>
         <div className="flex items-center gap-3 print:hidden">
-          <Link href={`/analyses/${analysisId}`} className="text-sm text-oxide-600 hover:underline">
+          <Link href={`/analyses/${analysisId}`} className="text-sm whitespace-nowrap text-oxide-600 hover:underline">
             Back to the analysis
           </Link>
           <PrintButton />
