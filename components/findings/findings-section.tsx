@@ -83,7 +83,8 @@ export function FindingsSection({ analysisId }: { analysisId: string }) {
       return next;
     });
 
-  const page = Number(state.page ?? '1') || 1;
+  // the page shown is the page the server answered (a located finding may have turned it before the URL follows)
+  const page = data ? Math.floor(data.offset / PAGE_SIZE) + 1 : Number(state.page ?? '1') || 1;
   const pages = data ? Math.max(1, Math.ceil(data.total / PAGE_SIZE)) : 1;
   const canAct = Boolean(data && !data.signoff.signoff && (data.can.triage || data.can.waive || data.can.verify));
   const memberCount = data ? data.items.filter((x) => checked.has(isGroup(x) ? x.id : x.key)).reduce((n, x) => n + (isGroup(x) ? x.count : 1), 0) : 0;

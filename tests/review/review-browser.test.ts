@@ -156,7 +156,7 @@ describe('review in the browser with two roles', () => {
     await row.waitFor();
     expect(await row.getAttribute('aria-selected')).toBe('true');
     expect(await page.textContent('[data-testid=findings-page]')).toMatch(/page 3 of/);
-    expect(new URL(page.url()).searchParams.get('page')).toBe('3');
+    await expect.poll(() => new URL(page.url()).searchParams.get('page'), { timeout: 5000 }).toBe('3');
     await page.close();
   });
 
