@@ -110,6 +110,12 @@ export function FindingsSection({ analysisId }: { analysisId: string }) {
               The list is capped: the pipeline counted <strong>{data.counted.toLocaleString('en')}</strong> flags but stored only the{' '}
               <strong>{data.listed.toLocaleString('en')}</strong> worst for review. The summary counts all of them. To review every one, run a new analysis with a higher
               “listed flags” limit (maxListedFlags).
+              {data.shortKinds.length ? (
+                <span className="mt-1 block text-xs text-ink-700">
+                  Not all listed:{' '}
+                  {data.shortKinds.map((k) => `${k.kind} ${k.listed.toLocaleString('en')} of ${k.counted.toLocaleString('en')}`).join(' · ')}.
+                </span>
+              ) : null}
             </p>
           ) : null}
           <FindingsToolbar state={state} update={update} kinds={data.kinds} layers={data.layers} members={data.members} />

@@ -15,6 +15,7 @@ export type FindingsResponse = {
   listed: number;
   counted: number;
   capped: boolean;
+  shortKinds: { kind: string; counted: number; listed: number }[];
   kinds: string[];
   layers: string[];
   members: Member[];

@@ -5,7 +5,7 @@
  */
 import { z } from 'zod';
 import { FINDING_STATUSES, type FindingStatus } from './statuses';
-import { groupFindings, type FindingGroup } from './group-findings';
+import { groupFindings, type FindingGroup, type GroupableFinding } from './group-findings';
 
 export type FindingItem = {
   /** analysis_flags.id */
@@ -120,16 +120,18 @@ function pageOffset(index: number, limit: number, fallback: number): number {
 }
 
 /** Groups of all findings, computed once per list (group ids do not depend on the filters). */
-export function groupsOf(items: readonly FindingItem[]): FindingGroup[] {
+export function groupsOf(items: readonly GroupableFinding[]): FindingGroup[] {
   return groupFindings(items, { widthTolerance: 0.02, nearUm: 0 });
 }
 
-export function queryFindings(items: readonly FindingItem[], q: FindingsQuery, groups: readonly FindingGroup[] = groupsOf(items)): FindingsPage {
+export function queryFindings(items: readonly FindingItem[], q: FindingsQuery, precomputed?: readonly FindingGroup[]): FindingsPage {
+  let cached = precomputed;
+  const groupList = () => (cached ??= groupsOf(items));
   const sign = q.dir === 'desc' ? -1 : 1;
   if (q.view === 'flat' || q.group) {
     let pool: readonly FindingItem[] = items;
     if (q.group) {
-      const g = groups.find((x) => x.id === q.group);
+      const g = groupList().find((x) => x.id === q.group);
       const keys = new Set(g?.memberKeys ?? []);
       pool = items.filter((f) => keys.has(f.key));
     }
@@ -141,6 +143,7 @@ export function queryFindings(items: readonly FindingItem[], q: FindingsQuery, g
   const byKey = new Map(items.map((f) => [f.key, f]));
   const rows: GroupRow[] = [];
   let findings = 0;
+  const groups = groupList();
   for (const g of groups) {
     const members = g.memberKeys.map((k) => byKey.get(k)).filter((f): f is FindingItem => f !== undefined);
     const matching = members.filter((f) => matchesFilters(f, q));

@@ -8,7 +8,8 @@ import type { Db } from '@/db/client';
 import { analyses, analysisFlags, analysisSignoffs, findingEvents, findingReviews, memberships, projects, users, type AnalysisRow, type AnalysisSignoffRow } from '@/db/schema';
 import { ApiError } from '@/lib/http/errors';
 import { readFeatureColumns } from '@/lib/jobs/feature-columns';
-import type { FindingItem } from './findings-query';
+import { groupsOf, type FindingItem } from './findings-query';
+import type { FindingGroup } from './group-findings';
 import type { Mentionable } from './mentions';
 
 /** Widths by feature id of finished analyses; results never change once done, so a few are kept in memory. */
@@ -49,25 +50,24 @@ export function layerLabel(a: AnalysisRow): string {
   return layers.map((l) => `${l.layer}/${l.datatype}`).join('+') || '?';
 }
 
-export function loadFindings(db: Db, analysisId: string): { analysis: AnalysisRow; items: FindingItem[] } {
-  const analysis = finishedAnalysisRow(db, analysisId);
-  const flags = db.select().from(analysisFlags).where(eq(analysisFlags.analysisId, analysisId)).orderBy(analysisFlags.rank).all();
-  const reviews = new Map(db.select().from(findingReviews).where(eq(findingReviews.analysisId, analysisId)).all().map((r) => [r.flagKey, r]));
-  const eventCounts = new Map(
-    db
-      .select({ key: findingEvents.flagKey, n: count() })
-      .from(findingEvents)
-      .where(eq(findingEvents.analysisId, analysisId))
-      .groupBy(findingEvents.flagKey)
-      .all()
-      .map((r) => [r.key, r.n]),
-  );
-  const names = new Map(db.select({ id: users.id, name: users.name }).from(users).all().map((u) => [u.id, u.name]));
-  const widths = flags.some((f) => f.featureId !== null) ? featureWidths(db, analysisId) : new Map<number, number>();
+type BaseItem = Omit<FindingItem, 'status' | 'assignee' | 'waiver' | 'events'>;
+
+/**
+ * Flags, widths and groups of finished analyses never change, so the static part of a findings list is kept for a
+ * few analyses; each request only overlays the review state (statuses, assignees, waivers, thread sizes).
+ */
+const baseCache = new Map<string, { items: BaseItem[]; groups: FindingGroup[] }>();
+const BASE_CACHE_ENTRIES = 4;
+
+function baseFindings(db: Db, analysis: AnalysisRow): { items: BaseItem[]; groups: FindingGroup[] } {
+  const cacheKey = `${analysis.id}:${analysis.finishedAt?.getTime() ?? 0}`;
+  const hit = baseCache.get(cacheKey);
+  if (hit) return hit;
+  const flags = db.select().from(analysisFlags).where(eq(analysisFlags.analysisId, analysis.id)).orderBy(analysisFlags.rank).all();
+  const widths = flags.some((f) => f.featureId !== null) ? featureWidths(db, analysis.id) : new Map<number, number>();
   const layer = layerLabel(analysis);
-  const items = flags.map((f): FindingItem => {
-    const r = reviews.get(f.flagKey);
-    return {
+  const items = flags.map(
+    (f): BaseItem => ({
       id: f.id,
       key: f.flagKey,
       rank: f.rank,
@@ -83,16 +83,43 @@ export function loadFindings(db: Db, analysisId: string): { analysis: AnalysisRo
       message: f.message,
       featureId: f.featureId,
       widthUm: f.featureId !== null ? (widths.get(f.featureId) ?? null) : null,
+    }),
+  );
+  const entry = { items, groups: groupsOf(items) };
+  baseCache.set(cacheKey, entry);
+  while (baseCache.size > BASE_CACHE_ENTRIES) baseCache.delete(baseCache.keys().next().value as string);
+  return entry;
+}
+
+/** The findings of a finished analysis with their review state (worst first), and their groups. */
+export function loadFindings(db: Db, analysisId: string): { analysis: AnalysisRow; items: FindingItem[]; groups: FindingGroup[] } {
+  const analysis = finishedAnalysisRow(db, analysisId);
+  const base = baseFindings(db, analysis);
+  const reviews = new Map(db.select().from(findingReviews).where(eq(findingReviews.analysisId, analysisId)).all().map((r) => [r.flagKey, r]));
+  const eventCounts = new Map(
+    db
+      .select({ key: findingEvents.flagKey, n: count() })
+      .from(findingEvents)
+      .where(eq(findingEvents.analysisId, analysisId))
+      .groupBy(findingEvents.flagKey)
+      .all()
+      .map((r) => [r.key, r.n]),
+  );
+  const names = reviews.size ? new Map(db.select({ id: users.id, name: users.name }).from(users).all().map((u) => [u.id, u.name])) : new Map<string, string>();
+  const items = base.items.map((b): FindingItem => {
+    const r = reviews.get(b.key);
+    return {
+      ...b,
       status: r?.status ?? 'open',
       assignee: r?.assigneeId ? { id: r.assigneeId, name: names.get(r.assigneeId) ?? 'former member' } : null,
       waiver:
         r?.waiverReason && r.status === 'waived'
           ? { reason: r.waiverReason, approverName: r.waiverApproverName ?? '', at: (r.waivedAt ?? r.updatedAt).toISOString(), carriedNote: r.carriedNote }
           : null,
-      events: eventCounts.get(f.flagKey) ?? 0,
+      events: eventCounts.get(b.key) ?? 0,
     };
   });
-  return { analysis, items };
+  return { analysis, items, groups: base.groups };
 }
 
 /** Team members of the analysis's project, for assignment and @mentions. */

@@ -44,8 +44,8 @@ export function blockingOf(items: readonly FindingItem[], summary: Record<string
   return { blocking, unlistedErrors: Math.max(0, counted - listedErrors) };
 }
 
-export function signoffState(db: Db, analysisId: string): SignoffState {
-  const { analysis, items } = loadFindings(db, analysisId);
+export function signoffState(db: Db, analysisId: string, loaded: Pick<ReturnType<typeof loadFindings>, 'analysis' | 'items'> = loadFindings(db, analysisId)): SignoffState {
+  const { analysis, items } = loaded;
   const s = signoffOf(db, analysisId);
   const { blocking, unlistedErrors } = blockingOf(items, analysis.summary);
   const reason = s

@@ -118,6 +118,7 @@ export const REVIEW_PATHS: Record<string, PathItemObject> = {
               listed: int(),
               counted: int(),
               capped: bool(),
+              shortKinds: arrayOf(object({ kind: str(), counted: int(), listed: int() })),
               kinds: arrayOf(str()),
               layers: arrayOf(str()),
               members: arrayOf(object({ id: str(), name: str(), handle: str() })),

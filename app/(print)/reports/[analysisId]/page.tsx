@@ -8,7 +8,6 @@ import { analysisMaps } from '@/db/schema';
 import { getAnalysisView } from '@/lib/jobs/analyses';
 import { analysisForPage } from '@/lib/jobs/page-access';
 import { CAUTIONS } from '@/lib/methods';
-import { groupsOf } from '@/lib/review/findings-query';
 import { loadFindings, signoffOf } from '@/lib/review/findings-store';
 import { blockingOf } from '@/lib/review/signoff';
 import type { AnalysisSummary } from '@/lib/pipeline';
@@ -30,9 +29,8 @@ export default async function ReportPage({ params }: { params: Promise<{ analysi
   const db = getDb();
   const view = getAnalysisView(db, analysisId);
   if (view.status !== 'done') return <p className="p-8">This analysis has no results to report: it is {view.status}.</p>;
-  const { analysis, items } = loadFindings(db, analysisId);
+  const { analysis, items, groups } = loadFindings(db, analysisId);
   const s = analysis.summary as unknown as AnalysisSummary;
-  const groups = groupsOf(items);
   const byKey = new Map(items.map((f) => [f.key, f]));
   const signoff = signoffOf(db, analysisId);
   const { blocking, unlistedErrors } = blockingOf(items, analysis.summary);

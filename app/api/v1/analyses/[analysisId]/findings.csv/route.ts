@@ -16,8 +16,8 @@ export async function GET(request: Request, ctx: { params: Promise<{ analysisId:
     const params = Object.fromEntries(new URL(request.url).searchParams);
     const q = findingsQuery.parse({ ...params, view: 'flat', offset: 0, limit: 500 });
     await requireAnalysisAccess(request, analysisId, 'project.read');
-    const { analysis, items } = loadFindings(getDb(), analysisId);
-    const all = queryFindings(items, { ...q, limit: Number.MAX_SAFE_INTEGER }).items as typeof items;
+    const { analysis, items, groups } = loadFindings(getDb(), analysisId);
+    const all = queryFindings(items, { ...q, limit: Number.MAX_SAFE_INTEGER }, groups).items as typeof items;
     const csv = findingsCsv(all, { analysisId, model: `${analysis.modelName} ${analysis.modelVersion}` });
     return new Response(csv, {
       headers: { 'content-type': 'text/csv; charset=utf-8', 'content-disposition': `attachment; filename="findings-${analysisId}.csv"` },

@@ -21,10 +21,17 @@ export async function GET(request: Request, ctx: { params: Promise<{ analysisId:
     const q = findingsQuery.parse(Object.fromEntries(new URL(request.url).searchParams));
     const { teamId, role } = reviewContext(request, analysisId, await requireAnalysisAccess(request, analysisId, 'project.read'));
     const db = getDb();
-    const { analysis, items } = loadFindings(db, analysisId);
-    const page = queryFindings(items, q);
-    const summaryFlags = (analysis.summary as { flags?: { total?: number; listed?: number } } | null)?.flags;
+    const loaded = loadFindings(db, analysisId);
+    const { analysis, items } = loaded;
+    const page = queryFindings(items, q, loaded.groups);
+    const summaryFlags = (analysis.summary as { flags?: { total?: number; counts?: Record<string, Record<string, number>> } } | null)?.flags;
     const counted = summaryFlags?.total ?? items.length;
+    const listedByKind = new Map<string, number>();
+    for (const f of items) listedByKind.set(f.kind, (listedByKind.get(f.kind) ?? 0) + 1);
+    // kinds whose list is short of what the pipeline counted (only when the list was capped)
+    const shortKinds = Object.entries(summaryFlags?.counts ?? {})
+      .map(([kind, c]) => ({ kind, counted: Object.values(c).reduce((a, b) => a + b, 0), listed: listedByKind.get(kind) ?? 0 }))
+      .filter((k) => k.counted > k.listed);
     return Response.json({
       analysisId,
       ...page,
@@ -32,10 +39,11 @@ export async function GET(request: Request, ctx: { params: Promise<{ analysisId:
       listed: items.length,
       counted,
       capped: counted > items.length,
+      shortKinds,
       kinds: [...new Set(items.map((f) => f.kind))].sort(),
       layers: [...new Set(items.flatMap((f) => f.layer.split('+')))].sort(),
       members: teamMembersOf(db, teamId).map((m) => ({ id: m.id, name: m.name, handle: m.email.split('@')[0] ?? '' })),
-      signoff: signoffState(db, analysisId),
+      signoff: signoffState(db, analysisId, loaded),
       can: {
         comment: can(role, 'flag.comment'),
         triage: can(role, 'flag.triage'),

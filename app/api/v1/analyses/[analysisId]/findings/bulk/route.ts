@@ -1,7 +1,6 @@
 import { getDb } from '@/db/client';
 import { idParam } from '@/lib/data/schemas';
 import { toErrorResponse } from '@/lib/http/errors';
-import { groupsOf } from '@/lib/review/findings-query';
 import { loadFindings } from '@/lib/review/findings-store';
 import { deliver } from '@/lib/review/notify';
 import { changeBody, changeFindings } from '@/lib/review/review-actions';
@@ -24,7 +23,7 @@ export async function POST(request: Request, ctx: { params: Promise<{ analysisId
     const db = getDb();
     const keys = [...body.keys];
     if (body.groupIds.length) {
-      const groups = groupsOf(loadFindings(db, analysisId).items);
+      const { groups } = loadFindings(db, analysisId);
       for (const id of body.groupIds) {
         const g = groups.find((x) => x.id === id);
         if (!g) return Response.json({ error: { code: 'not_found', message: `No group "${id}" in this analysis.` } }, { status: 404 });
