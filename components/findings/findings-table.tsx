@@ -87,7 +87,7 @@ export function FindingsTable(props: Props) {
                       {x.matching === x.count ? x.count : `${x.matching} of ${x.count}`}
                     </td>
                     <td className="py-2 pr-3 font-mono text-xs whitespace-nowrap">
-                      {x.widthRangeUm ? (x.widthRangeUm[0] === x.widthRangeUm[1] ? `${fmt(x.widthRangeUm[0])} µm` : `${fmt(x.widthRangeUm[0])}–${fmt(x.widthRangeUm[1])} µm`) : 'region'}
+                      {x.widthRangeUm ? (fmt(x.widthRangeUm[0]) === fmt(x.widthRangeUm[1]) ? `${fmt(x.widthRangeUm[0])} µm` : `${fmt(x.widthRangeUm[0])}–${fmt(x.widthRangeUm[1])} µm`) : 'region'}
                       <span className="block text-ink-500">worst {measuredText(x.first)}</span>
                     </td>
                     <td className="py-2 pr-3">

@@ -165,7 +165,7 @@ export default async function ReportPage({ params }: { params: Promise<{ analysi
                   {g.kind} · {g.cause}
                 </td>
                 <td className="py-1 pr-2 text-right font-mono">{g.count}</td>
-                <td className="py-1 pr-2 font-mono">{g.widthRangeUm ? `${n4(g.widthRangeUm[0])}–${n4(g.widthRangeUm[1])} µm` : 'region'}</td>
+                <td className="py-1 pr-2 font-mono">{g.widthRangeUm ? (n4(g.widthRangeUm[0]) === n4(g.widthRangeUm[1]) ? `${n4(g.widthRangeUm[0])} µm` : `${n4(g.widthRangeUm[0])}–${n4(g.widthRangeUm[1])} µm`) : 'region'}</td>
                 <td className="py-1">
                   {Object.entries(counts)
                     .map(([k, v]) => `${v} ${STATUS_LABEL[k as keyof typeof STATUS_LABEL].toLowerCase()}`)

@@ -13,6 +13,18 @@ export const metadata: Metadata = { title: 'Audit log' };
 
 const PAGE = 200;
 
+/** Analyses and findings link to their page; other targets show as recorded. */
+function Target({ target }: { target: string | null }) {
+  const m = /^(?:analysis:|finding:)([A-Za-z0-9_-]+)(?:\/(.+))?$/.exec(target ?? '');
+  if (!m?.[1]) return <>{target ?? ''}</>;
+  const href = `/analyses/${m[1]}${m[2] ? `?finding=${encodeURIComponent(m[2])}` : ''}`;
+  return (
+    <Link href={href} className="text-oxide-600 hover:underline">
+      {target}
+    </Link>
+  );
+}
+
 /** Who changed what, when (admins only: 'audit.view'). */
 export default async function AuditPage({ params, searchParams }: { params: Promise<{ teamId: string }>; searchParams: Promise<{ action?: string; before?: string }> }) {
   const parsed = idParam.safeParse((await params).teamId);
@@ -58,8 +70,17 @@ export default async function AuditPage({ params, searchParams }: { params: Prom
                 <td className="px-4 py-1.5 font-mono whitespace-nowrap">{r.at.toISOString().replace('T', ' ').slice(0, 19)}</td>
                 <td className="px-4 py-1.5">{r.actorName ?? (r.actorId ? 'former member' : 'system')}</td>
                 <td className="px-4 py-1.5 font-mono">{r.action}</td>
-                <td className="px-4 py-1.5 font-mono break-all">{r.target ?? ''}</td>
-                <td className="max-w-md px-4 py-1.5 font-mono break-all text-ink-500">{r.detail ? JSON.stringify(r.detail) : ''}</td>
+                <td className="px-4 py-1.5 font-mono break-all">
+                  <Target target={r.target} />
+                </td>
+                <td className="max-w-md px-4 py-1.5 break-words text-ink-500">
+                  {r.detail
+                    ? Object.entries(r.detail)
+                        .filter(([, v]) => v !== null && v !== undefined)
+                        .map(([k, v]) => `${k}: ${typeof v === 'string' ? v : JSON.stringify(v)}`)
+                        .join(' · ')
+                    : ''}
+                </td>
               </tr>
             ))}
             {rows.length === 0 ? (
