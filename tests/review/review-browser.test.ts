@@ -7,6 +7,8 @@
 import Database from 'better-sqlite3';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { demoLayoutGdsii } from '@/lib/jobs/demo-layout';
+import { readLayoutBytes } from '@/lib/layout/read';
 import { launchBrowser, screenshot } from '../support/browser';
 import { signIn, type TestClient } from '../support/http';
 import { startTestServer, type TestServer } from '../support/server';
@@ -84,6 +86,9 @@ describe('review in the browser with two roles', () => {
     expect(await shown.textContent()).toBe(body);
     expect(await page.evaluate(() => (window as unknown as { __injected?: number }).__injected ?? null)).toBeNull();
     expect(await page.locator('[data-testid=thread] script, [data-testid=thread] img').count()).toBe(0);
+
+    await page.locator('[data-testid=detail-assignee]').selectOption('demo-designer');
+    await page.locator('[data-testid=thread] li:has-text("assigned to Suvi Laaksonen")').waitFor();
     await page.close();
   });
 
@@ -107,18 +112,19 @@ describe('review in the browser with two roles', () => {
   it('designer: received the mention and status e-mails in the mail catcher and sees the notifications', async () => {
     const mails = outboxFor('designer@larkspur.example');
     expect(mails.map((m) => m.subject)).toEqual(
-      expect.arrayContaining([expect.stringMatching(/mentioned you on finding/), expect.stringMatching(/to "Accepted with waiver"/)]),
+      expect.arrayContaining([expect.stringMatching(/mentioned you on finding/), expect.stringMatching(/assigned finding .* to you/), expect.stringMatching(/to "Accepted with waiver"/)]),
     );
     expect(mails.find((m) => /mentioned/.test(m.subject))?.body).toContain(`/analyses/${analysisId}`);
 
     const page = await signInPage('designer@larkspur.example');
     const badge = page.locator('[data-testid=unread-count]');
-    expect(Number(await badge.textContent())).toBeGreaterThanOrEqual(2);
+    expect(Number(await badge.textContent())).toBeGreaterThanOrEqual(3);
     await page.click('[data-testid=notification-bell]');
     await page.locator('[data-testid=notification-list] li').first().waitFor();
     const text = await page.textContent('[data-testid=notification-list]');
     expect(text).toMatch(/Rafael Odum mentioned you/);
     expect(text).toMatch(/Accepted with waiver/);
+    expect(text).toMatch(/assigned finding .* to you/);
     await screenshot(page, 'review-designer-notifications');
     await page.close();
   });
@@ -182,6 +188,62 @@ describe('review in the browser with two roles', () => {
     const after = await reviewer.post(`/api/v1/analyses/${analysisId}/findings/bulk`, { keys: [findingKey], status: 'open' });
     expect(after.status).toBe(409);
     expect(((await after.json()) as { error: { message: string } }).error.message).toMatch(/new analysis/);
+  });
+
+  it('a new revision fixes the 2 µm gaps: compare lists them resolved and carries the other waivers over with a note', async () => {
+    // revision 2 = the demo layout with every 2 µm comb gap widened to 3 µm about its centre (above the 2.5 µm rule)
+    const layout = await readLayoutBytes(demoLayoutGdsii());
+    const lines = ['# trenchant-polygons v1', '# unit=dbu dbu=0.001 name=kestrel3-r2', 'layer,datatype,polygon,x,y'];
+    let widened = 0;
+    for (const set of layout.layers) {
+      for (let i = 0; i < set.count; i++) {
+        const pts: [number, number][] = [];
+        for (let k = set.offsets[i] as number; k < (set.offsets[i + 1] as number); k++) pts.push([set.coords[2 * k] as number, set.coords[2 * k + 1] as number]);
+        const xs = pts.map((p) => p[0]);
+        const ys = pts.map((p) => p[1]);
+        const [x0, x1, y0, y1] = [Math.min(...xs), Math.max(...xs), Math.min(...ys), Math.max(...ys)];
+        if (set.layer === 1 && pts.length === 4 && x1 - x0 === 2000 && y1 - y0 === 120_000) {
+          pts.splice(0, 4, [x0 - 500, y0], [x1 + 500, y0], [x1 + 500, y1], [x0 - 500, y1]);
+          widened++;
+        }
+        for (const [x, y] of pts) lines.push(`${set.layer},${set.datatype},p${i},${x},${y}`);
+      }
+    }
+    expect(widened).toBe(96); // 4 quadrants × 24 fingers of the 2 µm bank (lib/jobs/demo-layout.ts)
+    const designer = await signIn(server.baseUrl, 'designer@larkspur.example', PASSWORD);
+    const form = new FormData();
+    form.append('file', new Blob([lines.join('\n') + '\n']), 'kestrel3-r2.csv');
+    form.append('name', 'Kestrel-3 DRIE');
+    const up = await designer.request('/api/v1/projects/demo-kestrel/layouts', { method: 'POST', body: form });
+    expect(up.status).toBe(201);
+    const rev = ((await up.json()) as { revision: { id: string; revision: number } }).revision;
+    expect(rev.revision).toBe(2);
+    const first = (await (await designer.get(`/api/v1/analyses/${analysisId}`)).json()) as { analysis: { settings: Record<string, unknown> } };
+    const started = await designer.post('/api/v1/projects/demo-kestrel/analyses', { revisionId: rev.id, modelId: 'deep-trench-continuous', settings: first.analysis.settings });
+    expect(started.status).toBe(202);
+    const second = ((await started.json()) as { analysis: { id: string } }).analysis.id;
+    await expect.poll(async () => ((await (await designer.get(`/api/v1/analyses/${second}`)).json()) as { analysis: { status: string } }).analysis.status, { timeout: 120_000, interval: 500 }).toBe('done');
+
+    const page = await signInPage('reviewer@larkspur.example');
+    await page.goto(`${server.baseUrl}/analyses/${second}/compare?with=${analysisId}`);
+    await page.locator('[data-testid=compare-counts]').waitFor();
+    const resolved = (await page.textContent('[data-testid=list-resolved]')) ?? '';
+    const added = (await page.textContent('[data-testid=list-new]')) ?? '';
+    const unchanged = (await page.textContent('[data-testid=list-unchanged]')) ?? '';
+    expect(Number(await page.textContent('[data-testid=count-resolved]'))).toBeGreaterThanOrEqual(96);
+    expect(resolved.match(/width-below-minimum/g)?.length).toBe(96);
+    expect(added).not.toMatch(/width-below-minimum/);
+    expect(unchanged).not.toMatch(/width-below-minimum/);
+    await page.click('[data-testid=carry-waivers]');
+    await page.locator('text=/waivers? carried over/').waitFor();
+    await screenshot(page, 'review-compare');
+
+    await page.goto(`${server.baseUrl}/analyses/${second}?view=flat&status=waived`);
+    await page.locator('[data-testid=finding-row]').first().click();
+    const note = page.locator('[data-testid=carried-note]');
+    await note.waitFor();
+    expect(await note.textContent()).toMatch(/carried over from Kestrel-3 DRIE r1/);
+    await page.close();
   });
 
   it('API: CSV export lists every stored finding with the waiver', async () => {
