@@ -151,7 +151,7 @@ export function FindingDetail({ analysisId, findingKey, data, onClose }: { analy
           }}
         >
           <label htmlFor="finding-comment" className="text-xs text-ink-700">
-            Comment (plain text; @{data.members[0]?.handle ?? 'name'} notifies a team member)
+            Comment (plain text; @ and a member&apos;s e-mail name or first name, e.g. @{data.members[0]?.handle ?? 'name'}, notifies them)
           </label>
           <textarea id="finding-comment" value={comment} onChange={(e) => setComment(e.target.value)} rows={3} maxLength={4000} className="mt-1 block w-full rounded-md border border-wafer-300 bg-white p-2 text-sm" data-testid="comment-input" />
           <div className="mt-2 flex items-center gap-2">

@@ -65,7 +65,15 @@ export function FindingsTable(props: Props) {
                     data-row-id={rowId}
                     data-testid="finding-group-row"
                     aria-selected={lit}
+                    tabIndex={0}
+                    aria-expanded={open}
                     onClick={() => {
+                      setExpanded(open ? null : x.id);
+                      props.onPick(x.first);
+                    }}
+                    onKeyDown={(e) => {
+                      if (e.key !== 'Enter' && e.key !== ' ') return;
+                      e.preventDefault();
                       setExpanded(open ? null : x.id);
                       props.onPick(x.first);
                     }}
@@ -106,7 +114,13 @@ export function FindingsTable(props: Props) {
                 data-row-id={rowId}
                 data-testid="finding-row"
                 aria-selected={lit}
+                tabIndex={0}
                 onClick={() => props.onPick(x)}
+                onKeyDown={(e) => {
+                  if (e.key !== 'Enter' && e.key !== ' ') return;
+                  e.preventDefault();
+                  props.onPick(x);
+                }}
                 className={`cursor-pointer border-t border-wafer-200 align-top hover:bg-wafer-50 ${lit || props.openKey === x.key ? 'bg-copper-300/20 ring-2 ring-copper-400 ring-inset' : ''}`}
               >
                 {props.canAct ? (

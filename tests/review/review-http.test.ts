@@ -70,6 +70,16 @@ describe('authorisation of the review routes', () => {
     });
   }
 
+  it('the demo analysis fits on one screen as groups with counts (issue 14)', async () => {
+    const page = (await (await clients.reviewer.get(`/api/v1/analyses/${analysisId}/findings`)).json()) as { view: string; total: number; findings: number; listed: number; capped: boolean; items: { count: number }[] };
+    expect(page.view).toBe('groups');
+    expect(page.total).toBeLessThanOrEqual(25); // one page of the table
+    expect(page.items.reduce((n, g) => n + g.count, 0)).toBe(page.listed);
+    expect(page.findings).toBe(page.listed);
+    expect(page.capped).toBe(false);
+    expect(Math.max(...page.items.map((g) => g.count))).toBeGreaterThan(1);
+  });
+
   it('anonymous callers get 401 on every review route', async () => {
     const anon = new TestClient(server.baseUrl);
     for (const r of routes) expect((await call(anon, r)).status, r.name).toBe(401);
