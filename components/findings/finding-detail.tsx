@@ -50,7 +50,7 @@ export function FindingDetail({ analysisId, findingKey, data, onClose }: { analy
   const members = data.members.map((m) => ({ id: m.id, name: m.name, email: `${m.handle}@` }));
 
   return (
-    <aside className="rounded-lg border border-wafer-300 bg-wafer-50 p-4 lg:sticky lg:top-4 lg:max-h-[calc(100vh-2rem)] lg:self-start lg:overflow-y-auto" data-testid="finding-detail" aria-label="Finding">
+    <aside className="order-first rounded-lg border border-wafer-300 bg-wafer-50 p-4 xl:sticky xl:top-4 xl:order-none xl:max-h-[calc(100vh-2rem)] xl:self-start xl:overflow-y-auto" data-testid="finding-detail" aria-label="Finding">
       <div className="flex items-start justify-between gap-3">
         <div>
           <p className="font-mono text-xs text-ink-500">{findingKey}</p>

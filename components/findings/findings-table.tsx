@@ -129,9 +129,11 @@ export function FindingsTable(props: Props) {
                   </td>
                 ) : null}
                 <td className={`py-2 pr-3 font-mono text-xs font-semibold ${SEVERITY_TONE[x.severity] ?? ''}`}>{x.severity}</td>
-                <td className="py-2 pr-3">
+                <td className="min-w-64 py-2 pr-3">
                   <span className="font-mono text-xs">{x.kind}</span>
-                  <span className="block max-w-md text-xs leading-snug text-ink-500">{x.message}</span>
+                  <span className="line-clamp-2 max-w-md text-xs leading-snug text-ink-500" title={x.message}>
+                    {x.message}
+                  </span>
                 </td>
                 <td className="py-2 pr-3 font-mono text-xs whitespace-nowrap">{x.atUm.map((v) => v.toFixed(1)).join(', ')}</td>
                 <td className="py-2 pr-3 font-mono text-xs whitespace-nowrap">{measuredText(x)}</td>
