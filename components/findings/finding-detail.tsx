@@ -66,6 +66,11 @@ export function FindingDetail({ analysisId, findingKey, data, onClose }: { analy
         </button>
       </div>
       {item.error ? <p className="text-xs text-fail">{item.error.message}</p> : null}
+      {item.data && !f ? (
+        <p className="mt-2 text-xs text-ink-700" data-testid="finding-not-listed">
+          This finding is not in the stored list (the list may be capped, or the link is from another analysis).
+        </p>
+      ) : null}
       {f ? <p className="mt-2 text-xs leading-relaxed text-ink-700">{f.message}</p> : null}
       {f?.waiver ? (
         <div className="mt-3 rounded-md border border-oxide-500/30 bg-white p-2 text-xs" data-testid="waiver">
