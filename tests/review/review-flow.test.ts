@@ -117,6 +117,19 @@ describe('review of one analysis', () => {
   });
 });
 
+describe('findingsCsv guards against spreadsheet formulas', () => {
+  it('prefixes text starting with =, +, - or @ with an apostrophe and leaves numbers alone', async () => {
+    const db = await reviewDb();
+    const id = await storeAnalysis(db, [narrow(100)], 1);
+    const key = loadFindings(db, id).items[0]?.key as string;
+    changeFindings(db, { analysisId: id, teamId: TEAM_ID, actor: reviewer, keys: [key], status: 'waived', reason: '=HYPERLINK("http://x.example","ok") is fine', link });
+    const rows = parse(findingsCsv(loadFindings(db, id).items, { analysisId: id, model: '@model' }), { columns: true }) as Record<string, string>[];
+    expect(rows[0]?.waiver_reason).toBe('\'=HYPERLINK("http://x.example","ok") is fine');
+    expect(rows[0]?.model).toBe("'@model");
+    expect(Number(rows[0]?.x_um)).toBeCloseTo(101, 9);
+  });
+});
+
 describe('queryFindings(items, query)', () => {
   let db: Db;
   let id: string;
