@@ -25,23 +25,31 @@ export function matchClass(f: { key: string; kind: string }): string {
 export function compareFindings(before: readonly ComparableFinding[], after: readonly ComparableFinding[], toleranceUm: number): CompareResult {
   if (!(toleranceUm >= 0) || !Number.isFinite(toleranceUm)) throw new RangeError(`toleranceUm must be a finite number ≥ 0, got ${toleranceUm}`);
   const cell = Math.max(toleranceUm, 1e-9);
-  const buckets = new Map<string, number[]>();
-  const bucketKey = (cls: string, ix: number, iy: number) => `${cls}\u0000${ix}\u0000${iy}`;
+  // one spatial hash per match class; cell (ix, iy) packed into one number (|ix|, |iy| < 2^26 cells is plenty)
+  const OFFSET = 2 ** 26;
+  const pack = (ix: number, iy: number) => (ix + OFFSET) * 2 ** 27 + (iy + OFFSET);
+  const classes = new Map<string, Map<number, number[]>>();
   before.forEach((f, i) => {
-    const k = bucketKey(matchClass(f), Math.floor(f.xUm / cell), Math.floor(f.yUm / cell));
-    const list = buckets.get(k);
+    const cls = matchClass(f);
+    let grid = classes.get(cls);
+    if (!grid) classes.set(cls, (grid = new Map()));
+    const k = pack(Math.floor(f.xUm / cell), Math.floor(f.yUm / cell));
+    const list = grid.get(k);
     if (list) list.push(i);
-    else buckets.set(k, [i]);
+    else grid.set(k, [i]);
   });
 
   const candidates: { b: number; a: number; d: number }[] = [];
   after.forEach((f, a) => {
-    const cls = matchClass(f);
+    const grid = classes.get(matchClass(f));
+    if (!grid) return;
     const ix = Math.floor(f.xUm / cell);
     const iy = Math.floor(f.yUm / cell);
     for (let dx = -1; dx <= 1; dx++) {
       for (let dy = -1; dy <= 1; dy++) {
-        for (const b of buckets.get(bucketKey(cls, ix + dx, iy + dy)) ?? []) {
+        const list = grid.get(pack(ix + dx, iy + dy));
+        if (!list) continue;
+        for (const b of list) {
           const g = before[b] as ComparableFinding;
           const d = Math.hypot(g.xUm - f.xUm, g.yUm - f.yUm);
           if (d <= toleranceUm) candidates.push({ b, a, d });

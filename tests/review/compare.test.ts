@@ -46,6 +46,15 @@ describe('compareFindings(before, after, tolerance)', () => {
     const r = compareFindings([{ key: 'a', kind: 'k1', xUm: 0, yUm: 0 }], [{ key: 'b', kind: 'k2', xUm: 0, yUm: 0 }], 1);
     expect(r.unchanged).toEqual([]);
   });
+  it('works at tolerance 0 (exact points) and on negative and far-apart coordinates', () => {
+    const pts = [
+      { key: 'a', kind: 'k', xUm: -1234.5, yUm: -0.25 },
+      { key: 'b', kind: 'k', xUm: 2.5e7, yUm: -3e6 },
+    ];
+    const r = compareFindings(pts, pts.map((p) => ({ ...p, key: `${p.key}2` })), 0);
+    expect(r.unchanged.map((u) => [u.beforeKey, u.afterKey])).toEqual([['a', 'a2'], ['b', 'b2']]);
+    expect(compareFindings(pts, [{ key: 'c', kind: 'k', xUm: -1234.5 + 1e-6, yUm: -0.25 }], 0).unchanged).toEqual([]);
+  });
   it('refuses a negative tolerance', () => {
     expect(() => compareFindings([], [], -1)).toThrow(/toleranceUm/);
   });
