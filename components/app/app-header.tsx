@@ -1,6 +1,7 @@
 import Link from 'next/link';
 import { signOutAction } from '@/app/(auth)/actions';
 import { Logo } from '@/components/ui/logo';
+import { NotificationBell } from '@/components/findings/notification-bell';
 import type { AuthUser } from '@/lib/auth/session';
 
 /** Top bar of the signed-in app: mark, main navigation, the user and sign-out. */
@@ -28,6 +29,7 @@ export function AppHeader({ user, teams }: { user: AuthUser; teams: { id: string
           </Link>
         </nav>
         <div className="ml-auto flex items-center gap-3 text-sm">
+          <NotificationBell userId={user.id} />
           <Link href="/account/tokens" className="text-ink-300 hover:text-white">
             API tokens
           </Link>

@@ -7,3 +7,4 @@ export * from './tokens';
 export * from './analyses';
 export * from './security';
 export * from './limits';
+export * from './reviews';

@@ -7,6 +7,7 @@ import { CORE_SCHEMAS, ERROR_RESPONSE_OBJECTS, SECURITY_SCHEMES } from './openap
 import { CORE_PATHS } from './openapi/paths-core';
 import { LIMITS_PATHS } from './openapi/paths-limits';
 import { PIPELINE_PATHS, PIPELINE_SCHEMAS } from './openapi/paths-pipeline';
+import { REVIEW_PATHS, REVIEW_SCHEMAS } from './openapi/paths-review';
 import { HTTP_METHODS, type HttpMethod, type OpenApiDocument, type OperationObject } from './openapi/types';
 
 export type { HttpMethod, OpenApiDocument, OperationObject } from './openapi/types';
@@ -20,6 +21,7 @@ const TAGS: OpenApiDocument['tags'] = [
   { name: 'Projects', description: 'Projects group the layouts and analyses of one product or test chip.' },
   { name: 'Layouts', description: 'Layout uploads (GDSII or CSV polygons); each upload is a new revision.' },
   { name: 'Analyses', description: 'Etch-loading analyses: settings, progress, results, maps and flags.' },
+  { name: 'Review', description: 'Findings review: status, waivers, threads, sign-off, compare, notifications.' },
   { name: 'Meta', description: 'This document.' },
 ];
 
@@ -40,10 +42,10 @@ function buildDocument(): OpenApiDocument {
     servers: [{ url: API_BASE_PATH, description: 'This Trenchant instance' }],
     tags: TAGS,
     security: [{ bearerToken: [] }, { sessionCookie: [] }],
-    paths: { ...CORE_PATHS, ...PIPELINE_PATHS, ...LIMITS_PATHS },
+    paths: { ...CORE_PATHS, ...PIPELINE_PATHS, ...LIMITS_PATHS, ...REVIEW_PATHS },
     components: {
       securitySchemes: SECURITY_SCHEMES,
-      schemas: { ...CORE_SCHEMAS, ...PIPELINE_SCHEMAS },
+      schemas: { ...CORE_SCHEMAS, ...PIPELINE_SCHEMAS, ...REVIEW_SCHEMAS },
       responses: ERROR_RESPONSE_OBJECTS,
     },
   };

@@ -28,6 +28,12 @@ export const PERMISSIONS = {
   'flag.waive': ['admin', 'reviewer'],
   /** sign off a layout revision */
   'revision.signoff': ['admin', 'reviewer'],
+  /** assign a finding, mark it open / needs layout change / fixed in a later revision */
+  'flag.triage': ['admin', 'process_engineer', 'designer', 'reviewer'],
+  /** mark a finding verified */
+  'flag.verify': ['admin', 'reviewer'],
+  /** read the team's audit log */
+  'audit.view': ['admin'],
 } as const satisfies Record<string, readonly TeamRole[]>;
 
 export type TeamAction = keyof typeof PERMISSIONS;
@@ -50,6 +56,9 @@ export const PERMISSION_LABEL: Record<TeamAction, string> = {
   'flag.comment': 'Comment on findings',
   'flag.waive': 'Waive findings (with a reason)',
   'revision.signoff': 'Sign off an analysis',
+  'flag.triage': 'Assign findings and set their status',
+  'flag.verify': 'Mark findings verified',
+  'audit.view': 'Read the audit log',
 };
 
 /** Human labels used in the UI. */

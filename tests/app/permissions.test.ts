@@ -19,6 +19,9 @@ const EXPECTED: Record<TeamAction, TeamRole[]> = {
   'model.publish': ['admin', 'process_engineer'],
   'flag.comment': ['admin', 'process_engineer', 'designer', 'reviewer'],
   'flag.waive': ['admin', 'reviewer'],
+  'flag.triage': ['admin', 'process_engineer', 'designer', 'reviewer'],
+  'flag.verify': ['admin', 'reviewer'],
+  'audit.view': ['admin'],
   'revision.signoff': ['admin', 'reviewer'],
 };
 

@@ -2,6 +2,7 @@ import type { Metadata } from 'next';
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { ProjectPipeline } from '@/components/pipeline/project-pipeline';
+import { ProjectSignoffs } from '@/components/findings/project-signoffs';
 import { Card, PageTitle } from '@/components/ui/card';
 import { RoleBadge } from '@/components/ui/role-badge';
 import { getProject } from '@/lib/data/projects';
@@ -30,6 +31,7 @@ export default async function ProjectPage({ params }: { params: Promise<{ projec
         </dl>
       </Card>
       <ProjectPipeline projectId={project.id} role={project.myRole} />
+      <ProjectSignoffs projectId={project.id} />
     </>
   );
 }

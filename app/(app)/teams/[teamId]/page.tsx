@@ -39,9 +39,16 @@ export default async function TeamPage({ params }: { params: Promise<{ teamId: s
         title={team.name}
         actions={
           can(team.myRole, 'outbox.view') ? (
-            <Link href={`/teams/${teamId}/outbox`} className={buttonClass('secondary')}>
-              Outbox
-            </Link>
+            <>
+              <Link href={`/teams/${teamId}/outbox`} className={buttonClass('secondary')}>
+                Outbox
+              </Link>
+              {can(team.myRole, 'audit.view') ? (
+                <Link href={`/teams/${teamId}/audit`} className={buttonClass('secondary')}>
+                  Audit log
+                </Link>
+              ) : null}
+            </>
           ) : null
         }
       />

@@ -1,0 +1,50 @@
+/** A user's in-app notifications and e-mail settings. */
+import { and, desc, eq, inArray, isNull } from 'drizzle-orm';
+import { z } from 'zod';
+import type { Db } from '@/db/client';
+import { analyses, notificationPrefs, notifications } from '@/db/schema';
+import { unreadCount } from './notify';
+
+export const readBody = z.union([z.object({ ids: z.array(z.string().min(1).max(64)).min(1).max(500) }), z.object({ all: z.literal(true) })]);
+export const prefsBody = z.object({ emailAssignment: z.boolean(), emailMention: z.boolean(), emailStatus: z.boolean() });
+export type NotificationPrefs = z.infer<typeof prefsBody>;
+
+export function listNotifications(db: Db, userId: string, limit = 100) {
+  const rows = db
+    .select({ n: notifications, projectId: analyses.projectId })
+    .from(notifications)
+    .leftJoin(analyses, eq(analyses.id, notifications.analysisId))
+    .where(eq(notifications.userId, userId))
+    .orderBy(desc(notifications.at))
+    .limit(limit)
+    .all();
+  return {
+    unread: unreadCount(db, userId),
+    items: rows.map(({ n }) => ({
+      id: n.id,
+      kind: n.kind,
+      at: n.at.toISOString(),
+      actorName: n.actorName,
+      title: n.title,
+      body: n.body,
+      read: n.readAt !== null,
+      href: n.analysisId ? `/analyses/${n.analysisId}${n.flagKey ? `?finding=${encodeURIComponent(n.flagKey)}` : ''}` : null,
+    })),
+  };
+}
+
+export function markRead(db: Db, userId: string, body: z.infer<typeof readBody>): number {
+  const where = 'ids' in body ? and(eq(notifications.userId, userId), isNull(notifications.readAt), inArray(notifications.id, body.ids)) : and(eq(notifications.userId, userId), isNull(notifications.readAt));
+  return db.update(notifications).set({ readAt: new Date() }).where(where).run().changes;
+}
+
+export function getPrefs(db: Db, userId: string): NotificationPrefs {
+  const p = db.select().from(notificationPrefs).where(eq(notificationPrefs.userId, userId)).get();
+  return { emailAssignment: p?.emailAssignment ?? true, emailMention: p?.emailMention ?? true, emailStatus: p?.emailStatus ?? true };
+}
+
+export function setPrefs(db: Db, userId: string, prefs: NotificationPrefs): NotificationPrefs {
+  const values = { ...prefs, updatedAt: new Date() };
+  db.insert(notificationPrefs).values({ userId, ...values }).onConflictDoUpdate({ target: notificationPrefs.userId, set: values }).run();
+  return getPrefs(db, userId);
+}
