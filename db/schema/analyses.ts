@@ -99,6 +99,10 @@ export const analyses = sqliteTable(
     summary: text('summary', { mode: 'json' }).$type<Record<string, unknown>>(),
     /** Relative to the data folder; null until the job ran. */
     resultDir: text('result_dir'),
+    /** The published model version used (process_model_versions.id); null for built-in or uploaded models. */
+    modelVersionId: text('model_version_id'),
+    /** The saved rule set the settings were taken from (rule_sets.id), if any; the settings themselves are stored above. */
+    ruleSetId: text('rule_set_id'),
   },
   (t) => [
     index('analyses_project_idx').on(t.projectId, t.createdAt),

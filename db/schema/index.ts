@@ -5,3 +5,4 @@ export * from './audit';
 export * from './mail';
 export * from './tokens';
 export * from './analyses';
+export * from './models';
