@@ -6,6 +6,7 @@
 import { CORE_SCHEMAS, ERROR_RESPONSE_OBJECTS, SECURITY_SCHEMES } from './openapi/components';
 import { CORE_PATHS } from './openapi/paths-core';
 import { PIPELINE_PATHS, PIPELINE_SCHEMAS } from './openapi/paths-pipeline';
+import { MODEL_PATHS, MODEL_SCHEMAS } from './openapi/paths-models';
 import { HTTP_METHODS, type HttpMethod, type OpenApiDocument, type OperationObject } from './openapi/types';
 
 export type { HttpMethod, OpenApiDocument, OperationObject } from './openapi/types';
@@ -19,6 +20,7 @@ const TAGS: OpenApiDocument['tags'] = [
   { name: 'Projects', description: 'Projects group the layouts and analyses of one product or test chip.' },
   { name: 'Layouts', description: 'Layout uploads (GDSII or CSV polygons); each upload is a new revision.' },
   { name: 'Analyses', description: 'Etch-loading analyses: settings, progress, results, maps and flags.' },
+  { name: 'Models', description: 'Process models (versions, calibration, width rules) and saved rule sets.' },
   { name: 'Meta', description: 'This document.' },
 ];
 
@@ -39,10 +41,10 @@ function buildDocument(): OpenApiDocument {
     servers: [{ url: API_BASE_PATH, description: 'This Trenchant instance' }],
     tags: TAGS,
     security: [{ bearerToken: [] }, { sessionCookie: [] }],
-    paths: { ...CORE_PATHS, ...PIPELINE_PATHS },
+    paths: { ...CORE_PATHS, ...PIPELINE_PATHS, ...MODEL_PATHS },
     components: {
       securitySchemes: SECURITY_SCHEMES,
-      schemas: { ...CORE_SCHEMAS, ...PIPELINE_SCHEMAS },
+      schemas: { ...CORE_SCHEMAS, ...PIPELINE_SCHEMAS, ...MODEL_SCHEMAS },
       responses: ERROR_RESPONSE_OBJECTS,
     },
   };
