@@ -54,4 +54,6 @@ CREATE TABLE `rule_sets` (
 CREATE UNIQUE INDEX `rule_sets_team_name_idx` ON `rule_sets` (`team_id`,`name`);--> statement-breakpoint
 CREATE INDEX `rule_sets_team_idx` ON `rule_sets` (`team_id`);--> statement-breakpoint
 ALTER TABLE `analyses` ADD `model_version_id` text;--> statement-breakpoint
-ALTER TABLE `analyses` ADD `rule_set_id` text;
+ALTER TABLE `analyses` ADD `rule_set_id` text;--> statement-breakpoint
+ALTER TABLE `analysis_features` ADD `depth_sigma_um` real;--> statement-breakpoint
+ALTER TABLE `analysis_flags` ADD `uncertain` integer;

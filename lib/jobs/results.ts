@@ -108,6 +108,7 @@ export function listFlags(db: Db, analysisId: string, q: z.infer<typeof flagsQue
       message: f.message,
       featureId: f.featureId,
       window: f.windowUm !== null && f.stepUm !== null ? { windowUm: f.windowUm, stepUm: f.stepUm } : null,
+      uncertain: f.uncertain,
     })),
   };
 }

@@ -26,11 +26,11 @@ export async function saveResultRows(db: Db, analysisId: string, result: OkResul
     sqlite.prepare('DELETE FROM analysis_maps WHERE analysis_id = ?').run(analysisId);
     const flag = sqlite.prepare(
       `INSERT INTO analysis_flags (id, analysis_id, flag_key, rank, kind, severity, x0_um, y0_um, x1_um, y1_um, x_um, y_um,
-        measured, limit_value, unit, message, feature_id, window_um, step_um) VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)`,
+        measured, limit_value, unit, message, feature_id, window_um, step_um, uncertain) VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)`,
     );
     result.flags.forEach((f, rank) => {
       const [x0, y0, x1, y1] = f.bboxUm;
-      flag.run(randomUUID(), analysisId, f.id, rank, f.kind, f.severity, x0, y0, x1, y1, f.xUm, f.yUm, num(f.measured), num(f.limit), f.unit, f.message, f.featureId ?? null, f.window?.windowUm ?? null, f.window?.stepUm ?? null);
+      flag.run(randomUUID(), analysisId, f.id, rank, f.kind, f.severity, x0, y0, x1, y1, f.xUm, f.yUm, num(f.measured), num(f.limit), f.unit, f.message, f.featureId ?? null, f.window?.windowUm ?? null, f.window?.stepUm ?? null, f.uncertain === undefined ? null : f.uncertain ? 1 : 0);
     });
     const map = sqlite.prepare(
       'INSERT INTO analysis_maps (analysis_id, name, kind, unit, file, x0_um, y0_um, pixel_um, nx, ny, meta, bytes) VALUES (?,?,?,?,?,?,?,?,?,?,?,?)',
@@ -42,8 +42,8 @@ export async function saveResultRows(db: Db, analysisId: string, result: OkResul
 
   const feature = sqlite.prepare(
     `INSERT INTO analysis_features (analysis_id, feature_id, shape, model_kind, x_um, y_um, x0_um, y0_um, x1_um, y1_um, area_um2,
-      width_um, length_um, effective_density, depth_um, aspect_ratio, margin_um, over_etch_um, reaches_target, warnings)
-      VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)`,
+      width_um, length_um, effective_density, depth_um, aspect_ratio, margin_um, over_etch_um, reaches_target, warnings, depth_sigma_um)
+      VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)`,
   );
   const features = result.features;
   const insertChunk = sqlite.transaction((from: number, to: number) => {
@@ -55,6 +55,7 @@ export async function saveResultRows(db: Db, analysisId: string, result: OkResul
         analysisId, r.id, r.shape, r.modelKind, r.centroidUm[0], r.centroidUm[1], x0, y0, x1, y1, num(r.areaUm2), num(r.widthUm), num(r.lengthUm),
         num(r.effectiveDensity), num(r.depthUm), num(r.aspectRatio), num(r.marginUm), num(r.overEtchUm), r.reachesTarget ? 1 : 0,
         [...r.warnings, ...r.excursions.map((e) => `${e.quantity} outside the calibrated range`)].join('; '),
+        r.depthSigmaUm ?? null,
       );
     }
   });
