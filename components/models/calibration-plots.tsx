@@ -140,7 +140,7 @@ export function CalibrationPlots({ model, rows }: { model: ProcessModel; rows: C
         <ChartCard testId="plot-arde" title="ARDE curve" caption="Rate at the bottom relative to a wide opening, against aspect ratio (loading excluded); shaded: calibrated AR range.">
           <ComposedChart margin={{ top: 8, right: 12, bottom: 18, left: 4 }}>
             <CartesianGrid stroke="#e6e2d9" />
-            <XAxis type="number" dataKey="x" domain={[0, 'dataMax']} tick={axisStyle} label={{ value: 'aspect ratio (depth / width)', position: 'insideBottom', offset: -10, style: axisStyle }} />
+            <XAxis type="number" dataKey="x" domain={[0, 'dataMax']} tick={axisStyle} tickFormatter={(v: number) => fmt(v, 2)} label={{ value: 'aspect ratio (depth / width)', position: 'insideBottom', offset: -10, style: axisStyle }} />
             <YAxis type="number" domain={[0, 1]} tick={axisStyle} label={{ value: 'R(AR) / R(0)', angle: -90, position: 'insideLeft', style: axisStyle }} />
             <Tooltip formatter={(v: unknown) => (Array.isArray(v) ? v.map((x) => fmt(Number(x))).join(' – ') : fmt(Number(v)))} labelFormatter={(v: unknown) => `AR ${fmt(Number(v))}`} />
             <Legend verticalAlign="top" height={24} wrapperStyle={{ fontSize: 11 }} />

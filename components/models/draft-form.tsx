@@ -91,7 +91,7 @@ export function DraftForm({ versionId, document }: { versionId: string; document
     const value = values[f.path] ?? '';
     const set = (v: string) => setValues({ ...values, [f.path]: v });
     return (
-      <div key={f.path} className="grid gap-x-4 gap-y-1 border-b border-wafer-100 py-2.5 sm:grid-cols-[14rem_11rem_1fr]">
+      <div key={f.path} className={`grid gap-x-4 gap-y-1 border-b border-wafer-100 py-2.5 ${f.type === 'text' ? 'sm:grid-cols-[14rem_1fr]' : 'sm:grid-cols-[14rem_14rem_1fr]'}`}>
         <label htmlFor={id} className="text-sm font-medium text-ink-800">
           {f.label}
           {f.required ? <span className="text-copper-600"> *</span> : null}
@@ -112,7 +112,7 @@ export function DraftForm({ versionId, document }: { versionId: string; document
           )}
           <span className="w-12 shrink-0 text-xs text-ink-500">{f.unit}</span>
         </div>
-        <div id={`${id}-help`} className="text-xs text-ink-500">
+        <div id={`${id}-help`} className={`text-xs text-ink-500 ${f.type === 'text' ? 'sm:col-start-2' : ''}`}>
           {f.help}
           {errs.length ? (
             <ul className="mt-0.5 text-fail" data-testid={`error-${f.path}`}>

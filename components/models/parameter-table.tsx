@@ -3,12 +3,19 @@ import { getPath, MODEL_BLOCKS, MODEL_PARAMETERS } from '@/lib/models/parameters
 
 /** Read-only list of every parameter of a version, with unit and explanation (blocks left out when absent). */
 export function ParameterTable({ document }: { document: ProcessModel }) {
-  const rows = MODEL_PARAMETERS.filter((f) => !f.block || (document as Record<string, unknown>)[f.block] !== undefined);
+  // Name and description are shown in the page header, not as parameters.
+  const rows = MODEL_PARAMETERS.filter((f) => f.path !== 'name' && f.path !== 'description' && (!f.block || (document as Record<string, unknown>)[f.block] !== undefined));
   const fitted = document.calibration?.parameters ?? {};
   const fittedPath: Record<string, string> = { openRateUmPerMin: 'openRateUmPerMin', reactionProbability: 'reactionProbability', loadingCoefficient: 'loading.coefficient' };
   const se = Object.fromEntries(Object.entries(fitted).map(([k, v]) => [fittedPath[k] ?? k, v.standardError]));
   return (
-    <table className="w-full text-sm" data-testid="parameter-table">
+    <table className="w-full table-fixed text-sm" data-testid="parameter-table">
+      <colgroup>
+        <col className="w-56" />
+        <col className="w-36" />
+        <col className="w-20" />
+        <col />
+      </colgroup>
       <thead>
         <tr className="border-b border-wafer-200 text-left text-xs text-ink-500">
           <th className="py-1.5 pr-3 font-medium">Parameter</th>
@@ -28,7 +35,7 @@ export function ParameterTable({ document }: { document: ProcessModel }) {
                 {f.block ? <span className="block text-[10px] text-ink-500">{MODEL_BLOCKS[f.block].label}</span> : null}
               </td>
               <td className="py-1.5 pr-3 text-right font-mono whitespace-nowrap">
-                {v === undefined ? <span className="text-ink-300">—</span> : String(v)}
+                {v === undefined ? <span className="text-ink-300">—</span> : typeof v === 'number' ? String(Number(v.toPrecision(6))) : String(v)}
                 {typeof s === 'number' ? <span className="block text-[11px] text-ink-500">± {Number(s.toPrecision(2))} (fit)</span> : null}
               </td>
               <td className="py-1.5 pr-3 text-xs text-ink-500">{f.unit}</td>

@@ -1,7 +1,7 @@
 /**
  * Parameter diff between two model documents: every leaf that differs, labelled from MODEL_PARAMETERS where it is
- * a known parameter. The calibration record is compared by its summary (date, ranges, R², fitted values), not by
- * its covariance matrix, which changes whenever the data does.
+ * a known parameter. The calibration record is compared by its summary (date, source, ranges, R², point count),
+ * not by its covariance, residual statistics or per-parameter copies of the fitted values.
  */
 import { fieldOf, MODEL_PARAMETERS } from './parameters';
 
@@ -16,8 +16,11 @@ export type ParameterChange = {
 
 type Leaf = string | number | boolean | null;
 
+// Calibration internals that change with every fit; the fitted values themselves are compared as parameters.
+const SKIPPED = new Set(['calibration.covariance', 'calibration.parameters', 'calibration.rmsResidualUm', 'calibration.residualStandardErrorUm']);
+
 function leaves(value: unknown, prefix: string, out: Map<string, Leaf>): void {
-  if (prefix === 'calibration.covariance') return;
+  if (SKIPPED.has(prefix)) return;
   if (Array.isArray(value)) {
     out.set(prefix, value.every((v) => typeof v !== 'object' || v === null) ? value.map(String).join(' – ') : JSON.stringify(value));
     return;

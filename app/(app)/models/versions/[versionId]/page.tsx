@@ -72,7 +72,8 @@ export default async function ModelVersionPage({ params, searchParams }: { param
         </span>
         {!editable ? <span className="text-xs">Editing needs the {rolesAllowedText('model.publish')} role.</span> : null}
       </div>
-      {version.note ? <p className="text-sm text-ink-700">{version.note}</p> : null}
+      {version.document.description ? <p className="max-w-4xl text-sm text-ink-700">{version.document.description}</p> : null}
+      {version.note ? <p className="max-w-4xl text-sm text-ink-500">Note: {version.note}</p> : null}
 
       <Section title={isDraft && editable ? 'Parameters (draft)' : 'Parameters'}>
         {isDraft && editable ? <DraftForm versionId={version.id} document={version.document} /> : <ParameterTable document={version.document} />}
