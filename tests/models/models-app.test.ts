@@ -112,7 +112,8 @@ describe('calibration in the browser (issue 11)', () => {
     await p.getByTestId('save-fit').click();
     await p.getByTestId('form-message').filter({ hasText: 'saved in this draft' }).waitFor();
     await p.getByTestId('publish-version').click();
-    await p.getByTestId('version-status').filter({ hasText: 'Published' }).waitFor();
+    await p.getByTestId('version-status').filter({ hasText: /Published — read only/ }).waitFor();
+    await p.getByTestId('parameter-table').waitFor();
     expect(await p.getByTestId('parameter-table').count()).toBe(1);
     publishedId = p.url().split('/').pop() ?? '';
     await screenshot(p, 'models-published');
@@ -134,7 +135,7 @@ describe('calibration in the browser (issue 11)', () => {
     const select = p.locator('#model');
     // Trench project: a continuous trench model is preselected, and the demo rule set turns on density checks.
     expect(await select.locator('option:checked').textContent()).toMatch(/Demo deep trench, continuous etch v3/);
-    expect(await p.getByTestId('model-default-reason').textContent()).toMatch(/trench/);
+    expect(await p.getByTestId('model-default-reason').textContent()).toMatch(/used last|trench project/);
     expect(await p.getByTestId('rule-set-select').locator('option:checked').textContent()).toMatch(/Larkspur deep-etch rules \(demo\)/);
     expect(await p.locator('input[name="maxDensity"]').inputValue()).toBe('60%');
     await select.selectOption(publishedId);
