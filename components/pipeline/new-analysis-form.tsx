@@ -161,14 +161,15 @@ function Form({ projectId, revisions, initialRevisionId, models, defaultModelId,
   };
 
   const err = (key: string) => Object.entries(errors).filter(([k]) => k === key || k.startsWith(`${key}.`)).flatMap(([, v]) => v);
-  const limitField = (key: string, label: string, path: string, hint: string, fromRules = true) => (
+  // `blank` says what an empty field means when it comes from the rule set (not checked, or the model's value).
+  const limitField = (key: string, label: string, path: string, hint: string, fromRules = true, blank = 'not checked') => (
     <Field
       label={label}
       name={key}
       value={f[key] ?? ''}
       onChange={(e) => setF({ ...f, [key]: e.target.value })}
       errors={err(path).length ? err(path) : undefined}
-      hint={locked && fromRules ? `from the rule set${f[key] ? '' : ' — not checked'}` : hint}
+      hint={locked && fromRules ? `from the rule set${f[key] ? '' : ` — ${blank}`}` : hint}
       inputMode="decimal"
       readOnly={locked && fromRules}
     />
@@ -176,7 +177,7 @@ function Form({ projectId, revisions, initialRevisionId, models, defaultModelId,
 
   return (
     <form
-      className="space-y-6"
+      className="space-y-6 [&_input[readonly]]:bg-wafer-100 [&_input[readonly]]:text-ink-700"
       data-testid="new-analysis-form"
       onSubmit={(e) => {
         e.preventDefault();
@@ -283,7 +284,7 @@ function Form({ projectId, revisions, initialRevisionId, models, defaultModelId,
 
       <div className="grid gap-4 sm:grid-cols-2">
         <Field label="Density windows (window/step, µm)" name="windows" value={windows} onChange={(e) => setWindows(e.target.value)} errors={err('settings.densityWindows').length ? err('settings.densityWindows') : undefined} hint={locked ? 'from the rule set' : "e.g. 100/50 700/70 — use your rule manual's windows"} readOnly={locked} />
-        {limitField('kernelUm', 'Kernel length L (µm)', 'settings.kernel', model ? `blank = the model's ${model.loadingLengthUm} µm` : 'blank = the model’s loading length')}
+        {limitField('kernelUm', 'Kernel length L (µm)', 'settings.kernel', model ? `blank = the model's ${model.loadingLengthUm} µm` : 'blank = the model’s loading length', true, model ? `the model's ${model.loadingLengthUm} µm` : "the model's loading length")}
       </div>
 
       <fieldset className="space-y-3">
@@ -296,7 +297,7 @@ function Form({ projectId, revisions, initialRevisionId, models, defaultModelId,
           {limitField('minDensity', 'Min window density', 'settings.limits.minDensity', 'e.g. 20%')}
           {limitField('maxDensity', 'Max window density', 'settings.limits.maxDensity', 'e.g. 80%')}
           {limitField('maxGradient', 'Max density step', 'settings.limits.maxGradient', 'between neighbouring windows')}
-          {limitField('maxAr', 'Max aspect ratio', 'settings.limits.maxAspectRatio', model ? `model: ${model.maxAspectRatio}` : '')}
+          {limitField('maxAr', 'Max aspect ratio', 'settings.limits.maxAspectRatio', model ? `model: ${model.maxAspectRatio}` : '', true, model ? `the model's ${model.maxAspectRatio}` : "the model's")}
           {limitField('targetUm', 'Target depth (µm)', 'settings.limits.targetDepthUm', model ? `model: ${model.targetDepthUm} µm` : '', false)}
           {limitField('toleranceUm', 'Tolerance (µm)', 'settings.limits.toleranceUm', model ? `model: ±${model.toleranceUm} µm` : '', false)}
           {limitField('stopBudgetUm', 'Stop-layer over-etch budget (µm)', 'settings.limits.stopOverEtchBudgetUm', 'blank = not checked')}

@@ -73,6 +73,30 @@ describe('model versions over HTTP', () => {
   });
 });
 
+describe('who may keep rule sets and models (model.publish, lib/auth/permissions.ts)', () => {
+  it('admin and process engineer create rule sets; designer and reviewer get 403; anonymous 401; other teams see 404 for a version', async () => {
+    const users = { admin: 'admin@larkspur.example', process_engineer: 'process@larkspur.example', designer: 'designer@larkspur.example', reviewer: 'reviewer@larkspur.example' } as const;
+    let n = 0;
+    for (const [role, email] of Object.entries(users)) {
+      const c = await signIn(server.baseUrl, email, DEMO_PASSWORD_DEFAULT);
+      const res = await c.post(`/api/v1/teams/${DEMO_TEAM.id}/rule-sets`, { name: `Matrix ${++n}`, rules: { limits: { maxDensity: 0.5 } } });
+      expect(res.status, role).toBe(role === 'admin' || role === 'process_engineer' ? 201 : 403);
+      expect((await c.get(`/api/v1/teams/${DEMO_TEAM.id}/rule-sets`)).status, role).toBe(200);
+    }
+    const anonymous = await fetch(`${server.baseUrl}/api/v1/teams/${DEMO_TEAM.id}/rule-sets`);
+    expect(anonymous.status).toBe(401);
+    const outsider = new (pe.constructor as new (b: string) => TestClient)(server.baseUrl);
+    await outsider.post('/api/v1/auth/sign-up', { name: 'Outsider', email: 'outsider-models@example.com', password: 'outsider-password', teamName: 'Elsewhere Fab' });
+    const v2 = (await trenchVersions(pe))[0]!.id;
+    expect((await outsider.get(`/api/v1/model-versions/${v2}`)).status).toBe(404);
+    expect((await outsider.get(`/api/v1/model-versions/${v2}/width-rules`)).status).toBe(404);
+    // A bad rule is refused with the field named.
+    const bad = await pe.post(`/api/v1/teams/${DEMO_TEAM.id}/rule-sets`, { name: 'Bad', rules: { densityWindows: [{ windowUm: 50, stepUm: 100 }] } });
+    expect(bad.status).toBe(400);
+    expect(Object.keys(((await bad.json()) as { error: { fieldErrors: Record<string, string[]> } }).error.fieldErrors)).toEqual(['rules.densityWindows.0.stepUm']);
+  });
+});
+
 describe('calibration in the browser (issue 11)', () => {
   async function page(email: string): Promise<Page> {
     const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
