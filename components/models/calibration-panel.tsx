@@ -209,7 +209,7 @@ export function CalibrationPanel({ versionId, document, stored, editable }: { ve
                   <th className="py-1.5 font-medium">Parameter</th>
                   <th className="py-1.5 text-right font-medium">Fitted value</th>
                   <th className="py-1.5 text-right font-medium">Standard error</th>
-                  <th className="py-1.5 text-right font-medium">Before</th>
+                  {state.kind === 'done' ? <th className="py-1.5 text-right font-medium">Before</th> : null}
                 </tr>
               </thead>
               <tbody>
@@ -223,7 +223,7 @@ export function CalibrationPanel({ versionId, document, stored, editable }: { ve
                       </td>
                       <td className="py-1.5 text-right font-mono">{fmt(p?.value)}</td>
                       <td className="py-1.5 text-right font-mono">{p?.standardError === null || p?.standardError === undefined ? (p?.atBound ? 'at bound' : '—') : `± ${fmt(p.standardError, 2)}`}</td>
-                      <td className="py-1.5 text-right font-mono text-ink-500">{state.kind === 'done' ? fmt(before) : ''}</td>
+                      {state.kind === 'done' ? <td className="py-1.5 text-right font-mono text-ink-500">{fmt(before)}</td> : null}
                     </tr>
                   );
                 })}

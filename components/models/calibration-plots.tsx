@@ -97,8 +97,8 @@ export function CalibrationPlots({ model, rows }: { model: ProcessModel; rows: C
         <ChartCard testId="plot-depth-width" title="Depth against width" caption={`Predicted (lines) and measured (points) at ${fmt(time)} min, density ${fmt(density)}; log width axis.`}>
           <ComposedChart margin={{ top: 8, right: 12, bottom: 18, left: 4 }}>
             <CartesianGrid stroke="#e6e2d9" />
-            <XAxis type="number" dataKey="x" scale="log" domain={[wMin, wMax]} allowDataOverflow tick={axisStyle} tickFormatter={(v: number) => fmt(v, 2)} label={{ value: 'width (µm)', position: 'insideBottom', offset: -10, style: axisStyle }} />
-            <YAxis type="number" tick={axisStyle} label={{ value: 'depth (µm)', angle: -90, position: 'insideLeft', style: axisStyle }} />
+            <XAxis type="number" dataKey="x" scale="log" domain={[wMin, wMax]} allowDataOverflow ticks={widths} interval={0} tick={axisStyle} tickFormatter={(v: number) => fmt(v, 2)} label={{ value: 'width (µm)', position: 'insideBottom', offset: -10, style: axisStyle }} />
+            <YAxis type="number" dataKey="y" tick={axisStyle} label={{ value: 'depth (µm)', angle: -90, position: 'insideLeft', style: axisStyle }} />
             <Tooltip formatter={(v: unknown) => (Array.isArray(v) ? v.map((x) => fmt(Number(x))).join(' – ') : fmt(Number(v)))} labelFormatter={(v: unknown) => `width ${fmt(Number(v))} µm`} />
             <Legend verticalAlign="top" height={24} wrapperStyle={{ fontSize: 11 }} />
             {byWidth.flatMap((c) => curveSeries(c.kind, c.points, `${c.kind} model`))}
@@ -112,7 +112,7 @@ export function CalibrationPlots({ model, rows }: { model: ProcessModel; rows: C
             <ComposedChart margin={{ top: 8, right: 12, bottom: 18, left: 4 }}>
               <CartesianGrid stroke="#e6e2d9" />
               <XAxis type="number" dataKey="x" domain={[0, 1]} tick={axisStyle} label={{ value: 'effective density', position: 'insideBottom', offset: -10, style: axisStyle }} />
-              <YAxis type="number" tick={axisStyle} label={{ value: 'depth (µm)', angle: -90, position: 'insideLeft', style: axisStyle }} />
+              <YAxis type="number" dataKey="y" tick={axisStyle} label={{ value: 'depth (µm)', angle: -90, position: 'insideLeft', style: axisStyle }} />
               <Tooltip formatter={(v: unknown) => (Array.isArray(v) ? v.map((x) => fmt(Number(x))).join(' – ') : fmt(Number(v)))} labelFormatter={(v: unknown) => `density ${fmt(Number(v))}`} />
               <Legend verticalAlign="top" height={24} wrapperStyle={{ fontSize: 11 }} />
               {byDensity.flatMap((c) => curveSeries(c.kind, c.points, `${c.kind} model`))}
@@ -125,7 +125,7 @@ export function CalibrationPlots({ model, rows }: { model: ProcessModel; rows: C
         <ChartCard testId="plot-residuals" title="Residuals" caption={`Measured − predicted for every row; dashed lines at ±2 s (s = ${fmt(s)} µm).`}>
           <ComposedChart margin={{ top: 8, right: 12, bottom: 18, left: 4 }}>
             <CartesianGrid stroke="#e6e2d9" />
-            <XAxis type="number" dataKey="x" scale="log" domain={[wMin, wMax]} allowDataOverflow tick={axisStyle} tickFormatter={(v: number) => fmt(v, 2)} label={{ value: 'width (µm)', position: 'insideBottom', offset: -10, style: axisStyle }} />
+            <XAxis type="number" dataKey="x" scale="log" domain={[wMin, wMax]} allowDataOverflow ticks={widths} interval={0} tick={axisStyle} tickFormatter={(v: number) => fmt(v, 2)} label={{ value: 'width (µm)', position: 'insideBottom', offset: -10, style: axisStyle }} />
             <YAxis type="number" dataKey="y" tick={axisStyle} label={{ value: 'residual (µm)', angle: -90, position: 'insideLeft', style: axisStyle }} />
             <Tooltip formatter={(v: unknown) => fmt(Number(v))} />
             <Legend verticalAlign="top" height={24} wrapperStyle={{ fontSize: 11 }} />
