@@ -22,6 +22,7 @@ export type VersionSummary = {
   note: string;
   basedOnVersionId: string | null;
   createdAt: string;
+  updatedAt: string;
   createdByName: string | null;
   publishedAt: string | null;
   calibrationDate: string | null;
@@ -66,6 +67,7 @@ function summarise(row: ProcessModelVersionRow, createdByName: string | null): V
     note: row.note,
     basedOnVersionId: row.basedOnVersionId,
     createdAt: row.createdAt.toISOString(),
+    updatedAt: row.updatedAt.toISOString(),
     createdByName,
     publishedAt: iso(row.publishedAt),
     calibrationDate: typeof cal?.date === 'string' ? cal.date : null,

@@ -123,6 +123,11 @@ describe('calibration in the browser (issue 11)', () => {
     expect(await errors.locator('li').allTextContents()).toEqual(['line 3: kind must be trench or hole, got "slot"', 'line 4: width_um must be a number > 0, got "-1"']);
     expect(await p.getByTestId('run-fit').count()).toBe(0);
 
+    // One width only: the fit is refused with what is missing.
+    await p.getByTestId('calibration-file').setInputFiles({ name: 'one-width.csv', mimeType: 'text/csv', buffer: Buffer.from('width_um,kind,density,time_min,depth_um\n2,trench,0.3,10,20\n2,trench,0.3,12,23\n2,trench,0.3,15,27\n') });
+    await p.getByTestId('run-fit').click();
+    expect(await p.getByTestId('fit-refused').textContent()).toBe('Cannot calibrate: need at least two distinct widths to separate open rate from reaction probability.');
+
     await p.getByTestId('calibration-file').setInputFiles(path.join(PROJECT_ROOT, 'samples', 'calibration', 'demo-trench-lag.csv'));
     await p.getByTestId('run-fit').click();
     await p.getByTestId('save-fit').waitFor({ timeout: 60_000 });
@@ -135,6 +140,9 @@ describe('calibration in the browser (issue 11)', () => {
     await screenshot(p, 'models-calibration-fit');
     await p.getByTestId('save-fit').click();
     await p.getByTestId('form-message').filter({ hasText: 'saved in this draft' }).waitFor();
+    // The draft form now holds the fitted open rate (not the value it showed before the fit).
+    await p.waitForFunction(() => (document.querySelector('#param-openRateUmPerMin') as HTMLInputElement | null)?.value !== '3.6');
+    expect(Number(await p.locator('#param-openRateUmPerMin').inputValue())).toBeCloseTo(3.1, 0);
     await p.getByTestId('publish-version').click();
     await p.getByTestId('version-status').filter({ hasText: /Published — read only/ }).waitFor();
     await p.getByTestId('parameter-table').waitFor();

@@ -17,6 +17,7 @@ const versionSummary = {
   note: str(),
   basedOnVersionId: nullable(str('The version this one was drafted from')),
   createdAt: isoTime(),
+  updatedAt: isoTime(),
   createdByName: nullable(str()),
   publishedAt: nullable(isoTime()),
   calibrationDate: nullable(str('YYYY-MM-DD')),

@@ -76,7 +76,7 @@ export default async function ModelVersionPage({ params, searchParams }: { param
       {version.note ? <p className="max-w-4xl text-sm text-ink-500">Note: {version.note}</p> : null}
 
       <Section title={isDraft && editable ? 'Parameters (draft)' : 'Parameters'}>
-        {isDraft && editable ? <DraftForm versionId={version.id} document={version.document} /> : <ParameterTable document={version.document} />}
+        {isDraft && editable ? <DraftForm key={version.updatedAt} versionId={version.id} document={version.document} /> : <ParameterTable document={version.document} />}
       </Section>
 
       <Section title="Calibration" testId="calibration-heading">
