@@ -66,3 +66,16 @@ describe('runAnalysis with a calibrated model', () => {
     expect(r.maps.some((m) => m.kind === 'depth-uncertainty')).toBe(false);
   });
 });
+
+describe('summary notes (issue 14: "the same depth note repeated")', () => {
+  it('three openings stopping at the maximum aspect ratio at three depths give one note with count 3', () => {
+    // Trenches 2, 5 and 20 µm wide, max AR 3: all stop (at 6, 15 and 60 µm) before the 60 min recipe ends.
+    const m = testModel({ etch: { timeMin: 60, targetDepthUm: 50, toleranceUm: 2, maxAspectRatio: 3 } });
+    const settings = analysisSettingsSchema.parse({ etchLayers: [{ layer: 5, datatype: 0 }], densityWindows: [{ windowUm: 100, stepUm: 50 }] });
+    const r = runAnalysis(trenchLayout(), settings, m);
+    const depths = r.features.map((f) => f.depthUm).sort((a, b) => a - b);
+    expect(depths[0]).toBeLessThan(depths[2]!);
+    const stops = r.summary.extrapolation.filter((e) => e.message.startsWith('etch stops'));
+    expect(stops).toEqual([{ message: "etch stops at the model's maximum aspect ratio 3 before the end of the etch", count: 3 }]);
+  });
+});
