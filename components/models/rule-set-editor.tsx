@@ -73,7 +73,9 @@ export function RuleSetEditor({ teamId, ruleSet }: Props) {
     const local = ruleSetRulesSchema.safeParse(rules);
     const map: Record<string, string[]> = {};
     if (!name.trim()) map.name = ['Give the rule set a name.'];
-    if (!local.success) for (const i of local.error.issues) (map[['rules', ...i.path.map(String)].join('.')] ??= []).push(i.message.replace('expected number, received NaN', 'write windows as window/step in µm, e.g. 100/50'));
+    const badWindow = windows.split(/[,;\s]+/).filter(Boolean).find((p) => !/^\d+(?:\.\d+)?\/\d+(?:\.\d+)?$/.test(p));
+    if (badWindow !== undefined) map['rules.densityWindows'] = [`"${badWindow}" is not window/step in µm, e.g. 100/50`];
+    else if (!local.success) for (const i of local.error.issues) (map[['rules', ...i.path.map(String)].join('.')] ??= []).push(i.message);
     setErrors(map);
     if (Object.keys(map).length) {
       setMessage({ text: 'Some fields need attention.', tone: 'error' });
