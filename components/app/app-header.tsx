@@ -21,6 +21,9 @@ export function AppHeader({ user, teams }: { user: AuthUser; teams: { id: string
               {t.name}
             </Link>
           ))}
+          <Link href="/models" className="rounded px-2.5 py-1.5 text-ink-100 hover:bg-ink-800 hover:text-white">
+            Models
+          </Link>
           <Link href="/methods" className="rounded px-2.5 py-1.5 text-ink-100 hover:bg-ink-800 hover:text-white">
             Methods
           </Link>

@@ -10,8 +10,42 @@ import { ApiClientError, apiJson } from './api-client';
 import { QueryProvider } from './query-provider';
 
 type RevisionChoice = { id: string; label: string; layers: { layer: number; datatype: number; polygons: number }[]; bboxUm: [number, number, number, number] | null };
-type ModelChoice = { id: string; name: string; version: string; description: string; targetDepthUm: number; toleranceUm: number; maxAspectRatio: number; loadingLengthUm: number };
-type Props = { projectId: string; revisions: RevisionChoice[]; initialRevisionId: string; models: ModelChoice[] };
+/** `group` sorts the choice under the team's published versions or the built-in (invented, uncalibrated) samples. */
+type ModelChoice = {
+  id: string;
+  name: string;
+  version: string;
+  description: string;
+  targetDepthUm: number;
+  toleranceUm: number;
+  maxAspectRatio: number;
+  loadingLengthUm: number;
+  group: 'published' | 'sample';
+  calibrationDate?: string | null;
+};
+/** A saved rule set: its windows, kernel and limits fill the form and are applied by the server (ruleSetId). */
+type RuleSetChoice = {
+  id: string;
+  name: string;
+  description: string;
+  isDefault: boolean;
+  rules: {
+    densityWindows: { windowUm: number; stepUm: number }[];
+    kernel: { lengthUm: number | null };
+    limits: { minDensity: number | null; maxDensity: number | null; maxGradient: number | null; maxAspectRatio: number | null; stopOverEtchBudgetUm: number | null; minWidthUm: number | null };
+  };
+};
+type Props = {
+  projectId: string;
+  revisions: RevisionChoice[];
+  initialRevisionId: string;
+  models: ModelChoice[];
+  /** Preselected model (chosen for the project's etch kind, see lib/models/defaults.ts). */
+  defaultModelId?: string | null;
+  /** Why that model is preselected, shown under the select. */
+  defaultModelReason?: string;
+  ruleSets?: RuleSetChoice[];
+};
 
 export function NewAnalysisForm(props: Props) {
   return (
@@ -42,7 +76,10 @@ function parseWindows(text: string): { windowUm: number; stepUm: number }[] | st
   return out;
 }
 
-function Form({ projectId, revisions, initialRevisionId, models }: Props) {
+const pctText = (v: number | null) => (v === null ? '' : `${Number((v * 100).toPrecision(4))}%`);
+const numText = (v: number | null) => (v === null ? '' : String(v));
+
+function Form({ projectId, revisions, initialRevisionId, models, defaultModelId, defaultModelReason, ruleSets = [] }: Props) {
   const router = useRouter();
   const [revisionId, setRevisionId] = useState(initialRevisionId);
   const revision = revisions.find((r) => r.id === revisionId);
@@ -51,10 +88,21 @@ function Form({ projectId, revisions, initialRevisionId, models }: Props) {
     return first ? [`${first.layer}/${first.datatype}`] : [];
   });
   const [polarity, setPolarity] = useState<'clear' | 'dark'>('clear');
-  const [modelId, setModelId] = useState(models[0]?.id ?? 'upload');
+  const [modelId, setModelId] = useState(defaultModelId && models.some((m) => m.id === defaultModelId) ? defaultModelId : (models[0]?.id ?? 'upload'));
   const [modelText, setModelText] = useState<{ name: string; json: unknown } | null>(null);
-  const [windows, setWindows] = useState('100/50 700/70');
-  const [f, setF] = useState<Record<string, string>>({ kernelUm: '', minDensity: '', maxDensity: '', maxGradient: '', maxAr: '', targetUm: '', toleranceUm: '', stopBudgetUm: '', minWidthUm: '' });
+  const [ruleSetId, setRuleSetId] = useState<string>(() => ruleSets.find((r) => r.isDefault)?.id ?? ruleSets[0]?.id ?? '');
+  const ruleSet = ruleSets.find((r) => r.id === ruleSetId);
+  const [windows, setWindows] = useState(() => (ruleSet ? ruleSet.rules.densityWindows.map((w) => `${w.windowUm}/${w.stepUm}`).join(' ') : '100/50 700/70'));
+  const [f, setF] = useState<Record<string, string>>(() => ({ ...fromRuleSet(ruleSet), targetUm: '', toleranceUm: '' }));
+  const pickRuleSet = (id: string) => {
+    setRuleSetId(id);
+    const r = ruleSets.find((x) => x.id === id);
+    if (r) {
+      setWindows(r.rules.densityWindows.map((w) => `${w.windowUm}/${w.stepUm}`).join(' '));
+      setF({ ...f, ...fromRuleSet(r) });
+    }
+  };
+  const locked = Boolean(ruleSet);
   const [errors, setErrors] = useState<Record<string, string[]>>({});
   const [formError, setFormError] = useState<string | undefined>();
   const model = models.find((m) => m.id === modelId);
@@ -109,17 +157,27 @@ function Form({ projectId, revisions, initialRevisionId, models }: Props) {
       setFormError('Some fields need attention.');
       return;
     }
-    create.mutate({ revisionId, settings, ...(modelId === 'upload' ? { model: modelText?.json } : { modelId }) });
+    create.mutate({ revisionId, settings, ...(modelId === 'upload' ? { model: modelText?.json } : { modelId }), ...(ruleSet ? { ruleSetId: ruleSet.id } : {}) });
   };
 
   const err = (key: string) => Object.entries(errors).filter(([k]) => k === key || k.startsWith(`${key}.`)).flatMap(([, v]) => v);
-  const limitField = (key: string, label: string, path: string, hint: string) => (
-    <Field label={label} name={key} value={f[key] ?? ''} onChange={(e) => setF({ ...f, [key]: e.target.value })} errors={err(path).length ? err(path) : undefined} hint={hint} inputMode="decimal" />
+  // `blank` says what an empty field means when it comes from the rule set (not checked, or the model's value).
+  const limitField = (key: string, label: string, path: string, hint: string, fromRules = true, blank = 'not checked') => (
+    <Field
+      label={label}
+      name={key}
+      value={f[key] ?? ''}
+      onChange={(e) => setF({ ...f, [key]: e.target.value })}
+      errors={err(path).length ? err(path) : undefined}
+      hint={locked && fromRules ? `from the rule set${f[key] ? '' : ` — ${blank}`}` : hint}
+      inputMode="decimal"
+      readOnly={locked && fromRules}
+    />
   );
 
   return (
     <form
-      className="space-y-6"
+      className="space-y-6 [&_input[readonly]]:bg-wafer-100 [&_input[readonly]]:text-ink-700"
       data-testid="new-analysis-form"
       onSubmit={(e) => {
         e.preventDefault();
@@ -166,11 +224,23 @@ function Form({ projectId, revisions, initialRevisionId, models }: Props) {
         <div className="space-y-1.5">
           <label htmlFor="model" className="block text-sm font-medium text-ink-800">Process model</label>
           <select id="model" className={selectClass} value={modelId} onChange={(e) => setModelId(e.target.value)}>
-            {models.map((m) => (
-              <option key={m.id} value={m.id}>{m.name} ({m.version})</option>
-            ))}
+            {models.some((m) => m.group === 'published') ? (
+              <optgroup label="Published versions of your team">
+                {models.filter((m) => m.group === 'published').map((m) => (
+                  <option key={m.id} value={m.id}>{m.name} {m.version}{m.calibrationDate ? ` — calibrated ${m.calibrationDate}` : ' — uncalibrated'}</option>
+                ))}
+              </optgroup>
+            ) : null}
+            {models.some((m) => m.group === 'sample') ? (
+              <optgroup label="Built-in samples (invented, uncalibrated)">
+                {models.filter((m) => m.group === 'sample').map((m) => (
+                  <option key={m.id} value={m.id}>{m.name} ({m.version})</option>
+                ))}
+              </optgroup>
+            ) : null}
             <option value="upload">Upload a model JSON…</option>
           </select>
+          {modelId === defaultModelId && defaultModelReason ? <p className="text-xs text-oxide-600" data-testid="model-default-reason">{defaultModelReason}</p> : null}
           {modelId === 'upload' ? (
             <input
               type="file"
@@ -197,21 +267,39 @@ function Form({ projectId, revisions, initialRevisionId, models }: Props) {
         </div>
       </div>
 
+      <div className="space-y-1.5">
+        <label htmlFor="rule-set" className="block text-sm font-medium text-ink-800">Rule set</label>
+        <select id="rule-set" className={selectClass} value={ruleSetId} onChange={(e) => pickRuleSet(e.target.value)} data-testid="rule-set-select">
+          {ruleSets.map((r) => (
+            <option key={r.id} value={r.id}>{r.name}{r.isDefault ? ' (team default)' : ''}</option>
+          ))}
+          <option value="">Custom limits (type them below)</option>
+        </select>
+        <p className="text-xs text-ink-500">
+          {ruleSet ? ruleSet.description || 'Windows, kernel and limits come from this rule set.' : 'Blank density and width limits are not checked.'}{' '}
+          <a href="/rule-sets" className="text-copper-600 hover:underline">Rule sets</a>
+        </p>
+        {err('ruleSetId').length ? <p className="text-xs text-fail">{err('ruleSetId').join(' ')}</p> : null}
+      </div>
+
       <div className="grid gap-4 sm:grid-cols-2">
-        <Field label="Density windows (window/step, µm)" name="windows" value={windows} onChange={(e) => setWindows(e.target.value)} errors={err('settings.densityWindows').length ? err('settings.densityWindows') : undefined} hint="e.g. 100/50 700/70 — use your rule manual's windows" />
-        {limitField('kernelUm', 'Kernel length L (µm)', 'settings.kernel', model ? `blank = the model's ${model.loadingLengthUm} µm` : 'blank = the model’s loading length')}
+        <Field label="Density windows (window/step, µm)" name="windows" value={windows} onChange={(e) => setWindows(e.target.value)} errors={err('settings.densityWindows').length ? err('settings.densityWindows') : undefined} hint={locked ? 'from the rule set' : "e.g. 100/50 700/70 — use your rule manual's windows"} readOnly={locked} />
+        {limitField('kernelUm', 'Kernel length L (µm)', 'settings.kernel', model ? `blank = the model's ${model.loadingLengthUm} µm` : 'blank = the model’s loading length', true, model ? `the model's ${model.loadingLengthUm} µm` : "the model's loading length")}
       </div>
 
       <fieldset className="space-y-3">
         <legend className="text-sm font-medium text-ink-800">Flag limits</legend>
-        <p className="text-xs text-ink-500">Blank density and width limits are not checked; blank depth limits come from the model. Densities as fractions or percent (20%).</p>
+        <p className="text-xs text-ink-500">
+          {locked ? 'Density, width and aspect-ratio limits come from the rule set (choose “Custom limits” to type your own). ' : 'Blank density and width limits are not checked. '}
+          Blank depth limits come from the model. Densities as fractions or percent (20%).
+        </p>
         <div className="grid gap-4 sm:grid-cols-3">
           {limitField('minDensity', 'Min window density', 'settings.limits.minDensity', 'e.g. 20%')}
           {limitField('maxDensity', 'Max window density', 'settings.limits.maxDensity', 'e.g. 80%')}
           {limitField('maxGradient', 'Max density step', 'settings.limits.maxGradient', 'between neighbouring windows')}
-          {limitField('maxAr', 'Max aspect ratio', 'settings.limits.maxAspectRatio', model ? `model: ${model.maxAspectRatio}` : '')}
-          {limitField('targetUm', 'Target depth (µm)', 'settings.limits.targetDepthUm', model ? `model: ${model.targetDepthUm} µm` : '')}
-          {limitField('toleranceUm', 'Tolerance (µm)', 'settings.limits.toleranceUm', model ? `model: ±${model.toleranceUm} µm` : '')}
+          {limitField('maxAr', 'Max aspect ratio', 'settings.limits.maxAspectRatio', model ? `model: ${model.maxAspectRatio}` : '', true, model ? `the model's ${model.maxAspectRatio}` : "the model's")}
+          {limitField('targetUm', 'Target depth (µm)', 'settings.limits.targetDepthUm', model ? `model: ${model.targetDepthUm} µm` : '', false)}
+          {limitField('toleranceUm', 'Tolerance (µm)', 'settings.limits.toleranceUm', model ? `model: ±${model.toleranceUm} µm` : '', false)}
           {limitField('stopBudgetUm', 'Stop-layer over-etch budget (µm)', 'settings.limits.stopOverEtchBudgetUm', 'blank = not checked')}
           {limitField('minWidthUm', 'Min opening width (µm)', 'settings.limits.minWidthUm', 'rule minimum')}
         </div>
@@ -225,4 +313,18 @@ function Form({ projectId, revisions, initialRevisionId, models }: Props) {
   );
 }
 
-export type { RevisionChoice, ModelChoice };
+/** Form fields (percent for densities) from a rule set; all blank without one. */
+function fromRuleSet(r: RuleSetChoice | undefined): Record<string, string> {
+  const l = r?.rules.limits;
+  return {
+    kernelUm: numText(r?.rules.kernel.lengthUm ?? null),
+    minDensity: pctText(l?.minDensity ?? null),
+    maxDensity: pctText(l?.maxDensity ?? null),
+    maxGradient: pctText(l?.maxGradient ?? null),
+    maxAr: numText(l?.maxAspectRatio ?? null),
+    stopBudgetUm: numText(l?.stopOverEtchBudgetUm ?? null),
+    minWidthUm: numText(l?.minWidthUm ?? null),
+  };
+}
+
+export type { RevisionChoice, ModelChoice, RuleSetChoice };

@@ -99,6 +99,10 @@ export const analyses = sqliteTable(
     summary: text('summary', { mode: 'json' }).$type<Record<string, unknown>>(),
     /** Relative to the data folder; null until the job ran. */
     resultDir: text('result_dir'),
+    /** The published model version used (process_model_versions.id); null for built-in or uploaded models. */
+    modelVersionId: text('model_version_id'),
+    /** The saved rule set the settings were taken from (rule_sets.id), if any; the settings themselves are stored above. */
+    ruleSetId: text('rule_set_id'),
   },
   (t) => [
     index('analyses_project_idx').on(t.projectId, t.createdAt),
@@ -136,6 +140,8 @@ export const analysisFlags = sqliteTable(
     featureId: integer('feature_id'),
     windowUm: real('window_um'),
     stepUm: real('step_um'),
+    /** The limit lies within the prediction's uncertainty band (calibrated models only); null = not assessed. */
+    uncertain: integer('uncertain', { mode: 'boolean' }),
   },
   (t) => [uniqueIndex('analysis_flags_key_idx').on(t.analysisId, t.flagKey), index('analysis_flags_rank_idx').on(t.analysisId, t.rank)],
 );
@@ -166,6 +172,8 @@ export const analysisFeatures = sqliteTable(
     overEtchUm: real('over_etch_um').notNull(),
     reachesTarget: integer('reaches_target', { mode: 'boolean' }).notNull(),
     warnings: text('warnings').notNull().default(''),
+    /** Standard deviation of depthUm from the model's calibration covariance, µm; null for an uncalibrated model. */
+    depthSigmaUm: real('depth_sigma_um'),
   },
   (t) => [primaryKey({ columns: [t.analysisId, t.featureId] })],
 );

@@ -8,3 +8,4 @@ export * from './analyses';
 export * from './security';
 export * from './limits';
 export * from './reviews';
+export * from './models';

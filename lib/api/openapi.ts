@@ -8,6 +8,7 @@ import { CORE_PATHS } from './openapi/paths-core';
 import { LIMITS_PATHS } from './openapi/paths-limits';
 import { PIPELINE_PATHS, PIPELINE_SCHEMAS } from './openapi/paths-pipeline';
 import { REVIEW_PATHS, REVIEW_SCHEMAS } from './openapi/paths-review';
+import { MODEL_PATHS, MODEL_SCHEMAS } from './openapi/paths-models';
 import { HTTP_METHODS, type HttpMethod, type OpenApiDocument, type OperationObject } from './openapi/types';
 
 export type { HttpMethod, OpenApiDocument, OperationObject } from './openapi/types';
@@ -22,6 +23,7 @@ const TAGS: OpenApiDocument['tags'] = [
   { name: 'Layouts', description: 'Layout uploads (GDSII or CSV polygons); each upload is a new revision.' },
   { name: 'Analyses', description: 'Etch-loading analyses: settings, progress, results, maps and flags.' },
   { name: 'Review', description: 'Findings review: status, waivers, threads, sign-off, compare, notifications.' },
+  { name: 'Models', description: 'Process models (versions, calibration, width rules) and saved rule sets.' },
   { name: 'Meta', description: 'This document.' },
 ];
 
@@ -42,10 +44,10 @@ function buildDocument(): OpenApiDocument {
     servers: [{ url: API_BASE_PATH, description: 'This Trenchant instance' }],
     tags: TAGS,
     security: [{ bearerToken: [] }, { sessionCookie: [] }],
-    paths: { ...CORE_PATHS, ...PIPELINE_PATHS, ...LIMITS_PATHS, ...REVIEW_PATHS },
+    paths: { ...CORE_PATHS, ...PIPELINE_PATHS, ...LIMITS_PATHS, ...REVIEW_PATHS, ...MODEL_PATHS },
     components: {
       securitySchemes: SECURITY_SCHEMES,
-      schemas: { ...CORE_SCHEMAS, ...PIPELINE_SCHEMAS, ...REVIEW_SCHEMAS },
+      schemas: { ...CORE_SCHEMAS, ...PIPELINE_SCHEMAS, ...REVIEW_SCHEMAS, ...MODEL_SCHEMAS },
       responses: ERROR_RESPONSE_OBJECTS,
     },
   };

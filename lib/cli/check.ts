@@ -80,7 +80,7 @@ async function readJsonFile(path: string, what: string): Promise<unknown> {
 
 const num = (v: number, digits = 4) => (Number.isFinite(v) ? Number(v.toPrecision(digits)).toString() : String(v));
 const pct = (v: number) => `${num(v * 100, 3)} %`;
-const show = (v: number, unit: Flag['unit']) => (unit === 'fraction' ? pct(v) : unit === 'µm' ? `${num(v)} µm` : `${num(v)}:1`);
+const show = (v: number, unit: Flag['unit']) => (unit === 'fraction' ? pct(v) : unit === '%' ? `${num(v)} %` : unit === 'µm' ? `${num(v)} µm` : `${num(v)}:1`);
 
 function summaryText(file: string, s: AnalysisSummary): string {
   const out: string[] = [];

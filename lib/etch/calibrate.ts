@@ -56,6 +56,8 @@ export type CalibrationFit = {
   rmsResidualUm: number;
   /** s = √(SSR/(n − p)), µm. */
   residualStandardErrorUm: number;
+  /** s²(JᵀJ)⁻¹ in the order of `fit`; null when JᵀJ is singular. */
+  covariance: { parameters: FitParameter[]; matrix: number[][] } | null;
   degreesOfFreedom: number;
   iterations: number;
   ranges: { widthUm: [number, number]; aspectRatio: [number, number]; density: [number, number]; kinds: ('trench' | 'hole')[] };
@@ -264,6 +266,14 @@ export function fitCalibration(rows: CalibrationRow[], options: CalibrationOptio
   };
   const rSquared = sst > 0 ? 1 - ssr / sst : NaN;
   const rmsResidualUm = Math.sqrt(ssr / n);
+  // Parameters at a bound have no meaningful linearised error: leave them out of the covariance.
+  const free = fit.map((_, i) => i).filter((i) => !atBound[i]);
+  // (A bound parameter is held fixed, so the free block is inverted on its own.)
+  const invFree = free.length === 0 ? null : free.length === p ? inv : invertSymmetric(free.map((a) => free.map((b) => jtj[a]?.[b] ?? 0)));
+  const covariance =
+    invFree && Number.isFinite(s2) && free.every((_, k) => Number.isFinite(invFree[k]?.[k] ?? NaN))
+      ? { parameters: free.map((i) => fit[i] as FitParameter), matrix: free.map((_, a) => free.map((__, b) => (invFree[a]?.[b] ?? NaN) * s2)) }
+      : null;
   const record = {
     date: options.date ?? new Date().toISOString().slice(0, 10),
     ...(options.source ? { source: options.source } : {}),
@@ -274,6 +284,8 @@ export function fitCalibration(rows: CalibrationRow[], options: CalibrationOptio
     pointCount: n,
     ...(Number.isFinite(rSquared) ? { rSquared } : {}),
     rmsResidualUm,
+    ...(Number.isFinite(s2) ? { residualStandardErrorUm: Math.sqrt(s2) } : {}),
+    ...(covariance ? { covariance } : {}),
     parameters: Object.fromEntries(Object.entries(parameters).map(([k, v]) => [k, { value: v.value, standardError: v.standardError }])),
   };
   const fittedModel = processModelSchema.parse({ ...base, ...withParameters(base, fit, values), stopLayer: base.stopLayer, mask: base.mask, calibration: record });
@@ -286,6 +298,7 @@ export function fitCalibration(rows: CalibrationRow[], options: CalibrationOptio
     rSquared,
     rmsResidualUm,
     residualStandardErrorUm: Math.sqrt(s2),
+    covariance,
     degreesOfFreedom: dof,
     iterations: result.iterations,
     ranges,

@@ -38,36 +38,68 @@ function numberField(raw: string | undefined, name: string, line: number, check:
   return v;
 }
 
+export type CalibrationCsvIssue = { line: number | null; message: string };
+export type CalibrationCsvReport = { rows: CalibrationRow[]; errors: CalibrationCsvIssue[]; errorsTruncated: boolean };
+
+/** At most this many row errors are listed (a wrong file would otherwise give one per line). */
+const MAX_LISTED_ERRORS = 100;
+
+function rowOf(r: Record<string, string>, line: number): CalibrationRow {
+  const kind = (r.kind ?? '').toLowerCase();
+  if (kind !== 'trench' && kind !== 'hole') throw new CalibrationCsvError(`line ${line}: kind must be trench or hole, got "${r.kind ?? ''}"`, line);
+  return {
+    line,
+    widthUm: numberField(r.width_um, 'width_um', line, (v) => v > 0, 'a number > 0'),
+    kind,
+    density: numberField(r.density, 'density', line, (v) => v >= 0 && v <= 1, 'a number in [0, 1]'),
+    timeMin: numberField(r.time_min, 'time_min', line, (v) => v > 0, 'a number > 0'),
+    depthUm: numberField(r.depth_um, 'depth_um', line, (v) => v >= 0, 'a number ≥ 0'),
+  };
+}
+
 /**
- * Parse calibration CSV text.
- * @example parseCalibrationCsv('width_um,kind,density,time_min,depth_um\n2,trench,0.3,10,25\n') // [{ line: 2, widthUm: 2, … }]
+ * Parse calibration CSV text, collecting every bad row (each message names its line) instead of stopping at the
+ * first; good rows are returned too, so a form can show both. File-level problems (no header, a missing column,
+ * broken quoting) give one error and no rows.
+ * @example parseCalibrationCsvReport('width_um,kind,density,time_min,depth_um\n2,slot,0.3,10,25\n').errors
+ *   // [{ line: 2, message: 'line 2: kind must be trench or hole, got "slot"' }]
  */
-export function parseCalibrationCsv(text: string): CalibrationRow[] {
+export function parseCalibrationCsvReport(text: string): CalibrationCsvReport {
   let records: { record: Record<string, string>; info: { lines: number } }[];
   try {
     records = parse(text, { columns: (h: string[]) => h.map((c) => c.trim().toLowerCase()), comment: '#', skip_empty_lines: true, trim: true, info: true, bom: true });
   } catch (err) {
     const e = err as { message?: string; lines?: number };
     const msg = (e.message ?? String(err)).replace(/\s+/g, ' ');
-    throw new CalibrationCsvError(e.lines ? `line ${e.lines}: ${msg}` : msg, e.lines);
+    return { rows: [], errors: [{ line: e.lines ?? null, message: e.lines ? `line ${e.lines}: ${msg}` : msg }], errorsTruncated: false };
   }
   const first = records[0];
-  if (!first) throw new CalibrationCsvError(`no data rows: expected a header ${REQUIRED.join(',')} and at least one row`);
+  if (!first) return { rows: [], errors: [{ line: null, message: `no data rows: expected a header ${REQUIRED.join(',')} and at least one row` }], errorsTruncated: false };
   const missing = REQUIRED.filter((c) => !(c in first.record));
-  if (missing.length) throw new CalibrationCsvError(`line 1: missing column(s) ${missing.join(', ')} (need ${REQUIRED.join(',')})`, 1);
-  return records.map(({ record: r, info }) => {
-    const line = info.lines;
-    const kind = (r.kind ?? '').toLowerCase();
-    if (kind !== 'trench' && kind !== 'hole') throw new CalibrationCsvError(`line ${line}: kind must be trench or hole, got "${r.kind ?? ''}"`, line);
-    return {
-      line,
-      widthUm: numberField(r.width_um, 'width_um', line, (v) => v > 0, 'a number > 0'),
-      kind,
-      density: numberField(r.density, 'density', line, (v) => v >= 0 && v <= 1, 'a number in [0, 1]'),
-      timeMin: numberField(r.time_min, 'time_min', line, (v) => v > 0, 'a number > 0'),
-      depthUm: numberField(r.depth_um, 'depth_um', line, (v) => v >= 0, 'a number ≥ 0'),
-    };
-  });
+  if (missing.length) return { rows: [], errors: [{ line: 1, message: `line 1: missing column(s) ${missing.join(', ')} (need ${REQUIRED.join(',')})` }], errorsTruncated: false };
+  const rows: CalibrationRow[] = [];
+  const errors: CalibrationCsvIssue[] = [];
+  let errorCount = 0;
+  for (const { record, info } of records) {
+    try {
+      rows.push(rowOf(record, info.lines));
+    } catch (err) {
+      if (!(err instanceof CalibrationCsvError)) throw err;
+      if (++errorCount <= MAX_LISTED_ERRORS) errors.push({ line: err.line ?? info.lines, message: err.message });
+    }
+  }
+  return { rows, errors, errorsTruncated: errorCount > MAX_LISTED_ERRORS };
+}
+
+/**
+ * Parse calibration CSV text; throws CalibrationCsvError naming the line of the first problem.
+ * @example parseCalibrationCsv('width_um,kind,density,time_min,depth_um\n2,trench,0.3,10,25\n') // [{ line: 2, widthUm: 2, … }]
+ */
+export function parseCalibrationCsv(text: string): CalibrationRow[] {
+  const report = parseCalibrationCsvReport(text);
+  const first = report.errors[0];
+  if (first) throw new CalibrationCsvError(first.message, first.line ?? undefined);
+  return report.rows;
 }
 
 /** Write rows back as CSV (same columns), e.g. for generated demo data. */

@@ -27,6 +27,8 @@ export {
 export { createFeaturePredictor, type FeaturePredictor } from './fast-predict';
 export { predictFeature, predictDepthUm, ETCH_CAUTION, NO_WARNINGS, type FeatureInput, type FeaturePrediction, type StopReason, type PredictOptions } from './predict';
 export { parseCalibrationCsv, calibrationRowsToCsv, CalibrationCsvError, type CalibrationRow } from './calibration-csv';
+export { parseCalibrationCsvReport, type CalibrationCsvIssue, type CalibrationCsvReport } from './calibration-csv';
+export { createDepthUncertainty, modelCovariance, DEPTH_BAND_K, type DepthUncertainty, type UncertainParameter } from './uncertainty';
 export {
   fitCalibration,
   underdeterminedReason,

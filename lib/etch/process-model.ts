@@ -60,6 +60,20 @@ export const calibrationRecordSchema = z.strictObject({
   rSquared: z.number().max(1).optional(),
   rmsResidualUm: z.number().min(0).optional(),
   parameters: z.record(z.string(), z.strictObject({ value: z.number(), standardError: z.number().nullable() })).optional(),
+  /** s = √(SSR/(n − p)) of the fit, µm: the scatter of single measurements about the model. */
+  residualStandardErrorUm: z.number().min(0).optional(),
+  /**
+   * Covariance of the fitted parameters (s²(JᵀJ)⁻¹), in the order of `parameters` here; propagated to predicted
+   * depth as the depth uncertainty (lib/etch/uncertainty.ts). Names: openRateUmPerMin, reactionProbability,
+   * loadingCoefficient.
+   */
+  covariance: z
+    .strictObject({
+      parameters: z.array(z.enum(['openRateUmPerMin', 'reactionProbability', 'loadingCoefficient'])).min(1).max(3),
+      matrix: z.array(z.array(z.number())),
+    })
+    .refine((c) => c.matrix.length === c.parameters.length && c.matrix.every((r) => r.length === c.parameters.length), 'calibration.covariance.matrix must be square, one row per parameter')
+    .optional(),
 });
 
 export const processModelSchema = z

@@ -7,6 +7,7 @@ import { predictFeature, ETCH_CAUTION, type FeaturePrediction } from './predict'
 import { createArdeEvaluators } from './rate';
 import type { ProcessModel } from './process-model';
 import type { FeatureKind } from './transmission';
+import { createDepthUncertainty, DEPTH_BAND_K } from './uncertainty';
 
 export type WidthRulesOptions = {
   kind: FeatureKind;
@@ -28,6 +29,8 @@ export type WidthRuleRow = {
   status: 'pass' | 'short' | 'deep';
   timeToTargetMin: number | null;
   overEtchUm: number;
+  /** Standard deviation of the predicted depth from the calibration's parameter covariance, µm; null without one. */
+  depthSigmaUm: number | null;
   warnings: string[];
 };
 
@@ -43,6 +46,8 @@ export type WidthRules = {
   rows: WidthRuleRow[];
   /** Smallest width whose depth at the recipe time is ≥ target − tolerance; null if none in the search range. */
   minimumWidthUm: number | null;
+  /** Rows carry depthSigmaUm; bands are ± this many σ. Null for a model without a calibration covariance. */
+  uncertaintyBandK: number | null;
   caution: string;
 };
 
@@ -52,7 +57,7 @@ function defaultWidths(): number[] {
   return out;
 }
 
-function rowOf(model: ProcessModel, p: FeaturePrediction): WidthRuleRow {
+function rowOf(model: ProcessModel, p: FeaturePrediction, depthSigmaUm: number | null): WidthRuleRow {
   const tol = model.etch.toleranceUm;
   const short = p.depthUm < model.etch.targetDepthUm - tol;
   const deep = !model.stopLayer && p.depthUm > model.etch.targetDepthUm + tol;
@@ -65,6 +70,7 @@ function rowOf(model: ProcessModel, p: FeaturePrediction): WidthRuleRow {
     status: short ? 'short' : deep ? 'deep' : 'pass',
     timeToTargetMin: p.timeToTargetMin,
     overEtchUm: p.overEtchUm,
+    depthSigmaUm,
     warnings: p.warnings,
   };
 }
@@ -75,7 +81,10 @@ export function widthRules(model: ProcessModel, options: WidthRulesOptions): Wid
   const arde = createArdeEvaluators(model, model.etch.maxAspectRatio);
   const at = (widthUm: number) =>
     predictFeature(model, { widthUm, kind: options.kind, effectiveDensity: options.effectiveDensity, exposedFraction: options.exposedFraction }, { arde });
-  const rows = widths.map((w) => rowOf(model, at(w)));
+  const unc = createDepthUncertainty(model);
+  const rows = widths.map((w) =>
+    rowOf(model, at(w), unc ? unc.sigmaUm({ widthUm: w, kind: options.kind, effectiveDensity: options.effectiveDensity, exposedFraction: options.exposedFraction }) : null),
+  );
   const need = model.etch.targetDepthUm - model.etch.toleranceUm;
   const [lo0, hi0] = options.searchRangeUm ?? [0.01, 10000];
   let minimumWidthUm: number | null = null;
@@ -103,6 +112,7 @@ export function widthRules(model: ProcessModel, options: WidthRulesOptions): Wid
     toleranceUm: model.etch.toleranceUm,
     rows,
     minimumWidthUm,
+    uncertaintyBandK: unc ? DEPTH_BAND_K : null,
     caution: ETCH_CAUTION,
   };
 }
@@ -116,12 +126,14 @@ export function widthRulesToCsv(rules: WidthRules): string {
     `# model: ${rules.modelName ?? '(unnamed)'} version ${rules.modelVersion ?? '-'} calibrated ${rules.calibrationDate ?? 'never'}`,
     `# kind ${rules.kind}; density ${rules.effectiveDensity ?? 'not given'}; time ${rules.timeMin} min; target ${rules.targetDepthUm} ± ${rules.toleranceUm} µm`,
     `# minimum width reaching target: ${rules.minimumWidthUm === null ? 'none' : r4(rules.minimumWidthUm) + ' µm'}`,
+    ...(rules.uncertaintyBandK !== null ? [`# depth_sigma_um: standard deviation of the predicted depth from the calibration's parameter covariance (not wafer scatter)`] : []),
     `# ${rules.caution}`,
-    'width_um,depth_um,aspect_ratio,margin_um,status,time_to_target_min,over_etch_um,warnings',
+    'width_um,depth_um,aspect_ratio,margin_um,status,time_to_target_min,over_etch_um,' + (rules.uncertaintyBandK !== null ? 'depth_sigma_um,' : '') + 'warnings',
   ];
   for (const r of rules.rows) {
+    const sigma = rules.uncertaintyBandK !== null ? [r.depthSigmaUm === null ? '' : r4(r.depthSigmaUm)] : [];
     lines.push(
-      [r4(r.widthUm), r4(r.depthUm), r4(r.aspectRatio), r4(r.marginUm), r.status, r.timeToTargetMin === null ? '' : r4(r.timeToTargetMin), r4(r.overEtchUm), csvCell(r.warnings.join('; '))].join(','),
+      [r4(r.widthUm), r4(r.depthUm), r4(r.aspectRatio), r4(r.marginUm), r.status, r.timeToTargetMin === null ? '' : r4(r.timeToTargetMin), r4(r.overEtchUm), ...sigma, csvCell(r.warnings.join('; '))].join(','),
     );
   }
   return lines.join('\n') + '\n';

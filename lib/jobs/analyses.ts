@@ -10,6 +10,9 @@ import { analyses, layoutRevisions, layouts, users, type AnalysisRow, type Layer
 import { parseProcessModel, type ProcessModel } from '@/lib/etch';
 import { ApiError } from '@/lib/http/errors';
 import { parseAnalysisSettings, type AnalysisSettings } from '@/lib/pipeline/settings';
+import { applyRuleSet } from '@/lib/models/rule-set-schema';
+import { ruleSetForAnalysis } from '@/lib/models/rule-sets';
+import { projectTeamId, resolvePublishedVersion } from '@/lib/models/versions';
 import { findBuiltinModel } from './models';
 import { jobRunner } from './runner';
 
@@ -17,8 +20,10 @@ export const createAnalysisBody = z
   .object({
     revisionId: z.string({ error: 'Choose a layout revision (revisionId).' }).min(1, 'Choose a layout revision (revisionId).').max(100),
     settings: z.record(z.string(), z.unknown(), { error: 'settings must be a JSON object.' }),
-    /** Id of a built-in model (GET /api/v1/models). */
+    /** A published model version of the team (version id, or model id/key for its newest version), or a built-in sample id (GET /api/v1/models). */
     modelId: z.string().min(1).max(100).optional(),
+    /** A saved rule set of the team: its windows, kernel, limits and severities replace those in settings. */
+    ruleSetId: z.string().min(1).max(100).optional(),
     /** A process model document of your own. */
     model: z.record(z.string(), z.unknown(), { error: 'model must be a JSON object.' }).optional(),
   })
@@ -73,7 +78,8 @@ export function createAnalysis(db: Db, input: { projectId: string; userId: strin
     .where(and(eq(layoutRevisions.id, body.revisionId), eq(layouts.projectId, projectId)))
     .get();
   if (!rev) throw new ApiError('not_found', 'Layout revision not found in this project.', { fieldErrors: { revisionId: ['no such revision in this project'] } });
-  const settings = parseAnalysisSettings(body.settings);
+  const teamId = projectTeamId(db, projectId);
+  const settings = parseAnalysisSettings(body.ruleSetId ? applyRuleSet(body.settings, ruleSetForAnalysis(db, teamId, body.ruleSetId).rules) : body.settings);
   if (!settings.ok) {
     const fieldErrors: Record<string, string[]> = {};
     for (const i of settings.issues) (fieldErrors[i.path ? `settings.${i.path}` : 'settings'] ??= []).push(i.message);
@@ -81,7 +87,8 @@ export function createAnalysis(db: Db, input: { projectId: string; userId: strin
     throw new ApiError('bad_request', `Some settings are not valid: ${first ? `${first.path || 'settings'}: ${first.message}` : ''}${settings.issues.length > 1 ? ` (and ${settings.issues.length - 1} more)` : ''}.`, { fieldErrors });
   }
   assertLayersPresent(settings.settings, rev.layerTable);
-  const { model, source } = resolveModel(body);
+  const teamModel = body.modelId !== undefined ? resolvePublishedVersion(db, teamId, body.modelId) : null;
+  const { model, source } = teamModel ? { model: teamModel.model, source: `version:${teamModel.versionId}` } : resolveModel(body);
   const label = modelLabel(model);
   const row: AnalysisRow = {
     id: randomUUID(),
@@ -104,6 +111,8 @@ export function createAnalysis(db: Db, input: { projectId: string; userId: strin
     finishedAt: null,
     summary: null,
     resultDir: null,
+    modelVersionId: teamModel?.versionId ?? null,
+    ruleSetId: body.ruleSetId ?? null,
   };
   db.insert(analyses).values(row).run();
   jobRunner().pump();

@@ -34,6 +34,8 @@ export const F64_COLUMNS = [
   'aspectRatio',
   'marginUm',
   'overEtchUm',
+  // NaN = no uncertainty estimate (uncalibrated model); 0 is a real value (an opening stopped on a stop layer).
+  'depthSigmaUm',
 ] as const;
 export type F64Column = (typeof F64_COLUMNS)[number];
 
@@ -60,7 +62,9 @@ export interface FeatureFileTables {
 }
 
 /** Columns in memory (what the file holds, decoded). modelKind: 0 = trench, 1 = hole. */
-export interface FeatureFileColumns extends Record<F64Column, Float64Array> {
+export interface FeatureFileColumns extends Record<Exclude<F64Column, 'depthSigmaUm'>, Float64Array> {
+  /** Absent in files written before uncertainty was stored. */
+  depthSigmaUm?: Float64Array;
   count: number;
   featureId: Int32Array;
   shape: Uint8Array;
@@ -122,6 +126,7 @@ export function encodeFeatureFile(results: FeatureResult[]): EncodedFeatureFile 
   const aspectRatio = f64('aspectRatio');
   const marginUm = f64('marginUm');
   const overEtchUm = f64('overEtchUm');
+  const depthSigmaUm = f64('depthSigmaUm');
   const featureId = new Int32Array(body.buffer, col.get('featureId') as number, n);
   const shape = new Uint8Array(body.buffer, col.get('shape') as number, n);
   const modelKind = new Uint8Array(body.buffer, col.get('modelKind') as number, n);
@@ -146,6 +151,7 @@ export function encodeFeatureFile(results: FeatureResult[]): EncodedFeatureFile 
     aspectRatio[k] = num(r.aspectRatio);
     marginUm[k] = num(r.marginUm);
     overEtchUm[k] = num(r.overEtchUm);
+    depthSigmaUm[k] = r.depthSigmaUm ?? Number.NaN;
     let s = shapeIndex.get(r.shape);
     if (s === undefined) shapeIndex.set(r.shape, (s = shapeIndex.size));
     shape[k] = s;

@@ -72,6 +72,7 @@ function featureItemsFromFile(file: string, page: z.infer<typeof pageQuery>) {
       marginUm: at(f.marginUm),
       overEtchUm: at(f.overEtchUm),
       reachesTarget: f.reachesTarget[k] === 1,
+      depthSigmaUm: sigmaAt(f.depthSigmaUm, k),
       id: f.featureId[k] as number,
       centroidUm: [at(f.xUm), at(f.yUm)] as [number, number],
       bboxUm: [at(f.x0Um), at(f.y0Um), at(f.x1Um), at(f.y1Um)] as [number, number, number, number],
@@ -79,6 +80,11 @@ function featureItemsFromFile(file: string, page: z.infer<typeof pageQuery>) {
     });
   }
   return items;
+}
+
+function sigmaAt(column: Float64Array | undefined, k: number): number | null {
+  const v = column?.[k];
+  return v === undefined || Number.isNaN(v) ? null : v;
 }
 
 function splitWarnings(w: string): string[] {
@@ -152,6 +158,7 @@ export function listFlags(db: Db, analysisId: string, q: z.infer<typeof flagsQue
       message: f.message,
       featureId: f.featureId,
       window: f.windowUm !== null && f.stepUm !== null ? { windowUm: f.windowUm, stepUm: f.stepUm } : null,
+      uncertain: f.uncertain,
     })),
   };
 }

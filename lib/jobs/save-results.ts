@@ -25,11 +25,11 @@ export async function saveResultRows(db: Db, analysisId: string, result: OkResul
     sqlite.prepare('DELETE FROM analysis_maps WHERE analysis_id = ?').run(analysisId);
     const flag = sqlite.prepare(
       `INSERT INTO analysis_flags (id, analysis_id, flag_key, rank, kind, severity, x0_um, y0_um, x1_um, y1_um, x_um, y_um,
-        measured, limit_value, unit, message, feature_id, window_um, step_um) VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)`,
+        measured, limit_value, unit, message, feature_id, window_um, step_um, uncertain) VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)`,
     );
     result.flags.forEach((f, rank) => {
       const [x0, y0, x1, y1] = f.bboxUm;
-      flag.run(randomUUID(), analysisId, f.id, rank, f.kind, f.severity, x0, y0, x1, y1, f.xUm, f.yUm, num(f.measured), num(f.limit), f.unit, f.message, f.featureId ?? null, f.window?.windowUm ?? null, f.window?.stepUm ?? null);
+      flag.run(randomUUID(), analysisId, f.id, rank, f.kind, f.severity, x0, y0, x1, y1, f.xUm, f.yUm, num(f.measured), num(f.limit), f.unit, f.message, f.featureId ?? null, f.window?.windowUm ?? null, f.window?.stepUm ?? null, f.uncertain === undefined ? null : f.uncertain ? 1 : 0);
     });
     const map = sqlite.prepare(
       'INSERT INTO analysis_maps (analysis_id, name, kind, unit, file, x0_um, y0_um, pixel_um, nx, ny, meta, bytes) VALUES (?,?,?,?,?,?,?,?,?,?,?,?)',

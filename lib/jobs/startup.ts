@@ -16,6 +16,7 @@ export async function startJobs(log: (line: string) => void = (l) => console.log
     const requeued = runner.requeueInterrupted();
     if (requeued > 0) log(`[trenchant] ${requeued} analysis job(s) interrupted by the last shutdown are queued again`);
     if (process.env.TRENCHANT_DEMO !== '0') {
+      if ((await import('@/lib/models/seed')).seedDemoModels(getDb()).seeded) log('[trenchant] demo team: published the sample process models and the demo rule set');
       const demo = await seedDemoAnalysis(getDb());
       if (demo.seeded) log('[trenchant] demo project: queued the analysis of the demo layout');
     }

@@ -253,7 +253,7 @@ const resultMaps: MethodSection = {
   id: 'result-maps',
   title: 'Result maps',
   body: [
-    'Maps are stored as single-precision rasters with their geometry (lower-left corner, pixel size, size in pixels), kind and unit: coverage (fraction), window density for each window set (fraction; one pixel per window, centred on the window\'s centre, pixel size = step), effective density (fraction), local width (µm), aspect ratio (predicted depth / width), predicted depth (µm) and risk (score).',
+    'Maps are stored as single-precision rasters with their geometry (lower-left corner, pixel size, size in pixels), kind and unit: coverage (fraction), window density for each window set (fraction; one pixel per window, centred on the window\'s centre, pixel size = step), effective density (fraction), local width (µm), aspect ratio (predicted depth / width), predicted depth (µm), risk (score) and, for a model calibrated with a parameter covariance, depth uncertainty (µm, one standard deviation of the predicted depth from the fitted parameters; 95 % band = ±1.96 σ).',
     'Pixels with no opening hold "no value" in the aspect-ratio, depth and risk maps.',
   ],
   formulas: [],

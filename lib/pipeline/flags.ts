@@ -11,8 +11,13 @@
  *             practice, often recommended rather than required), outside-calibrated-range (the prediction is an
  *             extrapolation and may be wrong either way).
  *   info    — not used by default; available as an override.
- * Units: µm for lengths, fractions 0..1 for densities, aspect ratio = depth / width (dimensionless).
+ * Units: µm for lengths, aspect ratio = depth / width (dimensionless). Settings give densities as fractions 0..1;
+ * density flags report them in percent (unit '%'), the way the summary and the messages show them.
+ * Uncertainty: an under-target-depth flag whose limit lies within ±DEPTH_BAND_K·σ of the predicted depth (σ from the
+ * calibration, FeatureCheckInput.depthSigmaUm) is marked `uncertain`: the data cannot tell whether it passes.
+ * Ranking and collecting live in flag-collector.ts.
  */
+import { DEPTH_BAND_K } from '../etch/uncertainty';
 import type { FlagKind, ResolvedLimits, Severity } from './settings';
 
 export type { FlagKind, Severity } from './settings';
@@ -28,7 +33,7 @@ export const DEFAULT_SEVERITY: Record<FlagKind, Severity> = {
   'outside-calibrated-range': 'warning',
 };
 
-export type FlagUnit = 'µm' | 'fraction' | 'ratio';
+export type FlagUnit = 'µm' | '%' | 'fraction' | 'ratio';
 
 export interface Flag {
   /** Stable across re-runs of the same layout and settings (so waivers can refer to it). */
@@ -48,6 +53,8 @@ export interface Flag {
   unit: FlagUnit;
   /** One or two plain sentences: what was found, why it matters, what to consider. */
   message: string;
+  /** The limit lies within the prediction's uncertainty band: the flag may or may not be real. */
+  uncertain?: boolean;
 }
 
 export type SeverityMap = Partial<Record<FlagKind, Severity>>;
@@ -88,6 +95,8 @@ export interface FeatureCheckInput {
   overEtchUm: number;
   /** Calibration excursions of this prediction; empty when inside the calibrated range or when the model has none. */
   excursions: RangeExcursion[];
+  /** Standard deviation of depthUm from the calibration, µm; null/absent without one. */
+  depthSigmaUm?: number | null;
 }
 
 /** Aspect ratio the opening must reach to meet the target: target depth / width. */
@@ -112,7 +121,7 @@ export function featureFlags(f: FeatureCheckInput, limits: ResolvedLimits, sever
 /** featureFlags, delivering to a sink (see FlagSink). */
 export function featureFlagsInto(sink: FlagSink, f: FeatureCheckInput, limits: ResolvedLimits, severities?: SeverityMap): void {
   const where = () => `Opening #${f.featureId} (${f.shape}, ${fmt(f.widthUm)} µm wide)`;
-  const emit = (kind: FlagKind, measured: number, limit: number, unit: FlagUnit, message: () => string, id = `${kind}:f${f.featureId}`) => {
+  const emit = (kind: FlagKind, measured: number, limit: number, unit: FlagUnit, message: () => string, id = `${kind}:f${f.featureId}`, uncertain = false) => {
     const severity = severityOf(kind, severities);
     sink.offer(id, kind, severity, measured, limit, () => ({
       id,
@@ -126,15 +135,28 @@ export function featureFlagsInto(sink: FlagSink, f: FeatureCheckInput, limits: R
       limit,
       unit,
       message: message(),
+      ...(uncertain ? { uncertain: true } : {}),
     }));
   };
 
   const minDepth = limits.targetDepthUm - limits.toleranceUm;
   if (f.depthUm < minDepth) {
-    emit('under-target-depth', f.depthUm, minDepth, 'µm', () =>
-      `${where()} is predicted to reach ${fmt(f.depthUm)} µm, short of the ${fmt(limits.targetDepthUm)} µm target by ` +
-      `${fmt(limits.targetDepthUm - f.depthUm)} µm (tolerance ${fmt(limits.toleranceUm)} µm). Narrow and densely packed openings ` +
-      `etch slower; consider widening it, or a longer etch if the wider openings can take the extra over-etch.`,
+    const band = f.depthSigmaUm ? DEPTH_BAND_K * f.depthSigmaUm : 0;
+    const uncertain = band > 0 && f.depthUm + band >= minDepth;
+    emit(
+      'under-target-depth',
+      f.depthUm,
+      minDepth,
+      'µm',
+      () =>
+        `${where()} is predicted to reach ${fmt(f.depthUm)} µm${band > 0 ? ` (± ${fmt(band)} µm, 95 % band from the calibration)` : ''}, short of the ` +
+        `${fmt(limits.targetDepthUm)} µm target by ${fmt(limits.targetDepthUm - f.depthUm)} µm (tolerance ${fmt(limits.toleranceUm)} µm). ` +
+        (uncertain
+          ? 'Uncertain: the limit lies inside the prediction\u2019s uncertainty band, so the calibration data cannot tell whether it reaches the target; measure a test structure of this width. '
+          : '') +
+        `Narrow and densely packed openings etch slower; consider widening it, or a longer etch if the wider openings can take the extra over-etch.`,
+      undefined,
+      uncertain,
     );
   }
 
@@ -165,11 +187,13 @@ export function featureFlagsInto(sink: FlagSink, f: FeatureCheckInput, limits: R
     const below = e.value < e.min;
     const label = e.quantity === 'aspect-ratio' ? 'aspect ratio' : e.quantity === 'density' ? 'effective density' : 'width';
     const show = (v: number) => (e.unit === 'fraction' ? pct(v) : e.unit === 'µm' ? `${fmt(v)} µm` : `${fmt(v)}:1`);
+    // Densities are reported in percent like every other density flag.
+    const asPct = e.unit === 'fraction';
     emit(
       'outside-calibrated-range',
-      e.value,
-      below ? e.min : e.max,
-      e.unit,
+      asPct ? e.value * 100 : e.value,
+      (below ? e.min : e.max) * (asPct ? 100 : 1),
+      asPct ? '%' : e.unit,
       () =>
         `${where()}: its ${label} of ${show(e.value)} is ${below ? 'below' : 'above'} the range the model was calibrated on ` +
         `(${show(e.min)} to ${show(e.max)}), so its predicted depth is an extrapolation. Add test structures of this size to the calibration.`,
@@ -278,9 +302,9 @@ export function windowDensityFlags(w: WindowSetInput, limits: Pick<ResolvedLimit
         xUm: (b[0] + b[2]) / 2,
         yUm: (b[1] + b[3]) / 2,
         window: { windowUm: w.windowUm, stepUm: w.stepUm },
-        measured: v,
-        limit: rule.limit,
-        unit: 'fraction',
+        measured: v * 100,
+        limit: rule.limit * 100,
+        unit: '%',
         message:
           `${count} of the ${windowLabel(w)} ${group.length === 1 ? 'has' : 'have'} open-area density ${below ? 'below' : 'above'} the ` +
           `${pct(rule.limit)} ${below ? 'minimum' : 'maximum'} (worst ${pct(v)}). ` +
@@ -339,9 +363,9 @@ export function densityGradientFlags(w: WindowSetInput, maxGradient: number | nu
       xUm: (bw[0] + bw[2] + bb[0] + bb[2]) / 4,
       yUm: (bw[1] + bw[3] + bb[1] + bb[3]) / 4,
       window: { windowUm: w.windowUm, stepUm: w.stepUm },
-      measured: d,
-      limit: maxGradient,
-      unit: 'fraction',
+      measured: d * 100,
+      limit: maxGradient * 100,
+      unit: '%',
       message:
         `Open-area density of the ${windowLabel(w)} changes by ${pct(d)} between neighbouring windows, more than the ` +
         `${pct(maxGradient)} allowed. Etch rate follows local density, so depth changes across this boundary; ` +
@@ -351,76 +375,4 @@ export function densityGradientFlags(w: WindowSetInput, maxGradient: number | nu
   return out;
 }
 
-// ---------------------------------------------------------------------------------------------------------------
-// Collecting: counts cover every flag; the list keeps the worst `cap`.
-
-const SEVERITY_RANK: Record<Severity, number> = { error: 0, warning: 1, info: 2 };
-
-/** How far beyond its limit a value is, relative to the limit (bigger = worse); used to rank within a severity. */
-export function exceedanceOf(measured: number, limit: number): number {
-  const scale = Math.abs(limit) > 1e-12 ? Math.abs(limit) : 1;
-  return Math.abs(measured - limit) / scale;
-}
-
-export function exceedance(f: Flag): number {
-  return exceedanceOf(f.measured, f.limit);
-}
-
-type RankKey = { severity: Severity; ex: number; id: string };
-
-function compareKeys(a: RankKey, b: RankKey): number {
-  return SEVERITY_RANK[a.severity] - SEVERITY_RANK[b.severity] || b.ex - a.ex || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0);
-}
-
-export function compareFlags(a: Flag, b: Flag): number {
-  return compareKeys({ severity: a.severity, ex: exceedance(a), id: a.id }, { severity: b.severity, ex: exceedance(b), id: b.id });
-}
-
-export type FlagCounts = Record<FlagKind, Record<Severity, number>>;
-
-export function emptyFlagCounts(): FlagCounts {
-  const counts = {} as FlagCounts;
-  for (const k of Object.keys(DEFAULT_SEVERITY) as FlagKind[]) counts[k] = { error: 0, warning: 0, info: 0 };
-  return counts;
-}
-
-/**
- * Keeps counts of every flag and the `cap` worst flags (bounded memory for layouts with millions of openings).
- * Once `cap` flags are kept, a flag ranking below the current cut is counted but never built.
- */
-export class FlagCollector implements FlagSink {
-  readonly counts: FlagCounts = emptyFlagCounts();
-  total = 0;
-  private kept: (RankKey & { flag: Flag })[] = [];
-  /** Rank of the worst kept flag after the last trim (null until `cap` flags were kept). */
-  private cut: RankKey | null = null;
-  constructor(private readonly cap: number) {}
-
-  offer(id: string, kind: FlagKind, severity: Severity, measured: number, limit: number, build: () => Flag): void {
-    this.counts[kind][severity]++;
-    this.total++;
-    const key = { severity, ex: exceedanceOf(measured, limit), id };
-    if (this.cut && compareKeys(key, this.cut) >= 0) return;
-    this.kept.push({ ...key, flag: build() });
-    if (this.kept.length >= 2 * this.cap) this.trim();
-  }
-
-  add(flags: Iterable<Flag>): void {
-    for (const f of flags) this.offer(f.id, f.kind, f.severity, f.measured, f.limit, () => f);
-  }
-
-  private trim(): void {
-    this.kept.sort(compareKeys);
-    if (this.kept.length >= this.cap) {
-      this.kept.length = this.cap;
-      const last = this.kept[this.cap - 1] as RankKey;
-      this.cut = { severity: last.severity, ex: last.ex, id: last.id };
-    }
-  }
-
-  /** The kept flags, worst first (errors, then warnings, then info; within each, furthest beyond its limit first). */
-  list(): Flag[] {
-    this.trim();
-    return this.kept.map((k) => k.flag);
-  }
-}
+export { compareFlags, emptyFlagCounts, exceedance, exceedanceOf, FlagCollector, type FlagCounts } from './flag-collector';

@@ -36,6 +36,7 @@ export const GRID_KINDS = [
   'aspect-ratio',
   'predicted-depth',
   'risk',
+  'depth-uncertainty',
 ] as const;
 export type GridKind = (typeof GRID_KINDS)[number];
 export type GridUnit = 'fraction' | 'um' | 'ratio' | 'score';

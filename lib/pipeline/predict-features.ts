@@ -10,9 +10,16 @@
  * string key and a million-entry map (measured in bench/prediction.bench.ts); cyclic mode keeps one.
  * Predictions come from createFeaturePredictor (tables built once per model; agrees with predictFeature to ~1e-8
  * relative, tests/etch/fast-predict.test.ts). Empty warning/excursion lists are one shared frozen array each.
+ *
+ * Notes: the model's per-opening warnings are reduced to number-free notes (noteOf), so the summary lists each kind
+ * of note once with its count instead of once per distinct depth; the numbers are in the opening's own fields.
+ * Calibrated-range warnings are left to `excursions`, which carry the values.
+ *
+ * Uncertainty: with a calibrated model that records its parameter covariance, each opening gets depthSigmaUm, the
+ * standard deviation of its predicted depth (lib/etch/uncertainty.ts); null otherwise.
  */
 import type { Feature, Grid } from '../geometry';
-import { createFeaturePredictor, type FeaturePrediction, type ProcessModel } from '../etch';
+import { createDepthUncertainty, createFeaturePredictor, type FeaturePrediction, type ProcessModel } from '../etch';
 import type { RangeExcursion } from './flags';
 
 export type ModelKind = 'trench' | 'hole';
@@ -47,6 +54,8 @@ export interface FeatureResult {
   overEtchUm: number;
   timeToTargetMin: number | null;
   reachesTarget: boolean;
+  /** Standard deviation of depthUm from the calibration's parameter covariance, µm; null for a model without one. */
+  depthSigmaUm: number | null;
   maskRemainingUm: number | null;
   stopped: boolean;
   warnings: string[];
@@ -82,6 +91,37 @@ export function excursionsOf(range: CalibratedRange | null, widthUm: number, asp
   return out.length === 0 ? NO_EXCURSIONS : out;
 }
 
+const NOTE_FORMS: [RegExp, string][] = [
+  [/^etch stops at the model's maximum aspect ratio ([\d.e+-]+).*$/, "etch stops at the model's maximum aspect ratio $1 before the end of the etch"],
+  [/^etch stops where the rate falls below ([\d.e+-]+) of the open rate.*$/, 'etch stops where the rate falls below $1 of the open rate'],
+  [/^depth exceeds target \+ tolerance by .*$/, 'predicted depth exceeds target + tolerance (timed etch, no stop layer)'],
+  [/^over-etch .* exceeds the stop layer thickness .*$/, 'over-etch exceeds the stop-layer thickness: breaks through'],
+  [/^mask consumed after .*$/, 'mask consumed before the end of the etch'],
+  [/^aspect ratio .* is beyond 100, .*$/, 'aspect ratio beyond 100, where the transmission values were validated'],
+];
+const RANGE_NOTE = / is outside the calibrated range /;
+
+/**
+ * The per-opening notes of a prediction without per-opening numbers (one shared string per distinct note, so a
+ * million openings share a handful of strings); calibrated-range notes are dropped (excursions carry them).
+ */
+export function notesOf(warnings: readonly string[], cache: Map<string, string>): string[] {
+  if (warnings.length === 0) return warnings as string[];
+  const out: string[] = [];
+  for (const w of warnings) {
+    if (RANGE_NOTE.test(w)) continue;
+    let note = cache.get(w);
+    if (note === undefined) {
+      note = w;
+      for (const [re, form] of NOTE_FORMS) if (re.test(w)) note = w.replace(re, form);
+      cache.set(w, note);
+    }
+    if (!out.includes(note)) out.push(note);
+  }
+  return out.length === 0 ? NO_NOTES : out;
+}
+const NO_NOTES: string[] = Object.freeze([]) as unknown as string[];
+
 export interface PredictOptions {
   /** Global open fraction of the die (passed as the model's exposed fraction: assumes the wafer is tiled with this die). */
   exposedFraction: number;
@@ -92,6 +132,9 @@ export interface PredictOptions {
 
 export function predictFeatures(features: Feature[], effective: Float32Array, grid: Grid, model: ProcessModel, opts: PredictOptions): FeatureResult[] {
   const predict = createFeaturePredictor(model);
+  const uncertainty = createDepthUncertainty(model);
+  const sigmaCache = new Map<string, number>();
+  const noteCache = new Map<string, string>();
   // Cyclic mode steps every cycle (~10 µs per opening), so repeated openings are predicted once there.
   const cache = model.mode === 'cyclic' ? new Map<string, FeaturePrediction>() : null;
   const meanWidthNote = 'no measurable smallest width: the mean width 2·area/perimeter was used';
@@ -116,6 +159,16 @@ export function predictFeatures(features: Feature[], effective: Float32Array, gr
     } else {
       p = predict({ widthUm, kind: modelKind, effectiveDensity: rho, exposedFraction: opts.exposedFraction });
     }
+    let depthSigmaUm: number | null = null;
+    if (uncertainty) {
+      // Repeated openings (same kind, width, density) are common: evaluate their σ once.
+      const key = `${modelKind}|${widthUm}|${rho}`;
+      depthSigmaUm = sigmaCache.get(key) ?? null;
+      if (depthSigmaUm === null) {
+        depthSigmaUm = uncertainty.sigmaUm({ widthUm, kind: modelKind, effectiveDensity: rho, exposedFraction: opts.exposedFraction });
+        if (sigmaCache.size < 200_000) sigmaCache.set(key, depthSigmaUm);
+      }
+    }
     out[n] = {
       id: f.id,
       shape: f.kind,
@@ -132,9 +185,10 @@ export function predictFeatures(features: Feature[], effective: Float32Array, gr
       overEtchUm: p.overEtchUm,
       timeToTargetMin: p.timeToTargetMin,
       reachesTarget: p.reachesTarget,
+      depthSigmaUm,
       maskRemainingUm: p.maskRemainingUm,
       stopped: p.stopped,
-      warnings: measurable ? p.warnings : [...p.warnings, meanWidthNote],
+      warnings: measurable ? notesOf(p.warnings, noteCache) : [...notesOf(p.warnings, noteCache), meanWidthNote],
       excursions: excursionsOf(range, widthUm, p.aspectRatio, rho),
     };
   }

@@ -12,6 +12,8 @@
  * Painting: a pixel with any open area takes the value of the smallest-area feature whose bounding box contains
  * it (features painted largest first); other pixels are NaN ("no opening"). Exact for separate rectangles and holes;
  * where bounding boxes of different openings overlap (L-shapes, frames around holes) the smaller opening wins.
+ * The depth-uncertainty map (σ of the predicted depth from the calibration, µm) is painted the same way, only when
+ * the model carries a calibration covariance (otherwise null).
  */
 import type { Grid } from '../geometry';
 import { requiredAspectRatio } from './flags';
@@ -33,6 +35,8 @@ export interface FeatureMaps {
   aspectRatio: Float32Array;
   predictedDepth: Float32Array;
   risk: Float32Array;
+  /** σ of the predicted depth, µm; null when no opening has one (uncalibrated model). */
+  depthSigma: Float32Array | null;
 }
 
 export function paintFeatureMaps(results: FeatureResult[], risks: Float64Array, coverage: Float32Array, grid: Grid): FeatureMaps {
@@ -40,6 +44,7 @@ export function paintFeatureMaps(results: FeatureResult[], risks: Float64Array, 
   const aspectRatio = new Float32Array(n).fill(Number.NaN);
   const predictedDepth = new Float32Array(n).fill(Number.NaN);
   const risk = new Float32Array(n).fill(Number.NaN);
+  const depthSigma = results.some((f) => f.depthSigmaUm !== null) ? new Float32Array(n).fill(Number.NaN) : null;
   const order = results.map((_, k) => k).sort((a, b) => (results[b] as FeatureResult).areaUm2 - (results[a] as FeatureResult).areaUm2);
   const { x0Um, y0Um, pixelUm, nx, ny } = grid;
   for (const k of order) {
@@ -50,6 +55,7 @@ export function paintFeatureMaps(results: FeatureResult[], risks: Float64Array, 
     const j0 = Math.max(0, Math.floor((by0 - y0Um) / pixelUm));
     const j1 = Math.min(ny - 1, Math.ceil((by1 - y0Um) / pixelUm) - 1);
     const r = risks[k] as number;
+    const sigma = f.depthSigmaUm ?? Number.NaN;
     for (let j = j0; j <= j1; j++) {
       for (let i = i0; i <= i1; i++) {
         const p = j * nx + i;
@@ -57,8 +63,9 @@ export function paintFeatureMaps(results: FeatureResult[], risks: Float64Array, 
         aspectRatio[p] = f.aspectRatio;
         predictedDepth[p] = f.depthUm;
         risk[p] = r;
+        if (depthSigma) depthSigma[p] = sigma;
       }
     }
   }
-  return { aspectRatio, predictedDepth, risk };
+  return { aspectRatio, predictedDepth, risk, depthSigma };
 }

@@ -161,7 +161,7 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
     const r = results[k] as FeatureResult;
     featureFlagsInto(
       collector,
-      { featureId: r.id, shape: r.shape, modelKind: r.modelKind, bboxUm: r.bboxUm, centroidUm: r.centroidUm, widthUm: r.widthUm, depthUm: r.depthUm, overEtchUm: r.overEtchUm, excursions: r.excursions },
+      { featureId: r.id, shape: r.shape, modelKind: r.modelKind, bboxUm: r.bboxUm, centroidUm: r.centroidUm, widthUm: r.widthUm, depthUm: r.depthUm, overEtchUm: r.overEtchUm, excursions: r.excursions, depthSigmaUm: r.depthSigmaUm },
       limits,
       sev,
     );
@@ -254,5 +254,6 @@ function buildMaps(
     { kind: 'aspect-ratio', unit: 'ratio', grid, meta: { ...model, nan: 'no opening', definition: 'predicted depth / width' }, values: painted.aspectRatio },
     { kind: 'predicted-depth', unit: 'um', grid, meta: { ...model, nan: 'no opening' }, values: painted.predictedDepth },
     { kind: 'risk', unit: 'score', grid, meta: { ...model, nan: 'no opening', scale: '1 = at a limit' }, values: painted.risk },
+    ...(painted.depthSigma ? [{ kind: 'depth-uncertainty', unit: 'um', grid, meta: { ...model, nan: 'no opening', definition: 'standard deviation of the predicted depth from the calibration covariance; 95 % band = ±1.96 σ' }, values: painted.depthSigma } satisfies GridMap] : []),
   ];
 }

@@ -35,6 +35,7 @@ export function inventedResults(n: number, seed = 7): FeatureResult[] {
       aspectRatio: 40 / w,
       marginUm: rnd() * 10 - 5,
       overEtchUm: 0,
+      depthSigmaUm: k % 3 === 0 ? null : rnd() * 0.5,
       timeToTargetMin: null,
       reachesTarget: rnd() > 0.3,
       maskRemainingUm: null,
@@ -58,15 +59,15 @@ export function saveAsRows(db: Db, analysisId: string, results: FeatureResult[])
   const num = (v: number) => (Number.isNaN(v) ? 0 : v);
   const ins = db.$client.prepare(
     `INSERT INTO analysis_features (analysis_id, feature_id, shape, model_kind, x_um, y_um, x0_um, y0_um, x1_um, y1_um, area_um2,
-      width_um, length_um, effective_density, depth_um, aspect_ratio, margin_um, over_etch_um, reaches_target, warnings)
-      VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)`,
+      width_um, length_um, effective_density, depth_um, aspect_ratio, margin_um, over_etch_um, reaches_target, warnings, depth_sigma_um)
+      VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)`,
   );
   db.$client.transaction(() => {
     for (const r of results) {
       const [x0, y0, x1, y1] = r.bboxUm;
       ins.run(analysisId, r.id, r.shape, r.modelKind, r.centroidUm[0], r.centroidUm[1], x0, y0, x1, y1, num(r.areaUm2), num(r.widthUm), num(r.lengthUm),
         num(r.effectiveDensity), num(r.depthUm), num(r.aspectRatio), num(r.marginUm), num(r.overEtchUm), r.reachesTarget ? 1 : 0,
-        [...r.warnings, ...r.excursions.map((e) => `${e.quantity} outside the calibrated range`)].join('; '));
+        [...r.warnings, ...r.excursions.map((e) => `${e.quantity} outside the calibrated range`)].join('; '), r.depthSigmaUm);
     }
   })();
 }

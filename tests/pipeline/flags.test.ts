@@ -96,10 +96,12 @@ describe('featureFlags', () => {
     );
     expect(flags.map((f) => [f.kind, f.severity, f.limit])).toEqual([
       ['outside-calibrated-range', 'warning', 10],
-      ['outside-calibrated-range', 'warning', 0.5],
+      ['outside-calibrated-range', 'warning', 50],
     ]);
     expect(new Set(flags.map((f) => f.id)).size).toBe(2);
-    expect((flags[1] as Flag).message).toMatch(/above the range the model was calibrated on/);
+    // Densities are reported in percent, in the numbers and in the words (issue 14: % everywhere).
+    expect(flags[1]).toMatchObject({ measured: 90, unit: '%' });
+    expect((flags[1] as Flag).message).toMatch(/effective density of 90 % is above the range the model was calibrated on \(0 % to 50 %\)/);
   });
 
   it('severity overrides apply per kind', () => {
@@ -121,16 +123,18 @@ describe('windowDensityFlags', () => {
   it('below-min and above-max trigger just past the limits, with the window box and centre', () => {
     const flags = windowDensityFlags(windowSet([under(0.2), 0.3, 0.3, 0.3, 0.3, ulp(0.6)]), limits);
     expect(flags.map((f) => [f.kind, f.severity, f.bboxUm, f.xUm, f.yUm, f.unit])).toEqual([
-      ['window-density-below-min', 'error', [0, 0, 100, 100], 50, 50, 'fraction'],
-      ['window-density-above-max', 'error', [200, 100, 300, 200], 250, 150, 'fraction'],
+      ['window-density-below-min', 'error', [0, 0, 100, 100], 50, 50, '%'],
+      ['window-density-above-max', 'error', [200, 100, 300, 200], 250, 150, '%'],
     ]);
+    expect(flags[1]?.limit).toBeCloseTo(60, 12);
+    expect(flags[1]?.message).toMatch(/above the 60 % maximum \(worst 60 %\)/);
     expect(flags[0]?.window).toEqual({ windowUm: 100, stepUm: 100 });
   });
 
   it('neighbouring offending windows form one flag at the worst window; NaN windows are skipped', () => {
     const flags = windowDensityFlags(windowSet([0.1, 0.05, 0.3, NaN, 0.15, 0.3]), limits);
     expect(flags).toHaveLength(1);
-    expect(flags[0]).toMatchObject({ measured: 0.05, bboxUm: [0, 0, 200, 200], xUm: 150, yUm: 50 });
+    expect(flags[0]).toMatchObject({ measured: 5, bboxUm: [0, 0, 200, 200], xUm: 150, yUm: 50 });
     expect(flags[0]?.message).toMatch(/^3 neighbouring windows/);
   });
 
@@ -152,7 +156,7 @@ describe('densityGradientFlags', () => {
     const f = flags[0] as Flag;
     expect(f.kind).toBe('density-gradient-above-limit');
     expect(f.severity).toBe(DEFAULT_SEVERITY['density-gradient-above-limit']);
-    expect(f.measured).toBeCloseTo(0.25, 12);
+    expect(f.measured).toBeCloseTo(25, 12); // percent
     // worst pairs: (1,1)–(2,1) and (2,0)–(2,1), both 0.25; the group covers the three windows
     expect(f.bboxUm).toEqual([100, 0, 300, 200]);
   });

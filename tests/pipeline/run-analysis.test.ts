@@ -128,7 +128,7 @@ describe('runAnalysis flags from settings', () => {
     const dens = r.flags.filter((f) => f.kind === 'window-density-above-max');
     expect(dens).toHaveLength(1);
     expect(dens[0]!.bboxUm).toEqual([550, 300, 700, 700]);
-    expect(dens[0]!.measured).toBeCloseTo(0.2, 12);
+    expect(dens[0]!.measured).toBeCloseTo(20, 12); // percent
     expect(dens[0]!.message).toMatch(/^14 neighbouring windows/);
   });
 

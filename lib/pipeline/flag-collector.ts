@@ -1,0 +1,78 @@
+/**
+ * Collecting flags: counts cover every flag; the list keeps the worst `cap`, ranked by severity, then by how far
+ * beyond its limit each value is (relative to the limit), then by id.
+ */
+import type { Flag, FlagSink } from './flags';
+import { FLAG_KINDS, type FlagKind, type Severity } from './settings';
+
+
+const SEVERITY_RANK: Record<Severity, number> = { error: 0, warning: 1, info: 2 };
+
+/** How far beyond its limit a value is, relative to the limit (bigger = worse); used to rank within a severity. */
+export function exceedanceOf(measured: number, limit: number): number {
+  const scale = Math.abs(limit) > 1e-12 ? Math.abs(limit) : 1;
+  return Math.abs(measured - limit) / scale;
+}
+
+export function exceedance(f: Flag): number {
+  return exceedanceOf(f.measured, f.limit);
+}
+
+type RankKey = { severity: Severity; ex: number; id: string };
+
+function compareKeys(a: RankKey, b: RankKey): number {
+  return SEVERITY_RANK[a.severity] - SEVERITY_RANK[b.severity] || b.ex - a.ex || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0);
+}
+
+export function compareFlags(a: Flag, b: Flag): number {
+  return compareKeys({ severity: a.severity, ex: exceedance(a), id: a.id }, { severity: b.severity, ex: exceedance(b), id: b.id });
+}
+
+export type FlagCounts = Record<FlagKind, Record<Severity, number>>;
+
+export function emptyFlagCounts(): FlagCounts {
+  const counts = {} as FlagCounts;
+  for (const k of FLAG_KINDS) counts[k] = { error: 0, warning: 0, info: 0 };
+  return counts;
+}
+
+/**
+ * Keeps counts of every flag and the `cap` worst flags (bounded memory for layouts with millions of openings).
+ * Once `cap` flags are kept, a flag ranking below the current cut is counted but never built.
+ */
+export class FlagCollector implements FlagSink {
+  readonly counts: FlagCounts = emptyFlagCounts();
+  total = 0;
+  private kept: (RankKey & { flag: Flag })[] = [];
+  /** Rank of the worst kept flag after the last trim (null until `cap` flags were kept). */
+  private cut: RankKey | null = null;
+  constructor(private readonly cap: number) {}
+
+  offer(id: string, kind: FlagKind, severity: Severity, measured: number, limit: number, build: () => Flag): void {
+    this.counts[kind][severity]++;
+    this.total++;
+    const key = { severity, ex: exceedanceOf(measured, limit), id };
+    if (this.cut && compareKeys(key, this.cut) >= 0) return;
+    this.kept.push({ ...key, flag: build() });
+    if (this.kept.length >= 2 * this.cap) this.trim();
+  }
+
+  add(flags: Iterable<Flag>): void {
+    for (const f of flags) this.offer(f.id, f.kind, f.severity, f.measured, f.limit, () => f);
+  }
+
+  private trim(): void {
+    this.kept.sort(compareKeys);
+    if (this.kept.length >= this.cap) {
+      this.kept.length = this.cap;
+      const last = this.kept[this.cap - 1] as RankKey;
+      this.cut = { severity: last.severity, ex: last.ex, id: last.id };
+    }
+  }
+
+  /** The kept flags, worst first (errors, then warnings, then info; within each, furthest beyond its limit first). */
+  list(): Flag[] {
+    this.trim();
+    return this.kept.map((k) => k.flag);
+  }
+}

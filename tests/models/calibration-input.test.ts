@@ -1,0 +1,89 @@
+import { readFileSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { fitCalibration, parseCalibrationCsv, parseCalibrationCsvReport, parseProcessModel } from '@/lib/etch';
+import { testModel } from '../etch/helpers';
+
+const HEADER = 'width_um,kind,density,time_min,depth_um';
+
+describe('calibration CSV — every bad row named by its line', () => {
+  it('lists each bad row with its line number and keeps the good rows', () => {
+    const text = [
+      '# invented test data',
+      HEADER,
+      '2,trench,0.3,10,25', // line 3 good
+      '2,slot,0.3,10,25', // line 4 bad kind
+      '-1,trench,0.3,10,25', // line 5 bad width
+      '', // blank, skipped (line 6)
+      '4,hole,1.4,10,25', // line 7 density out of range
+      '4,hole,0.2,0,25', // line 8 time 0
+      '4,hole,0.2,10,abc', // line 9 depth not a number
+      '8,trench,0.2,10,30', // line 10 good
+    ].join('\n');
+    const r = parseCalibrationCsvReport(text);
+    expect(r.rows.map((x) => x.line)).toEqual([3, 10]);
+    expect(r.errors.map((e) => e.line)).toEqual([4, 5, 7, 8, 9]);
+    expect(r.errors[0]?.message).toBe('line 4: kind must be trench or hole, got "slot"');
+    expect(r.errors[1]?.message).toMatch(/^line 5: width_um must be a number > 0, got "-1"/);
+    expect(r.errors[2]?.message).toMatch(/^line 7: density must be a number in \[0, 1\]/);
+    expect(r.errors[3]?.message).toMatch(/^line 8: time_min must be a number > 0/);
+    expect(r.errors[4]?.message).toMatch(/^line 9: depth_um must be a number ≥ 0, got "abc"/);
+    // The throwing form stops at the first bad line.
+    expect(() => parseCalibrationCsv(text)).toThrow(/^line 4: kind/);
+  });
+  it('names a missing column on line 1, and a file without rows', () => {
+    expect(parseCalibrationCsvReport('width_um,kind,density,depth_um\n2,trench,0.3,25\n').errors).toEqual([{ line: 1, message: 'line 1: missing column(s) time_min (need width_um,kind,density,time_min,depth_um)' }]);
+    expect(parseCalibrationCsvReport('').errors[0]?.message).toMatch(/no data rows/);
+  });
+  it('names the line of broken quoting / a short row', () => {
+    const r = parseCalibrationCsvReport(`${HEADER}\n2,trench,0.3,10,25\n3,"trench,0.3,10,25\n`);
+    expect(r.rows).toEqual([]);
+    expect(r.errors[0]?.line).toBe(3);
+  });
+  it('caps the list at 100 errors and says so', () => {
+    const lines = [HEADER, ...Array.from({ length: 150 }, () => '2,slot,0.3,10,25')];
+    const r = parseCalibrationCsvReport(lines.join('\n'));
+    expect(r.errors).toHaveLength(100);
+    expect(r.errorsTruncated).toBe(true);
+  });
+});
+
+describe('underdetermined fits get a clear message', () => {
+  const base = testModel();
+  const rows = (spec: [number, number][]) => spec.map(([w, d], i) => ({ line: i + 2, widthUm: w, kind: 'trench' as const, density: 0.3, timeMin: 10, depthUm: d }));
+  it('one width cannot separate open rate from reaction probability', () => {
+    const r = fitCalibration(rows([[2, 10], [2, 11], [2, 12]]), { baseModel: base });
+    expect(r).toEqual({ ok: false, message: 'cannot calibrate: need at least two distinct widths to separate open rate from reaction probability' });
+  });
+  it('fewer rows than parameters + 1', () => {
+    const r = fitCalibration(rows([[2, 10], [4, 14]]), { baseModel: base });
+    expect(r.ok).toBe(false);
+    if (!r.ok) expect(r.message).toBe('cannot calibrate: need more measurements than fitted parameters (2 rows for 2 parameters; at least 3 rows)');
+  });
+  it('the loading coefficient needs a spread of densities', () => {
+    const r = fitCalibration(rows([[2, 10], [4, 14], [8, 17], [16, 19]]), { baseModel: base, fit: ['openRateUmPerMin', 'loadingCoefficient'] });
+    expect(r.ok).toBe(false);
+    if (!r.ok) expect(r.message).toMatch(/different local densities/);
+  });
+  it('nothing chosen to fit', () => {
+    const r = fitCalibration(rows([[2, 10], [4, 14]]), { baseModel: base, fit: [] });
+    expect(r.ok).toBe(false);
+    if (!r.ok) expect(r.message).toBe('cannot calibrate: nothing to fit: choose at least one parameter');
+  });
+});
+
+describe('the fit records its covariance in the model', () => {
+  it('demo CSV: covariance diagonal = squared standard errors, symmetric, and the model validates', () => {
+    const rows = parseCalibrationCsv(readFileSync(new URL('../../samples/calibration/demo-trench-lag.csv', import.meta.url), 'utf8'));
+    const base = parseProcessModel(JSON.parse(readFileSync(new URL('../../samples/models/deep-trench-continuous.json', import.meta.url), 'utf8')));
+    if (!base.ok) throw new Error('sample model invalid');
+    const fit = fitCalibration(rows, { baseModel: base.model, fit: ['openRateUmPerMin', 'reactionProbability'], date: '2026-12-02' });
+    if (!fit.ok) throw new Error(fit.message);
+    const cov = fit.model.calibration?.covariance;
+    expect(cov?.parameters).toEqual(['openRateUmPerMin', 'reactionProbability']);
+    expect(cov?.matrix[0]?.[0]).toBeCloseTo((fit.parameters.openRateUmPerMin?.standardError ?? 0) ** 2, 12);
+    expect(cov?.matrix[1]?.[1]).toBeCloseTo((fit.parameters.reactionProbability?.standardError ?? 0) ** 2, 12);
+    expect(cov?.matrix[0]?.[1]).toBeCloseTo(cov?.matrix[1]?.[0] ?? NaN, 15);
+    expect(fit.model.calibration?.residualStandardErrorUm).toBeCloseTo(fit.residualStandardErrorUm, 12);
+    expect(parseProcessModel(JSON.parse(JSON.stringify(fit.model))).ok).toBe(true);
+  });
+});
