@@ -5,14 +5,7 @@ export async function register(): Promise<void> {
   if (process.env.NEXT_PHASE === 'phase-production-build') return;
   // Security: a production server needs TRENCHANT_PUBLIC_URL (mail links never come from the Host header), and
   // every request carries its TCP peer address for the sign-in limits.
-  const { assertPublicUrlConfigured, PublicUrlError } = await import('./lib/http/public-url');
-  try {
-    assertPublicUrlConfigured();
-  } catch (error) {
-    if (!(error instanceof PublicUrlError)) throw error;
-    console.error(`[trenchant] refusing to start: ${error.message}`);
-    process.exit(1);
-  }
+  (await import('./lib/http/public-url')).exitUnlessPublicUrlConfigured();
   await (await import('./lib/http/client-address')).installPeerAddressHeader();
   const { bootstrap } = await import('./lib/data/bootstrap');
   await bootstrap();

@@ -136,7 +136,14 @@ export function FindingsTable(props: Props) {
                   </span>
                 </td>
                 <td className="py-2 pr-3 font-mono text-xs whitespace-nowrap">{x.atUm.map((v) => v.toFixed(1)).join(', ')}</td>
-                <td className="py-2 pr-3 font-mono text-xs whitespace-nowrap">{measuredText(x)}</td>
+                <td className="py-2 pr-3 font-mono text-xs whitespace-nowrap">
+                  {measuredText(x)}
+                  {x.uncertain ? (
+                    <span className="ml-1.5 rounded border border-warn/40 px-1 text-[10px] text-warn" title="The limit lies inside the prediction's uncertainty band: the model cannot tell pass from fail here." data-testid="uncertain-badge">
+                      uncertain
+                    </span>
+                  ) : null}
+                </td>
                 <td className="py-2 pr-3">
                   <StatusPill status={x.status} />
                   {x.events > 0 ? <span className="ml-1 text-[11px] text-ink-500">· {x.events} in thread</span> : null}

@@ -55,3 +55,14 @@ export function assertPublicUrlConfigured(): void {
   if (!isProduction()) return;
   mailBaseUrl();
 }
+
+/** Start-up guard (instrumentation.ts): without a usable public URL a production server stops with a message. */
+export function exitUnlessPublicUrlConfigured(): void {
+  try {
+    assertPublicUrlConfigured();
+  } catch (error) {
+    if (!(error instanceof PublicUrlError)) throw error;
+    console.error(`[trenchant] refusing to start: ${error.message}`);
+    process.exit(1);
+  }
+}

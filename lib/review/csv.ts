@@ -1,6 +1,6 @@
 /**
  * CSV export of findings: one row per finding with its review state, RFC 4180 quoting (csv-stringify), lengths
- * in µm and densities as fractions as stored. A header comment would break spreadsheet imports, so provenance
+ * in µm and densities in the unit stored with each row (% since flags report percent). A header comment would break spreadsheet imports, so provenance
  * (analysis, model, export time) goes in the columns of every row instead.
  */
 import { stringify } from 'csv-stringify/sync';

@@ -26,6 +26,8 @@ export type FindingItem = {
   message: string;
   featureId: number | null;
   widthUm: number | null;
+  /** The limit lies inside the prediction's uncertainty band (calibrated models); null = not assessed. */
+  uncertain: boolean | null;
   status: FindingStatus;
   assignee: { id: string; name: string } | null;
   waiver: { reason: string; approverName: string; at: string; carriedNote: string | null } | null;

@@ -40,7 +40,7 @@ const fmt = (v: number) => String(Number(v.toPrecision(4)));
 /** What crossed which limit: the grouping's "same cause". */
 export function causeOf(f: { kind: string; flagKey: string; limit: number; unit: string; windowUm: number | null; stepUm: number | null }): string {
   if (f.kind === 'outside-calibrated-range') return `${f.flagKey.split(':').at(-1) ?? ''} outside calibration`;
-  if (f.windowUm !== null && f.stepUm !== null) return `window ${fmt(f.windowUm)}/${fmt(f.stepUm)} µm, limit ${f.unit === 'fraction' ? `${fmt(f.limit * 100)} %` : fmt(f.limit)}`;
+  if (f.windowUm !== null && f.stepUm !== null) return `window ${fmt(f.windowUm)}/${fmt(f.stepUm)} µm, limit ${f.unit === 'fraction' ? `${fmt(f.limit * 100)} %` : f.unit === '%' ? `${fmt(f.limit)} %` : fmt(f.limit)}`;
   return `limit ${fmt(f.limit)} ${f.unit === 'ratio' ? ':1' : f.unit}`;
 }
 
@@ -83,6 +83,7 @@ function baseFindings(db: Db, analysis: AnalysisRow): { items: BaseItem[]; group
       message: f.message,
       featureId: f.featureId,
       widthUm: f.featureId !== null ? (widths.get(f.featureId) ?? null) : null,
+      uncertain: f.uncertain ?? null,
     }),
   );
   const entry = { items, groups: groupsOf(items) };
