@@ -6,6 +6,7 @@
 import { CORE_SCHEMAS, ERROR_RESPONSE_OBJECTS, SECURITY_SCHEMES } from './openapi/components';
 import { CORE_PATHS } from './openapi/paths-core';
 import { PIPELINE_PATHS, PIPELINE_SCHEMAS } from './openapi/paths-pipeline';
+import { VIEWER_PATHS } from './openapi/paths-viewer';
 import { HTTP_METHODS, type HttpMethod, type OpenApiDocument, type OperationObject } from './openapi/types';
 
 export type { HttpMethod, OpenApiDocument, OperationObject } from './openapi/types';
@@ -39,7 +40,7 @@ function buildDocument(): OpenApiDocument {
     servers: [{ url: API_BASE_PATH, description: 'This Trenchant instance' }],
     tags: TAGS,
     security: [{ bearerToken: [] }, { sessionCookie: [] }],
-    paths: { ...CORE_PATHS, ...PIPELINE_PATHS },
+    paths: { ...CORE_PATHS, ...PIPELINE_PATHS, ...VIEWER_PATHS },
     components: {
       securitySchemes: SECURITY_SCHEMES,
       schemas: { ...CORE_SCHEMAS, ...PIPELINE_SCHEMAS },
