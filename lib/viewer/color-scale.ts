@@ -108,3 +108,16 @@ export function gradientCss(name: ScaleName, stops = 16): string {
   }
   return `linear-gradient(to right, ${parts.join(', ')})`;
 }
+
+/** Coverage (open fraction 0..1) as a grey raster, premultiplied RGBA, for when polygons are too many to draw. */
+export function paintCoverage(values: ArrayLike<number>, nx: number, ny: number, out = new Uint8ClampedArray(nx * ny * 4)): Uint8ClampedArray {
+  for (let p = 0; p < nx * ny; p++) {
+    const v = values[p] as number;
+    const a = Number.isFinite(v) ? Math.min(1, Math.max(0, v)) * 0.85 : 0;
+    out[4 * p] = 40 * a;
+    out[4 * p + 1] = 44 * a;
+    out[4 * p + 2] = 60 * a;
+    out[4 * p + 3] = 255 * a;
+  }
+  return out;
+}
