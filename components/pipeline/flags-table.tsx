@@ -5,6 +5,7 @@ import { createColumnHelper, rowPaginationFeature, tableFeatures, useTable, type
 import { useState } from 'react';
 import { Button } from '@/components/ui/button';
 import { Card } from '@/components/ui/card';
+import { useFindingSelection } from '@/components/analysis/finding-selection';
 import { apiJson } from './api-client';
 
 type FlagItem = {
@@ -47,6 +48,7 @@ const noRows: FlagItem[] = [];
 export function FlagsTable({ analysisId }: { analysisId: string }) {
   const [pagination, setPagination] = useState<PaginationState>({ pageIndex: 0, pageSize: 25 });
   const [severity, setSeverity] = useState<string>('');
+  const { selected, select } = useFindingSelection();
   const query = useQuery({
     queryKey: ['analysis', analysisId, 'flags', pagination, severity],
     queryFn: () =>
@@ -103,7 +105,7 @@ export function FlagsTable({ analysisId }: { analysisId: string }) {
           </thead>
           <tbody>
             {table.getRowModel().rows.map((row) => (
-              <tr key={row.id} className="border-t border-wafer-200 align-top">
+              <tr key={row.id} className={`cursor-pointer border-t border-wafer-200 align-top ${selected?.flagId === row.original.key ? 'bg-copper-300/30' : ''}`} data-testid="flag-row" data-flag-key={row.original.key} onClick={() => select({ flagId: row.original.key, xUm: row.original.atUm[0], yUm: row.original.atUm[1], bboxUm: row.original.bboxUm, source: 'table' })}>
                 {row.getAllCells().map((cell) => (
                   <td key={cell.id} className="py-2 pr-4">
                     <table.FlexRender cell={cell} />

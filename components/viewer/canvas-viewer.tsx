@@ -357,7 +357,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
   const layers = info.data?.layers ?? [];
 
   return (
-    <div className="grid gap-3" data-testid="canvas-viewer" data-mode={mode} data-ready={ready && maps.length > 0 ? 'yes' : 'no'}>
+    <div className="grid gap-3" data-testid="canvas-viewer" data-mode={mode} data-ready={ready && maps.length > 0 ? 'yes' : 'no'} data-view={view ? JSON.stringify({ cx: view.cx, cy: view.cy, scale: view.scale, width: view.width, height: view.height }) : ''} data-selected={selected?.flagId ?? ''}>
       <div className="flex flex-wrap items-center gap-2 text-xs">
         <div className="flex flex-wrap gap-1" role="tablist" aria-label="map">
           {shownMaps.map((m) => (

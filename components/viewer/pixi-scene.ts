@@ -51,6 +51,8 @@ export class ViewerScene {
   private pending = 0;
   private selected: MarkFlag | null = null;
   private destroyed = false;
+  /** Replaced meshes; destroyed after the next frame so no bind group still points at their textures. */
+  private retired: MeshSimple[] = [];
   /** Duration of the last render() call, ms (for the benchmark). */
   lastRenderMs = 0;
 
@@ -106,7 +108,7 @@ export class ViewerScene {
       mesh.alpha = old.alpha;
       mesh.visible = old.visible;
       this.world.removeChild(old);
-      old.destroy({ texture: true, textureSource: true });
+      this.retired.push(old);
     }
     this.world.addChild(mesh);
     this.world.sortableChildren = true;
@@ -208,10 +210,16 @@ export class ViewerScene {
 
   private placeOverlay(): void {
     const v = this.view;
-    for (const { flag, g } of this.marks) {
+    // Declutter: one mark per 9-px cell, the most severe winning (marks are stored least severe first).
+    const taken = new Set<number>();
+    for (let k = this.marks.length - 1; k >= 0; k--) {
+      const { flag, g } = this.marks[k]!;
       const [sx, sy] = layoutToScreen(v, flag.xUm, flag.yUm);
       g.position.set(sx, sy);
-      g.visible = sx > -20 && sy > -20 && sx < v.width + 20 && sy < v.height + 20;
+      const inView = sx > -20 && sy > -20 && sx < v.width + 20 && sy < v.height + 20;
+      const cell = Math.floor(sx / 9) * 100_003 + Math.floor(sy / 9);
+      g.visible = inView && (!taken.has(cell) || flag.key === this.selected?.key);
+      if (g.visible) taken.add(cell);
     }
     const h = this.highlight;
     h.clear();
@@ -239,6 +247,7 @@ export class ViewerScene {
     const t = performance.now();
     this.app.render();
     this.lastRenderMs = performance.now() - t;
+    for (const m of this.retired.splice(0)) m.destroy({ texture: true, textureSource: true });
   }
 
   /** PNG of the current view (drawn now, so it matches what is on screen). */

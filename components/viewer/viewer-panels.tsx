@@ -55,6 +55,8 @@ export function MarkKey() {
   );
 }
 
+const unitText = (u: string) => (u === 'fraction' ? '' : u === 'um' ? 'µm' : u);
+
 export type ReadoutRow = { name: string; kind: string; value: number; unit: string; whatIf: boolean };
 
 export function Readout({ at, rows }: { at: [number, number] | null; rows: ReadoutRow[] }) {
@@ -70,11 +72,11 @@ export function Readout({ at, rows }: { at: [number, number] | null; rows: Reado
             <tr key={r.name} data-testid={`readout-${r.name}`} data-value={Number.isFinite(r.value) ? r.value : ''}>
               <td className="pr-2 font-sans text-ink-500">
                 {mapKindInfo(r.kind).label}
-                {r.name !== r.kind ? <span className="text-ink-400"> ({r.name.replace(`${r.kind}-`, '')})</span> : null}
+                {r.name !== r.kind ? <span className="text-ink-500"> ({r.name.replace(`${r.kind}-`, '')})</span> : null}
                 {r.whatIf ? ' *' : ''}
               </td>
               <td className="text-right text-ink-900">{at ? formatValue(r.value, r.unit) : '—'}</td>
-              <td className="pl-1 font-sans text-ink-500">{r.unit === 'fraction' ? '' : r.unit}</td>
+              <td className="pl-1 font-sans text-ink-500">{unitText(r.unit)}</td>
             </tr>
           ))}
         </tbody>
@@ -94,7 +96,7 @@ const SLIDERS: { key: keyof WhatIfParams; label: string; unit: string; min: numb
 /** Sliders as multiples of the stored value (κ as an absolute span, since it may be 0). */
 export function WhatIfPanel(props: { base: WhatIfParams; params: WhatIfParams; onChange: (p: WhatIfParams) => void; onReset: () => void; active: boolean; status: string }) {
   return (
-    <div className={`rounded border p-3 text-xs ${props.active ? 'border-copper-600 bg-copper-50/40' : 'border-wafer-200 bg-white'}`} data-testid="whatif-panel">
+    <div className={`rounded border p-3 text-xs ${props.active ? 'border-copper-600 bg-copper-300/15' : 'border-wafer-200 bg-white'}`} data-testid="whatif-panel">
       <p className="font-semibold text-ink-900">What-if (in the browser, not saved)</p>
       {SLIDERS.map((s) => {
         const base = props.base[s.key];
@@ -107,7 +109,7 @@ export function WhatIfPanel(props: { base: WhatIfParams; params: WhatIfParams; o
             <span className="flex justify-between text-ink-700">
               <span>{s.label}</span>
               <span className="font-mono" data-testid={`whatif-value-${s.key}`}>
-                {Number(v.toPrecision(4))} {s.unit} {v !== base ? <span className="text-ink-400">(stored {Number(base.toPrecision(4))})</span> : null}
+                {Number(v.toPrecision(4))} {s.unit} {v !== base ? <span className="text-ink-500">(stored {Number(base.toPrecision(4))})</span> : null}
               </span>
             </span>
             <input type="range" className="w-full" min={lo} max={hi} step={(hi - lo) / 200} value={v} onChange={(e) => props.onChange({ ...props.params, [s.key]: Number(e.target.value) })} data-testid={`whatif-${s.key}`} />

@@ -28,5 +28,5 @@ export function formatValue(v: number, unit: string): string {
   if (!Number.isFinite(v)) return '—';
   const a = Math.abs(v);
   const s = a !== 0 && (a < 1e-3 || a >= 1e5) ? v.toExponential(3) : v.toPrecision(4);
-  return unit === 'fraction' ? `${s} (${(v * 100).toFixed(1)} %)` : s;
+  return unit === 'fraction' ? `${(v * 100).toPrecision(3)} %` : s;
 }
