@@ -10,6 +10,7 @@ import { decodeGrid, type GridMap } from '@/lib/pipeline/grid-file';
 import { finiteRange, paintCoverage, paintRaster } from '@/lib/viewer/color-scale';
 import { mapKindInfo, sampleAt } from '@/lib/viewer/map-kinds';
 import { fitView, focusOn, layoutToScreen, panBy, scaleBar, screenToLayout, visibleBox, zoomAbout, type BoxUm, type View } from '@/lib/viewer/view-transform';
+import type { LayerMesh } from '@/lib/viewer/polygon-mesh';
 import { paramsOf, type WhatIfParams } from '@/lib/viewer/whatif';
 import type { ViewerInfo } from '@/lib/viewer/viewer-source';
 import { hitMark, type MarkFlag } from './flag-marks';
@@ -24,6 +25,7 @@ const HEIGHT = 560;
 type MapInfo = { name: string; kind: string; unit: string; url: string };
 type ApiFlag = { key: string; kind: string; severity: MarkFlag['severity']; bboxUm: [number, number, number, number]; atUm: [number, number]; measured: number; limit: number; unit: string; message: string };
 type LoadedMap = { info: MapInfo; grid: GridMap };
+type PolygonReply = { id: number; ok: boolean; error?: string; total: number; returned: number; originX: number; originY: number; meshes: LayerMesh[] };
 
 const toMark = (f: ApiFlag): MarkFlag => ({ id: f.key, key: f.key, kind: f.kind, severity: f.severity, xUm: f.atUm[0], yUm: f.atUm[1], bboxUm: f.bboxUm, message: f.message, measured: f.measured, limit: f.limit, unit: f.unit });
 const flagMark = (f: Flag): MarkFlag => ({ id: f.id, key: f.id, kind: f.kind, severity: f.severity, xUm: f.xUm, yUm: f.yUm, bboxUm: f.bboxUm, message: f.message, measured: f.measured, limit: f.limit, unit: f.unit });
@@ -88,6 +90,11 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
     sceneRef.current?.setView(v);
     setViewState(v);
   }, []);
+  // Hook for the by-hand benchmark (bench/viewer.bench.ts) only: ?bench=1 exposes the view and the scene.
+  useEffect(() => {
+    if (!ready || new URLSearchParams(window.location.search).get('bench') !== '1') return;
+    (window as unknown as Record<string, unknown>).__trenchantViewer = { scene: sceneRef.current, applyView, view: () => viewRef.current };
+  }, [ready, applyView]);
 
   const fit = useCallback(() => {
     const host = hostRef.current;
@@ -182,33 +189,39 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
     const st = polyState.current;
     const vb = visibleBox(view);
     if (st.box && contains(st.box, vb)) return; // polygons already cover the view
-    if (st.tooMany && contains(st.tooMany, vb) && area(vb) * 4 >= area(st.tooMany) * 0.5) return; // still too many here
+    if (st.tooMany && contains(st.tooMany, vb) && area(vb) >= area(st.tooMany) * 0.5) return; // still too many here
     const timer = setTimeout(() => {
-      // Small layouts: everything at once. Otherwise the view grown by half its size on each side (fewer refetches while panning).
+      // Small layouts: everything at once. Otherwise the view grown by half its size on each side (fewer
+      // refetches while panning); when that holds too many, the view alone; when that does too, the raster.
       const whole = info.data.polygonCount <= POLYGON_BUDGET;
       const gx = (vb[2] - vb[0]) / 2;
       const gy = (vb[3] - vb[1]) / 2;
-      const box: BoxUm = whole ? info.data.dieBboxUm : [vb[0] - gx, vb[1] - gy, vb[2] + gx, vb[3] + gy];
-      const id = ++st.seq;
-      w.onmessage = (e: MessageEvent<{ id: number; ok: boolean; error?: string; total: number; returned: number; originX: number; originY: number; meshes: import('@/lib/viewer/polygon-mesh').LayerMesh[] }>) => {
-        if (e.data.id !== st.seq) return;
-        const s = sceneRef.current;
-        if (!s || !e.data.ok) return setMode('raster');
-        if (e.data.returned > 0 || e.data.total === 0) {
-          st.box = whole ? [-Infinity, -Infinity, Infinity, Infinity] : box;
-          st.tooMany = null;
-          s.setPolygons(e.data.meshes, e.data.originX, e.data.originY, hiddenLayers);
-          s.setPolygonMode(true);
-          setMode('polygons');
-        } else {
-          st.box = null;
-          st.tooMany = box;
-          s.setPolygons([], 0, 0, hiddenLayers);
-          s.setPolygonMode(false);
-          setMode('raster');
-        }
+      const grown: BoxUm = whole ? info.data.dieBboxUm : [vb[0] - gx, vb[1] - gy, vb[2] + gx, vb[3] + gy];
+      const ask = (box: BoxUm, fallback: BoxUm | null) => {
+        const id = ++st.seq;
+        w.onmessage = (e: MessageEvent<PolygonReply>) => {
+          if (e.data.id !== st.seq) return;
+          const s = sceneRef.current;
+          if (!s || !e.data.ok) return setMode('raster');
+          if (e.data.returned > 0 || e.data.total === 0) {
+            st.box = whole ? [-Infinity, -Infinity, Infinity, Infinity] : box;
+            st.tooMany = null;
+            s.setPolygons(e.data.meshes, e.data.originX, e.data.originY, hiddenLayers);
+            s.setPolygonMode(true);
+            setMode('polygons');
+          } else if (fallback) {
+            ask(fallback, null);
+          } else {
+            st.box = null;
+            st.tooMany = box;
+            s.setPolygons([], 0, 0, hiddenLayers);
+            s.setPolygonMode(false);
+            setMode('raster');
+          }
+        };
+        w.postMessage({ id, url: `${base}/polygons?box=${box.map((v) => v.toFixed(3)).join(',')}&max=${POLYGON_BUDGET}` });
       };
-      w.postMessage({ id, url: `${base}/polygons?box=${box.map((v) => v.toFixed(3)).join(',')}&max=${POLYGON_BUDGET}` });
+      ask(grown, whole ? null : vb);
     }, 120);
     return () => clearTimeout(timer);
     // hiddenLayers is applied through setLayerVisible below

@@ -4,7 +4,7 @@ import type { ProcessModel } from '@/lib/etch/process-model';
 import type { Flag, SeverityMap } from '@/lib/pipeline/flags';
 import type { ResolvedLimits } from '@/lib/pipeline/settings';
 import { decodeFeatures, type WireFeatures } from '@/lib/viewer/feature-wire';
-import { ownerMap, PredictorCache, runWhatIf, spread, type WhatIfParams } from '@/lib/viewer/whatif';
+import { ownerMap, PredictorCache, runWhatIf, spread, uniqueInputs, type WhatIfParams } from '@/lib/viewer/whatif';
 
 export type WhatIfInit = {
   type: 'init';
@@ -35,6 +35,7 @@ self.onmessage = async (e: MessageEvent<WhatIfInit | WhatIfRun>) => {
       const res = await fetch(init.featuresUrl, { credentials: 'same-origin' });
       if (!res.ok) throw new Error(`per-opening data: HTTP ${res.status}`);
       features = decodeFeatures(new Uint8Array(await res.arrayBuffer()));
+      uniqueInputs(features); // once, so slider moves only predict
       owner = init.coverage && init.grid ? ownerMap(features, init.coverage, init.grid) : null;
       const storedMargin = owner ? spread(owner, features.marginUm) : null;
       post({ type: 'ready', count: features.count, storedMargin }, storedMargin ? [storedMargin.buffer as ArrayBuffer] : []);

@@ -72,6 +72,40 @@ export class PredictorCache {
 
 const MODEL_KIND = ['trench', 'hole'] as const;
 
+/** Distinct (kind, width, density) inputs and which one each opening uses: repeated openings are predicted once. */
+export interface UniqueInputs {
+  of: Uint32Array;
+  kind: Uint8Array;
+  widthUm: Float64Array;
+  density: Float64Array;
+}
+const uniqueCache = new WeakMap<WireFeatures, UniqueInputs>();
+
+export function uniqueInputs(f: WireFeatures): UniqueInputs {
+  const hit = uniqueCache.get(f);
+  if (hit) return hit;
+  const index = new Map<string, number>();
+  const of = new Uint32Array(f.count);
+  const kind: number[] = [];
+  const widthUm: number[] = [];
+  const density: number[] = [];
+  for (let k = 0; k < f.count; k++) {
+    const key = `${f.modelKind[k]}|${f.widthUm[k]}|${f.effectiveDensity[k]}`;
+    let u = index.get(key);
+    if (u === undefined) {
+      u = kind.length;
+      index.set(key, u);
+      kind.push(f.modelKind[k] as number);
+      widthUm.push(f.widthUm[k] as number);
+      density.push(f.effectiveDensity[k] as number);
+    }
+    of[k] = u;
+  }
+  const out = { of, kind: Uint8Array.from(kind), widthUm: Float64Array.from(widthUm), density: Float64Array.from(density) };
+  uniqueCache.set(f, out);
+  return out;
+}
+
 export function runWhatIf(ctx: WhatIfContext, p: WhatIfParams, cache = new PredictorCache(), maxFlags = 5000): WhatIfResult {
   const t0 = performance.now();
   const model = whatIfModel(ctx, p);
@@ -86,18 +120,35 @@ export function runWhatIf(ctx: WhatIfContext, p: WhatIfParams, cache = new Predi
   const flags: Flag[] = [];
   let underTarget = 0;
   let flagMs = 0;
+  const u = uniqueInputs(f);
+  const m = u.kind.length;
+  const uDepth = new Float64Array(m);
+  const uMargin = new Float64Array(m);
+  const uOver = new Float64Array(m);
+  const uAr = new Float64Array(m);
+  const uRisk = new Float64Array(m);
+  const uReach = new Uint8Array(m);
+  for (let q = 0; q < m; q++) {
+    const widthUm = u.widthUm[q] as number;
+    const r = predictor({ widthUm, kind: MODEL_KIND[u.kind[q] as number] ?? 'trench', effectiveDensity: u.density[q] as number, exposedFraction: ctx.exposedFraction });
+    uDepth[q] = r.depthUm;
+    uMargin[q] = r.marginUm;
+    uOver[q] = r.overEtchUm;
+    uAr[q] = r.aspectRatio;
+    uReach[q] = r.reachesTarget ? 1 : 0;
+    uRisk[q] = featureRisk({ depthUm: r.depthUm, overEtchUm: r.overEtchUm, widthUm }, ctx.limits);
+  }
   for (let k = 0; k < n; k++) {
-    const kind = MODEL_KIND[f.modelKind[k] as number] ?? 'trench';
-    const widthUm = f.widthUm[k] as number;
-    const rho = f.effectiveDensity[k] as number;
-    const r = predictor({ widthUm, kind, effectiveDensity: rho, exposedFraction: ctx.exposedFraction });
-    depthUm[k] = r.depthUm;
-    marginUm[k] = r.marginUm;
-    if (!r.reachesTarget) underTarget++;
-    risk[k] = featureRisk({ depthUm: r.depthUm, overEtchUm: r.overEtchUm, widthUm }, ctx.limits);
+    const q = u.of[k] as number;
+    depthUm[k] = uDepth[q] as number;
+    marginUm[k] = uMargin[q] as number;
+    risk[k] = uRisk[q] as number;
+    if (!uReach[q]) underTarget++;
     // Every feature rule is one of the risk terms crossing 1 (or a calibration excursion), so the rest pass.
     if ((risk[k]! >= 1 || range) && flags.length < maxFlags) {
       const s = performance.now();
+      const kind = MODEL_KIND[f.modelKind[k] as number] ?? 'trench';
+      const widthUm = f.widthUm[k] as number;
       const found = featureFlags(
         {
           featureId: f.featureId[k] as number,
@@ -106,9 +157,9 @@ export function runWhatIf(ctx: WhatIfContext, p: WhatIfParams, cache = new Predi
           bboxUm: [f.x0Um[k] as number, f.y0Um[k] as number, f.x1Um[k] as number, f.y1Um[k] as number],
           centroidUm: [f.xUm[k] as number, f.yUm[k] as number],
           widthUm,
-          depthUm: r.depthUm,
-          overEtchUm: r.overEtchUm,
-          excursions: excursionsOf(range, widthUm, r.aspectRatio, rho),
+          depthUm: depthUm[k] as number,
+          overEtchUm: uOver[q] as number,
+          excursions: excursionsOf(range, widthUm, uAr[q] as number, f.effectiveDensity[k] as number),
         },
         ctx.limits,
         ctx.severities,

@@ -111,15 +111,26 @@ describe('canvas viewer in Chromium', () => {
     }
     expect(best).not.toBeNull();
     const box = (await page.getByTestId('viewer-host').boundingBox())!;
-    const [sx, sy] = layoutToScreen(v, best!.x, best!.y);
+    // Zoom in about the point (wheel zooms about the cursor) until one map pixel spans several screen pixels.
+    let [sx, sy] = layoutToScreen(v, best!.x, best!.y);
+    await page.mouse.move(box.x + sx, box.y + sy);
+    for (let k = 0; k < 3; k++) {
+      await page.mouse.wheel(0, -800);
+      await page.waitForTimeout(150);
+    }
+    const zoomed = await viewOf(page);
+    expect(zoomed.scale * g.pixelUm).toBeGreaterThan(8);
+    [sx, sy] = layoutToScreen(zoomed, best!.x, best!.y);
+    await page.mouse.move(box.x + sx + 1, box.y + sy + 1);
     await page.mouse.move(box.x + sx, box.y + sy);
     await page.waitForFunction(() => document.querySelector('[data-testid=readout-predicted-depth]')?.getAttribute('data-value') !== '');
     const shown = Number(await page.getByTestId('readout-predicted-depth').getAttribute('data-value'));
     expect(shown).toBeCloseTo(best!.value, 5);
     const um = (await page.getByTestId('cursor-um').textContent())!;
     const [, cx, cy] = /x (-?[\d.]+) µm, y (-?[\d.]+) µm/.exec(um)!;
-    expect(Math.abs(Number(cx) - best!.x)).toBeLessThan(1 / v.scale + 0.01);
-    expect(Math.abs(Number(cy) - best!.y)).toBeLessThan(1 / v.scale + 0.01);
+    expect(Math.abs(Number(cx) - best!.x)).toBeLessThan(1 / zoomed.scale + 0.01);
+    expect(Math.abs(Number(cy) - best!.y)).toBeLessThan(1 / zoomed.scale + 0.01);
+    await screenshot(page, 'viewer-hover');
   });
 
   it('clicking a flag row centres the view on it and highlights it; clicking its mark selects it back', async () => {
