@@ -252,6 +252,9 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
   // --- what-if --------------------------------------------------------------------------------------------------
   const wiWorker = useRef<Worker | null>(null);
   const wiSeq = useRef(0);
+  // One run at a time: slider moves that arrive meanwhile collapse into the latest one.
+  const wiBusy = useRef(false);
+  const wiPending = useRef<WhatIfParams | null>(null);
   const baseParams = useMemo(() => (info.data ? paramsOf(info.data.model as unknown as ProcessModel) : null), [info.data]);
   useEffect(() => {
     if (!info.data || !coverage) return;
@@ -262,10 +265,19 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
       if (m.type === 'ready') {
         setStoredMargin(m.storedMargin);
         setWhatIfStatus(`${m.count.toLocaleString('en')} openings loaded`);
-      } else if (m.type === 'error') setWhatIfStatus(`what-if failed: ${m.message}`);
-      else if (m.seq === wiSeq.current) {
+      } else if (m.type === 'error') {
+        wiBusy.current = false;
+        setWhatIfStatus(`what-if failed: ${m.message}`);
+      } else {
         setWhatIf((prev) => (prev ? { ...prev, depth: m.depth, margin: m.margin, risk: m.risk, flags: m.flags, ms: m.ms.total, underTarget: m.underTarget, count: m.count } : prev));
         setWhatIfStatus(`${m.count.toLocaleString('en')} openings in ${m.ms.total.toFixed(0)} ms · ${m.underTarget} under target · ${m.flags.length} opening flags`);
+        wiBusy.current = false;
+        const next = wiPending.current;
+        wiPending.current = null;
+        if (next) {
+          wiBusy.current = true;
+          w.postMessage({ type: 'run', seq: ++wiSeq.current, params: next });
+        }
       }
     };
     const i = info.data;
@@ -274,6 +286,11 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
   }, [info.data, coverage, base]);
   const runWhatIf = (params: WhatIfParams) => {
     setWhatIf((prev) => ({ params, depth: prev?.depth ?? null, margin: prev?.margin ?? null, risk: prev?.risk ?? null, flags: prev?.flags ?? [], ms: 0, underTarget: 0, count: 0 }));
+    if (wiBusy.current) {
+      wiPending.current = params;
+      return;
+    }
+    wiBusy.current = true;
     wiWorker.current?.postMessage({ type: 'run', seq: ++wiSeq.current, params });
   };
 
@@ -398,7 +415,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
         </p>
       ) : null}
       <div className="grid gap-3 lg:grid-cols-[1fr_260px]">
-        <div className="relative">
+        <div className="relative h-[560px] self-start">
           <div
             ref={hostRef}
             tabIndex={0}

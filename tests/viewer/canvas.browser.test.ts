@@ -4,6 +4,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PASSWORD_DEFAULT } from '@/lib/data/demo';
 import { decodeGrid } from '@/lib/pipeline/grid-file';
 import { finiteRange } from '@/lib/viewer/color-scale';
+import { decodeFeatures } from '@/lib/viewer/feature-wire';
+import { decodePolygons } from '@/lib/viewer/polygon-wire';
 import { layoutToScreen, type View } from '@/lib/viewer/view-transform';
 import { CHROMIUM_PATH, launchBrowser, screenshot } from '../support/browser';
 import { startTestServer, type TestServer } from '../support/server';
@@ -110,6 +112,7 @@ describe('canvas viewer in Chromium', () => {
       }
     }
     expect(best).not.toBeNull();
+    await page.getByTestId('viewer-host').scrollIntoViewIfNeeded();
     const box = (await page.getByTestId('viewer-host').boundingBox())!;
     // Zoom in about the point (wheel zooms about the cursor) until one map pixel spans several screen pixels.
     let [sx, sy] = layoutToScreen(v, best!.x, best!.y);
@@ -155,6 +158,7 @@ describe('canvas viewer in Chromium', () => {
     await page.getByTestId('viewer-host').focus();
     await page.keyboard.press('Escape');
     await page.waitForFunction(() => document.querySelector('[data-testid=canvas-viewer]')?.getAttribute('data-selected') === '');
+    await page.getByTestId('viewer-host').scrollIntoViewIfNeeded();
     const box = (await page.getByTestId('viewer-host').boundingBox())!;
     await page.mouse.move(box.x + after.width / 2, box.y + after.height / 2);
     await page.waitForSelector('[data-testid=flag-tooltip]');
@@ -164,6 +168,29 @@ describe('canvas viewer in Chromium', () => {
     const selectedFlag = flags.items.find((f) => f.key === selectedKey);
     expect(selectedFlag).toBeDefined();
     expect(Math.hypot(selectedFlag!.atUm[0] - flag.atUm[0], selectedFlag!.atUm[1] - flag.atUm[1]) * after.scale).toBeLessThan(11);
+  });
+
+  it('serves the viewer data: per-opening columns, polygons in a box, clear errors for bad boxes', async () => {
+    const get = (path: string) => page.request.get(`${server.baseUrl}/api/v1/analyses/${analysisId}${path}`);
+    const results = (await (await get('/results?limit=5')).json()) as { features: { total: number; items: { id: number; widthUm: number; depthUm: number }[] } };
+    const cols = decodeFeatures(new Uint8Array(await (await get('/features.bin')).body()));
+    expect(cols.count).toBe(results.features.total);
+    for (const item of results.features.items) {
+      const k = Array.from(cols.featureId).indexOf(item.id);
+      expect(cols.widthUm[k]).toBe(item.widthUm);
+      expect(cols.depthUm[k]).toBe(item.depthUm);
+    }
+    const info = (await (await get('/viewer')).json()) as { polygonCount: number; dieBboxUm: [number, number, number, number] };
+    const b = info.dieBboxUm;
+    const all = decodePolygons(new Uint8Array(await (await get(`/polygons?box=${b[0] - 1},${b[1] - 1},${b[2] + 1},${b[3] + 1}`)).body()));
+    expect(all.total).toBe(info.polygonCount);
+    expect(all.polyLayer.length).toBe(info.polygonCount);
+    const few = decodePolygons(new Uint8Array(await (await get(`/polygons?box=${b[0] - 1},${b[1] - 1},${b[2] + 1},${b[3] + 1}&max=3`)).body()));
+    expect(few.polyLayer.length).toBe(0);
+    expect(few.total).toBeGreaterThan(3);
+    const bad = await get('/polygons?box=10,10,5,5');
+    expect(bad.status).toBe(400);
+    expect(((await bad.json()) as { error: { message: string } }).error.message).toContain('x0 < x1');
   });
 
   it('without WebGL the page says so and shows the static preview and the table', async () => {
