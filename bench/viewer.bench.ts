@@ -60,10 +60,16 @@ async function analyse(server: TestServer): Promise<string> {
   const id = ((await created.json()) as { analysis: { id: string } }).analysis.id;
   const t = performance.now();
   for (;;) {
-    const a = (await (await client.get(`/api/v1/analyses/${id}`)).json()) as { analysis: { status: string; errorMessage: string | null } };
+    await new Promise((r) => setTimeout(r, 2000));
+    let res: Response;
+    try {
+      res = await client.get(`/api/v1/analyses/${id}`);
+    } catch (err) {
+      throw new Error(`server stopped answering while analysing: ${String(err)}\n${server.output().slice(-3000)}`);
+    }
+    const a = (await res.json()) as { analysis: { status: string; errorMessage: string | null } };
     if (a.analysis.status === 'done') break;
     if (a.analysis.status === 'failed' || a.analysis.status === 'cancelled') throw new Error(`analysis ${a.analysis.status}: ${a.analysis.errorMessage}`);
-    await new Promise((r) => setTimeout(r, 1000));
   }
   console.log(`  layout: ${polygons.toLocaleString('en')} polygons; analysis took ${((performance.now() - t) / 1000).toFixed(1)} s (not counted)`);
   return id;

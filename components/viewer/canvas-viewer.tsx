@@ -4,33 +4,26 @@ import { useQuery } from '@tanstack/react-query';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { useFindingSelection } from '@/components/analysis/finding-selection';
 import { apiJson } from '@/components/pipeline/api-client';
-import type { ProcessModel } from '@/lib/etch/process-model';
 import type { Flag } from '@/lib/pipeline/flags';
 import { decodeGrid, type GridMap } from '@/lib/pipeline/grid-file';
 import { finiteRange, paintCoverage, paintRaster } from '@/lib/viewer/color-scale';
 import { mapKindInfo, sampleAt } from '@/lib/viewer/map-kinds';
-import { fitView, focusOn, layoutToScreen, panBy, scaleBar, screenToLayout, visibleBox, zoomAbout, type BoxUm, type View } from '@/lib/viewer/view-transform';
-import type { LayerMesh } from '@/lib/viewer/polygon-mesh';
-import { paramsOf, type WhatIfParams } from '@/lib/viewer/whatif';
+import { fitView, focusOn, layoutToScreen, panBy, scaleBar, screenToLayout, zoomAbout, type View } from '@/lib/viewer/view-transform';
 import type { ViewerInfo } from '@/lib/viewer/viewer-source';
 import { hitMark, type MarkFlag } from './flag-marks';
 import type { ViewerScene } from './pixi-scene';
 import { Legend, MarkKey, Readout, WhatIfPanel, type ReadoutRow } from './viewer-panels';
-import type { WhatIfReply } from './whatif.worker';
+import { POLYGON_BUDGET, usePolygonLod } from './use-polygon-lod';
+import { useWhatIf } from './use-what-if';
 
-/** Most polygons submitted per frame before the viewer draws the coverage raster instead (shared/viewer-perf.md). */
-export const POLYGON_BUDGET = 50_000;
 const HEIGHT = 560;
 
 type MapInfo = { name: string; kind: string; unit: string; url: string };
 type ApiFlag = { key: string; kind: string; severity: MarkFlag['severity']; bboxUm: [number, number, number, number]; atUm: [number, number]; measured: number; limit: number; unit: string; message: string };
 type LoadedMap = { info: MapInfo; grid: GridMap };
-type PolygonReply = { id: number; ok: boolean; error?: string; total: number; returned: number; originX: number; originY: number; meshes: LayerMesh[] };
 
 const toMark = (f: ApiFlag): MarkFlag => ({ id: f.key, key: f.key, kind: f.kind, severity: f.severity, xUm: f.atUm[0], yUm: f.atUm[1], bboxUm: f.bboxUm, message: f.message, measured: f.measured, limit: f.limit, unit: f.unit });
 const flagMark = (f: Flag): MarkFlag => ({ id: f.id, key: f.id, kind: f.kind, severity: f.severity, xUm: f.xUm, yUm: f.yUm, bboxUm: f.bboxUm, message: f.message, measured: f.measured, limit: f.limit, unit: f.unit });
-const contains = (outer: BoxUm, inner: BoxUm) => outer[0] <= inner[0] && outer[1] <= inner[1] && outer[2] >= inner[2] && outer[3] >= inner[3];
-const area = (b: BoxUm) => (b[2] - b[0]) * (b[3] - b[1]);
 
 async function fetchGrid(info: MapInfo): Promise<LoadedMap> {
   const res = await fetch(info.url, { credentials: 'same-origin' });
@@ -51,11 +44,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
   const [opacity, setOpacity] = useState(0.75);
   const [cursor, setCursor] = useState<[number, number] | null>(null);
   const [hover, setHover] = useState<{ flag: MarkFlag; sx: number; sy: number } | null>(null);
-  const [mode, setMode] = useState<'raster' | 'polygons' | 'loading'>('loading');
   const [hiddenLayers, setHiddenLayers] = useState<Set<number>>(new Set());
-  const [whatIf, setWhatIf] = useState<{ params: WhatIfParams; depth: Float32Array | null; margin: Float32Array | null; risk: Float32Array | null; flags: Flag[]; ms: number; underTarget: number; count: number } | null>(null);
-  const [storedMargin, setStoredMargin] = useState<Float32Array | null>(null);
-  const [whatIfStatus, setWhatIfStatus] = useState('loading per-opening data…');
   const { selected, select } = useFindingSelection();
 
   const info = useQuery({ queryKey: ['analysis', analysisId, 'viewer'], queryFn: () => apiJson<ViewerInfo>(`${base}/viewer`) });
@@ -142,6 +131,8 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
   }, [results.data]);
 
   const coverage = maps.find((m) => m.info.kind === 'coverage');
+  const coverageGrid = useMemo(() => (coverage ? { values: coverage.grid.values, grid: coverage.grid.grid } : null), [coverage]);
+  const { whatIf, storedMargin, status: whatIfStatus, baseParams, run: runWhatIf, reset: resetWhatIf } = useWhatIf(info.data, coverageGrid, base);
   const shownMaps = useMemo(() => {
     const list: { name: string; kind: string; unit: string; values: ArrayLike<number>; grid: GridMap['grid']; whatIf: boolean }[] = [];
     for (const m of maps) {
@@ -174,59 +165,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
     scene.setCoverage({ rgba: paintCoverage(coverage.grid.values, g.nx, g.ny), nx: g.nx, ny: g.ny, x0Um: g.x0Um, y0Um: g.y0Um, pixelUm: g.pixelUm });
   }, [ready, coverage]);
 
-  // --- polygons or coverage raster, by the count that would be submitted --------------------------------------
-  const polyWorker = useRef<Worker | null>(null);
-  const polyState = useRef<{ box: BoxUm | null; tooMany: BoxUm | null; seq: number; busy: boolean }>({ box: null, tooMany: null, seq: 0, busy: false });
-  useEffect(() => {
-    const w = new Worker(new URL('./polygons.worker.ts', import.meta.url), { type: 'module' });
-    polyWorker.current = w;
-    return () => w.terminate();
-  }, []);
-  useEffect(() => {
-    const w = polyWorker.current;
-    const scene = sceneRef.current;
-    if (!ready || !view || !w || !scene || !info.data) return;
-    const st = polyState.current;
-    const vb = visibleBox(view);
-    if (st.box && contains(st.box, vb)) return; // polygons already cover the view
-    if (st.tooMany && contains(st.tooMany, vb) && area(vb) >= area(st.tooMany) * 0.5) return; // still too many here
-    const timer = setTimeout(() => {
-      // Small layouts: everything at once. Otherwise the view grown by half its size on each side (fewer
-      // refetches while panning); when that holds too many, the view alone; when that does too, the raster.
-      const whole = info.data.polygonCount <= POLYGON_BUDGET;
-      const gx = (vb[2] - vb[0]) / 2;
-      const gy = (vb[3] - vb[1]) / 2;
-      const grown: BoxUm = whole ? info.data.dieBboxUm : [vb[0] - gx, vb[1] - gy, vb[2] + gx, vb[3] + gy];
-      const ask = (box: BoxUm, fallback: BoxUm | null) => {
-        const id = ++st.seq;
-        w.onmessage = (e: MessageEvent<PolygonReply>) => {
-          if (e.data.id !== st.seq) return;
-          const s = sceneRef.current;
-          if (!s || !e.data.ok) return setMode('raster');
-          if (e.data.returned > 0 || e.data.total === 0) {
-            st.box = whole ? [-Infinity, -Infinity, Infinity, Infinity] : box;
-            st.tooMany = null;
-            s.setPolygons(e.data.meshes, e.data.originX, e.data.originY, hiddenLayers);
-            s.setPolygonMode(true);
-            setMode('polygons');
-          } else if (fallback) {
-            ask(fallback, null);
-          } else {
-            st.box = null;
-            st.tooMany = box;
-            s.setPolygons([], 0, 0, hiddenLayers);
-            s.setPolygonMode(false);
-            setMode('raster');
-          }
-        };
-        w.postMessage({ id, url: `${base}/polygons?box=${box.map((v) => v.toFixed(3)).join(',')}&max=${POLYGON_BUDGET}` });
-      };
-      ask(grown, whole ? null : vb);
-    }, 120);
-    return () => clearTimeout(timer);
-    // hiddenLayers is applied through setLayerVisible below
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [ready, view, info.data, base]);
+  const mode = usePolygonLod({ ready, view, sceneRef, base, polygonCount: info.data?.polygonCount ?? null, dieBboxUm: info.data?.dieBboxUm ?? null, hiddenLayers });
 
   // --- flags ----------------------------------------------------------------------------------------------------
   const marks = useMemo(() => {
@@ -248,51 +187,6 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
     scene.setSelected(mark);
     if (selected.source === 'table' && v) applyView(focusOn(v, selected.xUm, selected.yUm, selected.bboxUm));
   }, [ready, selected, marks, applyView]);
-
-  // --- what-if --------------------------------------------------------------------------------------------------
-  const wiWorker = useRef<Worker | null>(null);
-  const wiSeq = useRef(0);
-  // One run at a time: slider moves that arrive meanwhile collapse into the latest one.
-  const wiBusy = useRef(false);
-  const wiPending = useRef<WhatIfParams | null>(null);
-  const baseParams = useMemo(() => (info.data ? paramsOf(info.data.model as unknown as ProcessModel) : null), [info.data]);
-  useEffect(() => {
-    if (!info.data || !coverage) return;
-    const w = new Worker(new URL('./whatif.worker.ts', import.meta.url), { type: 'module' });
-    wiWorker.current = w;
-    w.onmessage = (e: MessageEvent<WhatIfReply>) => {
-      const m = e.data;
-      if (m.type === 'ready') {
-        setStoredMargin(m.storedMargin);
-        setWhatIfStatus(`${m.count.toLocaleString('en')} openings loaded`);
-      } else if (m.type === 'error') {
-        wiBusy.current = false;
-        setWhatIfStatus(`what-if failed: ${m.message}`);
-      } else {
-        setWhatIf((prev) => (prev ? { ...prev, depth: m.depth, margin: m.margin, risk: m.risk, flags: m.flags, ms: m.ms.total, underTarget: m.underTarget, count: m.count } : prev));
-        setWhatIfStatus(`${m.count.toLocaleString('en')} openings in ${m.ms.total.toFixed(0)} ms · ${m.underTarget} under target · ${m.flags.length} opening flags`);
-        wiBusy.current = false;
-        const next = wiPending.current;
-        wiPending.current = null;
-        if (next) {
-          wiBusy.current = true;
-          w.postMessage({ type: 'run', seq: ++wiSeq.current, params: next });
-        }
-      }
-    };
-    const i = info.data;
-    w.postMessage({ type: 'init', featuresUrl: `${base}/features.bin`, model: i.model, limits: i.limits, severities: i.severities, exposedFraction: i.exposedFraction, coverage: coverage.grid.values, grid: coverage.grid.grid });
-    return () => w.terminate();
-  }, [info.data, coverage, base]);
-  const runWhatIf = (params: WhatIfParams) => {
-    setWhatIf((prev) => ({ params, depth: prev?.depth ?? null, margin: prev?.margin ?? null, risk: prev?.risk ?? null, flags: prev?.flags ?? [], ms: 0, underTarget: 0, count: 0 }));
-    if (wiBusy.current) {
-      wiPending.current = params;
-      return;
-    }
-    wiBusy.current = true;
-    wiWorker.current?.postMessage({ type: 'run', seq: ++wiSeq.current, params });
-  };
 
   // --- input ------------------------------------------------------------------------------------------------------
   const drag = useRef<{ x: number; y: number; moved: boolean } | null>(null);
@@ -476,7 +370,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
               ))}
             </div>
           ) : null}
-          {baseParams ? <WhatIfPanel base={baseParams} params={whatIf?.params ?? baseParams} active={Boolean(whatIf)} status={whatIfStatus} onChange={runWhatIf} onReset={() => setWhatIf(null)} /> : null}
+          {baseParams ? <WhatIfPanel base={baseParams} params={whatIf?.params ?? baseParams} active={Boolean(whatIf)} status={whatIfStatus} onChange={runWhatIf} onReset={resetWhatIf} /> : null}
         </div>
       </div>
       <p className="text-xs text-ink-500">
