@@ -132,7 +132,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
 
   const coverage = maps.find((m) => m.info.kind === 'coverage');
   const coverageGrid = useMemo(() => (coverage ? { values: coverage.grid.values, grid: coverage.grid.grid } : null), [coverage]);
-  const { whatIf, storedMargin, status: whatIfStatus, baseParams, run: runWhatIf, reset: resetWhatIf } = useWhatIf(info.data, coverageGrid, base);
+  const { whatIf, storedMargin, status: whatIfStatus, baseParams, run: runWhatIf, reset: resetWhatIf } = useWhatIf(info.data, coverageGrid, base, maps.length > 0 && maps.length === (results.data?.maps.length ?? -1));
   const shownMaps = useMemo(() => {
     const list: { name: string; kind: string; unit: string; values: ArrayLike<number>; grid: GridMap['grid']; whatIf: boolean }[] = [];
     for (const m of maps) {

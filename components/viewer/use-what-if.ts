@@ -14,7 +14,7 @@ export type WhatIfState = { params: WhatIfParams; depth: Float32Array | null; ma
  * The what-if worker: loads the per-opening columns once, then recomputes on every slider move. One run at a
  * time; moves that arrive meanwhile collapse into the latest, so the maps follow the slider without a backlog.
  */
-export function useWhatIf(info: ViewerInfo | undefined, coverage: { values: Float32Array; grid: GridGeometry } | null, base: string) {
+export function useWhatIf(info: ViewerInfo | undefined, coverage: { values: Float32Array; grid: GridGeometry } | null, base: string, start: boolean) {
   const [whatIf, setWhatIf] = useState<WhatIfState | null>(null);
   const [storedMargin, setStoredMargin] = useState<Float32Array | null>(null);
   const [status, setStatus] = useState('loading per-opening data…');
@@ -25,7 +25,8 @@ export function useWhatIf(info: ViewerInfo | undefined, coverage: { values: Floa
   const baseParams = useMemo(() => (info ? paramsOf(info.model as unknown as ProcessModel) : null), [info]);
 
   useEffect(() => {
-    if (!info || !coverage) return;
+    // Started only once the maps are on screen, so the per-opening download never delays the first picture.
+    if (!info || !coverage || !start) return;
     const w = new Worker(new URL('./whatif.worker.ts', import.meta.url), { type: 'module' });
     worker.current = w;
     busy.current = false;
@@ -52,7 +53,7 @@ export function useWhatIf(info: ViewerInfo | undefined, coverage: { values: Floa
     };
     w.postMessage({ type: 'init', featuresUrl: `${base}/features.bin`, model: info.model, limits: info.limits, severities: info.severities, exposedFraction: info.exposedFraction, coverage: coverage.values, grid: coverage.grid });
     return () => w.terminate();
-  }, [info, coverage, base]);
+  }, [info, coverage, base, start]);
 
   const run = (params: WhatIfParams) => {
     setWhatIf((prev) => ({ params, depth: prev?.depth ?? null, margin: prev?.margin ?? null, risk: prev?.risk ?? null, flags: prev?.flags ?? [], ms: 0, underTarget: 0, count: 0 }));

@@ -64,16 +64,27 @@ export function buildLayerMeshes(p: WirePolygons, fillAlpha = 0.45): LayerMesh[]
         lines[li++] = base + q;
         lines[li++] = base + ((q + 1) % n);
       }
-      if (n === 4) {
+      if (n === 4 && convexQuad(p.coords, a)) {
         fill.push(base, base + 1, base + 2, base, base + 2, base + 3);
       } else if (n > 2) {
         const tri = earcut(p.coords.subarray(2 * a, 2 * b));
         for (const t of tri) fill.push(base + t);
       }
     }
-    // A 4-point ring is a convex quad only when not self-intersecting; layout rectangles and most quads are. Odd
-    // bow-ties would be mis-filled, which only affects this preview, never a computed value.
     out.push({ layerIndex, polygons: polys.length, positions, colors, fillIndices: Uint32Array.from(fill), lineIndices: lines.subarray(0, li) });
   }
   return out.sort((x, y) => x.layerIndex - y.layerIndex);
+}
+
+/** True when the 4-point ring starting at point `a` turns the same way at every corner (a convex quad, e.g. a rectangle). */
+function convexQuad(c: Float32Array, a: number): boolean {
+  let sign = 0;
+  for (let q = 0; q < 4; q++) {
+    const i = a + q, j = a + ((q + 1) % 4), k = a + ((q + 2) % 4);
+    const cross = (c[2 * j]! - c[2 * i]!) * (c[2 * k + 1]! - c[2 * j + 1]!) - (c[2 * j + 1]! - c[2 * i + 1]!) * (c[2 * k]! - c[2 * j]!);
+    if (cross === 0) continue;
+    if (sign === 0) sign = Math.sign(cross);
+    else if (Math.sign(cross) !== sign) return false;
+  }
+  return true;
 }

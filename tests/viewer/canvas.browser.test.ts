@@ -189,7 +189,7 @@ describe('canvas viewer in Chromium', () => {
     expect(few.polyLayer.length).toBe(0);
     expect(few.total).toBeGreaterThan(3);
     const bad = await get('/polygons?box=10,10,5,5');
-    expect(bad.status).toBe(400);
+    expect(bad.status()).toBe(400);
     expect(((await bad.json()) as { error: { message: string } }).error.message).toContain('x0 < x1');
   });
 

@@ -77,4 +77,15 @@ describe('polygons in view', () => {
     expect(areaOf(meshes[1]!)).toBeCloseTo(3 * 1 + 1 * 2, 4);
     expect(meshes[1]!.lineIndices.length).toBe(12);
   });
+  it('fills a concave quad by its true area (not as a fan)', () => {
+    const m = buildLayerMeshes({ total: 1, layers: [{ layer: 1, datatype: 0 }], originX: 0, originY: 0, polyLayer: Uint32Array.of(0), offsets: Uint32Array.of(0, 4), coords: Float32Array.of(4, 0, 1, 1, 0, 4, 0, 0) })[0]!; // a fan from (4,0) would cover 12
+    let a = 0;
+    const p = m.positions;
+    for (let t = 0; t < m.fillIndices.length; t += 3) {
+      const [i, j, k] = [m.fillIndices[t]!, m.fillIndices[t + 1]!, m.fillIndices[t + 2]!];
+      a += Math.abs((p[2 * j]! - p[2 * i]!) * (p[2 * k + 1]! - p[2 * i + 1]!) - (p[2 * k]! - p[2 * i]!) * (p[2 * j + 1]! - p[2 * i + 1]!)) / 2;
+    }
+    // Shoelace area of (4,0) (1,1) (0,4) (0,0): |4·1−1·0 + 1·4−0·1 + 0·0−0·4 + 0·0−4·0| / 2 = 4.
+    expect(a).toBeCloseTo(4, 6);
+  });
 });
