@@ -59,12 +59,17 @@ async function analyse(server: TestServer): Promise<string> {
   if (created.status !== 202) throw new Error(`create failed: ${created.status} ${await created.text()}`);
   const id = ((await created.json()) as { analysis: { id: string } }).analysis.id;
   const t = performance.now();
+  let failures = 0;
   for (;;) {
     await new Promise((r) => setTimeout(r, 2000));
     let res: Response;
     try {
       res = await client.get(`/api/v1/analyses/${id}`);
+      failures = 0;
     } catch (err) {
+      // Saving 1M result rows blocks the server's event loop for seconds; a kept-alive socket it closed
+      // meanwhile answers ECONNRESET. Retry for a while before giving up.
+      if (++failures < 60) continue;
       throw new Error(`server stopped answering while analysing: ${String(err)}\n${server.output().slice(-3000)}`);
     }
     const a = (await res.json()) as { analysis: { status: string; errorMessage: string | null } };

@@ -17,8 +17,10 @@ export interface PolygonIndex {
   bboxUm: [number, number, number, number];
   polygonCount: number;
   counts: { nx: number; ny: number; x0: number; y0: number; cell: number; values: Uint32Array };
-  /** Largest polygon bbox side, µm (a polygon may reach this far outside the cells its centre counts in). */
+  /** Largest bbox side of the polygons in the count grid, µm (one may reach half this outside its centre's cell). */
   maxSideUm: number;
+  /** Polygons larger than a grid cell (die outlines, fills), counted one by one instead of in the grid. */
+  large: Item[];
 }
 
 const COUNT_CELLS = 256;
@@ -51,12 +53,20 @@ export function buildPolygonIndex(layout: FlatLayout): PolygonIndex {
   const nx = Math.max(1, Math.ceil((bx1 - bx0) / cell) + 1);
   const ny = Math.max(1, Math.ceil((by1 - by0) / cell) + 1);
   const values = new Uint32Array(nx * ny);
+  const large: Item[] = [];
+  maxSide = 0;
   for (const it of items) {
+    const side = Math.max(it.maxX - it.minX, it.maxY - it.minY);
+    if (side > cell) {
+      large.push(it);
+      continue;
+    }
+    maxSide = Math.max(maxSide, side);
     const i = Math.min(nx - 1, Math.floor(((it.minX + it.maxX) / 2 - bx0) / cell));
     const j = Math.min(ny - 1, Math.floor(((it.minY + it.maxY) / 2 - by0) / cell));
     values[j * nx + i]! += 1;
   }
-  return { layout, tree, bboxUm: [bx0, by0, bx1, by1], polygonCount: items.length, counts: { nx, ny, x0: bx0, y0: by0, cell, values }, maxSideUm: maxSide };
+  return { layout, tree, bboxUm: [bx0, by0, bx1, by1], polygonCount: items.length, counts: { nx, ny, x0: bx0, y0: by0, cell, values }, maxSideUm: maxSide, large };
 }
 
 /** Upper estimate of the polygons meeting `box` (µm): centres in the cells the box, grown by the largest polygon half-side, touches. */
@@ -69,6 +79,7 @@ export function estimateCount(ix: PolygonIndex, box: [number, number, number, nu
   const j1 = Math.min(ny - 1, Math.floor((box[3] + g - y0) / cell));
   let n = 0;
   for (let j = j0; j <= j1; j++) for (let i = i0; i <= i1; i++) n += values[j * nx + i] as number;
+  for (const it of ix.large) if (it.minX <= box[2] && it.maxX >= box[0] && it.minY <= box[3] && it.maxY >= box[1]) n++;
   return n;
 }
 

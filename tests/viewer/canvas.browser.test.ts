@@ -1,4 +1,5 @@
 // The canvas viewer in headless Chromium (WebGL through SwiftShader) on the seeded demo analysis.
+import { readFileSync } from 'node:fs';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PASSWORD_DEFAULT } from '@/lib/data/demo';
@@ -168,6 +169,15 @@ describe('canvas viewer in Chromium', () => {
     const selectedFlag = flags.items.find((f) => f.key === selectedKey);
     expect(selectedFlag).toBeDefined();
     expect(Math.hypot(selectedFlag!.atUm[0] - flag.atUm[0], selectedFlag!.atUm[1] - flag.atUm[1]) * after.scale).toBeLessThan(11);
+  });
+
+  it('exports the current view as a PNG of the canvas size', async () => {
+    const [download] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-png').click()]);
+    const bytes = new Uint8Array(readFileSync((await download.path())!));
+    expect([...bytes.subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]); // PNG signature (ISO/IEC 15948)
+    const dv = new DataView(bytes.buffer, bytes.byteOffset);
+    const v = await viewOf(page);
+    expect([dv.getUint32(16), dv.getUint32(20)]).toEqual([v.width, v.height]); // IHDR width, height
   });
 
   it('serves the viewer data: per-opening columns, polygons in a box, clear errors for bad boxes', async () => {

@@ -89,3 +89,20 @@ describe('polygons in view', () => {
     expect(a).toBeCloseTo(4, 6);
   });
 });
+
+describe('count estimate', () => {
+  it('is an upper bound of the exact count, also with a die-sized polygon present', async () => {
+    const { estimateCount } = await import('@/lib/viewer/polygon-index');
+    const l = layout(60, 2, 10);
+    // A die outline on its own layer, as real layouts have.
+    l.layers.push({ layer: 0, datatype: 0, coords: Float64Array.from([0, 0, 600000, 0, 600000, 600000, 0, 600000]), offsets: Uint32Array.from([0, 4]), count: 1 });
+    const ix = buildPolygonIndex(l);
+    expect(ix.large.some((it) => it.maxX - it.minX >= 600)).toBe(true);
+    for (const box of [[0, 0, 50, 50], [100, 100, 180, 130], [0, 0, 600, 600], [333, 17, 334, 400]] as [number, number, number, number][]) {
+      const exact = ix.tree.search({ minX: box[0], minY: box[1], maxX: box[2], maxY: box[3] }).length;
+      const est = estimateCount(ix, box);
+      expect(est).toBeGreaterThanOrEqual(exact);
+      expect(est).toBeLessThan(exact * 2 + 60); // and not absurdly larger for small boxes
+    }
+  });
+});
