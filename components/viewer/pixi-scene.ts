@@ -67,7 +67,15 @@ export class ViewerScene {
       resolution: 1,
       preserveDrawingBuffer: true,
     });
-    if (this.destroyed) return;
+    if (this.destroyed) {
+      // Unmounted while the renderer was starting: release its WebGL context now.
+      try {
+        this.app.destroy({ removeView: true });
+      } catch {
+        /* destroy() already tore it down */
+      }
+      return;
+    }
     this.app.ticker.stop();
     this.app.canvas.style.display = 'block';
     this.app.canvas.dataset.testid = 'viewer-canvas';
