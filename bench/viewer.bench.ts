@@ -15,7 +15,7 @@ import { DEMO_PASSWORD_DEFAULT } from '../lib/data/demo';
 import { GdsiiWriter } from '../lib/layout/gdsii-writer';
 import { launchBrowser } from '../tests/support/browser';
 import { signIn } from '../tests/support/http';
-import { startTestServer, type TestServer } from '../tests/support/server';
+import { startTestServer } from '../tests/support/server';
 import { benchLayout } from './geometry-layout';
 
 const MODEL = {
@@ -42,8 +42,8 @@ function layoutGds(): { bytes: Uint8Array; polygons: number } {
   return { bytes: w.finish(), polygons: set.count + 1 };
 }
 
-async function analyse(server: TestServer): Promise<string> {
-  const client = await signIn(server.baseUrl, 'designer@larkspur.example', DEMO_PASSWORD_DEFAULT);
+async function analyse(base: string, output: () => string): Promise<string> {
+  const client = await signIn(base, 'designer@larkspur.example', DEMO_PASSWORD_DEFAULT);
   const { bytes, polygons } = layoutGds();
   const form = new FormData();
   form.set('name', 'viewer bench 1M');
@@ -70,7 +70,7 @@ async function analyse(server: TestServer): Promise<string> {
       // Saving 1M result rows blocks the server's event loop for seconds; a kept-alive socket it closed
       // meanwhile answers ECONNRESET. Retry for a while before giving up.
       if (++failures < 60) continue;
-      throw new Error(`server stopped answering while analysing: ${String(err)}\n${server.output().slice(-3000)}`);
+      throw new Error(`server stopped answering while analysing: ${String(err)}\n${output().slice(-3000)}`);
     }
     const a = (await res.json()) as { analysis: { status: string; errorMessage: string | null } };
     if (a.analysis.status === 'done') break;
@@ -96,50 +96,47 @@ const drawnShare = (page: Page) =>
     return n / (d.length / 16);
   });
 
-type Hook = { applyView: (v: object) => void; view: () => { cx: number; cy: number; scale: number; width: number; height: number }; scene: { renderNow: () => void; app: { renderer: { gl: WebGL2RenderingContext } } } };
+
+/** In-page pan loop, as source text: tsx wraps named functions in a helper the page does not have. */
+const PAN_LOOP = `(async () => {
+  const h = window.__trenchantViewer;
+  const pan = PAN_PX;
+  const frame = () => new Promise((res) => requestAnimationFrame(res));
+  const intervals = [];
+  let last = await frame();
+  for (let k = 0; k < 90; k++) {
+    const v = h.view();
+    const dir = Math.floor(k / 15) % 2 === 0 ? 1 : -1;
+    h.applyView({ ...v, cx: v.cx + (dir * pan) / v.scale });
+    const now = await frame();
+    intervals.push(now - last);
+    last = now;
+  }
+  const gl = h.scene.app.renderer.gl;
+  const px = new Uint8Array(4);
+  const sync = [];
+  for (let k = 0; k < 60; k++) {
+    const v = h.view();
+    const dir = Math.floor(k / 15) % 2 === 0 ? 1 : -1;
+    h.applyView({ ...v, cx: v.cx + (dir * pan) / v.scale });
+    const t = performance.now();
+    h.scene.renderNow();
+    gl.readPixels(0, 0, 1, 1, gl.RGBA, gl.UNSIGNED_BYTE, px);
+    sync.push(performance.now() - t);
+    await frame();
+  }
+  const sorted = (a) => [...a].sort((x, y) => x - y);
+  return { rafMs: sorted(intervals)[45], rafP90: sorted(intervals)[81], fps: 1000 / (intervals.reduce((a, b) => a + b, 0) / intervals.length), syncMs: sorted(sync)[30], syncP90: sorted(sync)[54], scale: h.view().scale };
+})()`;
 
 /** Sets the zoom, waits for the level-of-detail choice to settle, then pans and times frames. */
 async function measureAt(page: Page, name: string, scaleOf: (fit: number) => number, panPx: number) {
-  await page.evaluate((s) => {
-    const h = (window as unknown as { __trenchantViewer: Hook }).__trenchantViewer;
-    const v = h.view();
-    h.applyView({ ...v, cx: 5000, cy: 5000, scale: s });
-  }, scaleOf((await page.evaluate(() => (window as unknown as { __fitScale: number }).__fitScale)) ?? 0.05));
+  const fitScale = (await page.evaluate('window.__fitScale')) as number;
+  await page.evaluate(`(() => { const h = window.__trenchantViewer; h.applyView({ ...h.view(), cx: 5000, cy: 5000, scale: ${scaleOf(fitScale)} }); })()`);
   await page.waitForFunction(() => document.querySelector('[data-testid=canvas-viewer]')?.getAttribute('data-mode') !== 'loading');
   await page.waitForTimeout(2500);
   const mode = await page.getByTestId('canvas-viewer').getAttribute('data-mode');
-  const r = await page.evaluate(async (pan) => {
-    const h = (window as unknown as { __trenchantViewer: Hook }).__trenchantViewer;
-    const frame = () => new Promise<number>((res) => requestAnimationFrame(res));
-    // rAF: move the view every frame through the viewer's state path (as a drag does).
-    const intervals: number[] = [];
-    let last = await frame();
-    for (let k = 0; k < 90; k++) {
-      const v = h.view();
-      const dir = Math.floor(k / 15) % 2 === 0 ? 1 : -1;
-      h.applyView({ ...v, cx: v.cx + (dir * pan) / v.scale });
-      const now = await frame();
-      intervals.push(now - last);
-      last = now;
-    }
-    // sync: render + 1-pixel readPixels, timed per frame.
-    const gl = h.scene.app.renderer.gl;
-    const px = new Uint8Array(4);
-    const sync: number[] = [];
-    for (let k = 0; k < 60; k++) {
-      const v = h.view();
-      const dir = Math.floor(k / 15) % 2 === 0 ? 1 : -1;
-      h.applyView({ ...v, cx: v.cx + (dir * pan) / v.scale });
-      const t = performance.now();
-      h.scene.renderNow();
-      gl.readPixels(0, 0, 1, 1, gl.RGBA, gl.UNSIGNED_BYTE, px);
-      sync.push(performance.now() - t);
-      await frame();
-    }
-    const med = (a: number[]) => [...a].sort((x, y) => x - y)[Math.floor(a.length / 2)]!;
-    const p90 = (a: number[]) => [...a].sort((x, y) => x - y)[Math.floor(a.length * 0.9)]!;
-    return { rafMs: med(intervals), rafP90: p90(intervals), fps: 1000 / (intervals.reduce((a, b) => a + b, 0) / intervals.length), syncMs: med(sync), syncP90: p90(sync), scale: h.view().scale };
-  }, panPx);
+  const r = (await page.evaluate(PAN_LOOP.replace('PAN_PX', String(panPx)))) as { rafMs: number; rafP90: number; fps: number; syncMs: number; syncP90: number; scale: number };
   const modeAfter = await page.getByTestId('canvas-viewer').getAttribute('data-mode');
   console.log(
     `  ${name.padEnd(8)} ${r.scale.toFixed(3).padStart(7)} px/µm  drawn as ${mode}${modeAfter !== mode ? `→${modeAfter}` : ''}  rAF median ${r.rafMs.toFixed(1)} ms (p90 ${r.rafP90.toFixed(1)}), ${r.fps.toFixed(1)} fps  sync frame median ${r.syncMs.toFixed(1)} ms (p90 ${r.syncP90.toFixed(1)})`,
@@ -152,7 +149,8 @@ export default async function viewerBench(): Promise<void> {
   const base = external ?? server!.baseUrl;
   const browser = await launchBrowser();
   try {
-    const id = process.env.VIEWER_BENCH_ANALYSIS ?? (await analyse(server!));
+    const id = process.env.VIEWER_BENCH_ANALYSIS ?? (await analyse(base, server ? server.output : () => ''));
+    console.log(`  analysis ${id} on ${base}`);
     const page = await (await browser.newContext({ viewport: { width: 1280, height: 900 } })).newPage();
     await page.goto(`${base}/sign-in`);
     await page.getByLabel('E-mail').fill('designer@larkspur.example');
@@ -176,14 +174,12 @@ export default async function viewerBench(): Promise<void> {
       console.log(`  ${run === 0 ? 'cold' : 'warm'}: first paint ${first ? `${first.toFixed(0)} ms` : 'not within 60 s'} after page.goto (polling every 25 ms); level of detail settled at ${settled.toFixed(0)} ms`);
     }
     await page.waitForFunction(() => (window as unknown as { __trenchantViewer?: unknown }).__trenchantViewer);
-    await page.evaluate(() => {
-      const h = (window as unknown as { __trenchantViewer: Hook; __fitScale: number }).__trenchantViewer;
-      (window as unknown as { __fitScale: number }).__fitScale = h.view().scale;
-    });
+    await page.evaluate('window.__fitScale = window.__trenchantViewer.view().scale');
     const load = (await import('node:os')).loadavg()[0]!.toFixed(2);
     console.log(`  frames (canvas ${await page.evaluate(() => (document.querySelector('canvas[data-testid=viewer-canvas]') as HTMLCanvasElement | null)?.width)} px wide; load average ${load}):`);
     await measureAt(page, 'overview', (fit) => fit, 8);
     await measureAt(page, 'mid', (fit) => fit * 3, 40);
+    await measureAt(page, 'near', () => 0.45, 40);
     await measureAt(page, 'close', () => 1, 40);
   } finally {
     await browser.close();
