@@ -5,10 +5,11 @@
  * shared/viewer-perf.md), then a screen-space overlay with flag marks and the selection highlight. Renders on
  * demand (one frame per change, coalesced by requestAnimationFrame), never in a loop.
  */
-import { Application, BufferImageSource, Container, Geometry, Graphics, GraphicsContext, Mesh, MeshSimple, Shader, Texture, type MeshGeometry } from 'pixi.js';
+import { Application, BufferImageSource, Container, Geometry, Graphics, Mesh, MeshSimple, Shader, Texture, type MeshGeometry } from 'pixi.js';
 import type { LayerMesh } from '@/lib/viewer/polygon-mesh';
 import { layoutToScreen, worldMatrix, type View } from '@/lib/viewer/view-transform';
 import { markStyle, type MarkFlag } from './flag-marks';
+import { buildMarkMesh, type MarkInstance } from './mark-mesh';
 
 const VERTEX = `in vec2 aPosition;
 in vec4 aColor;
@@ -43,9 +44,11 @@ export class ViewerScene {
   private polygons = new Container();
   private layerMeshes = new Map<number, Container>();
   private overlay = new Container();
-  private marks: { flag: MarkFlag; g: Graphics }[] = [];
+  /** Flags, most severe first (declutter keeps the first mark in a cell). */
+  private marks: MarkFlag[] = [];
+  private markMesh: Mesh<Geometry, Shader> | null = null;
+  private retiredGeometry: Geometry[] = [];
   private highlight = new Graphics();
-  private contexts = new Map<string, GraphicsContext>();
   private shader: Shader | null = null;
   private view: View = { cx: 0, cy: 0, scale: 1, width: 1, height: 1 };
   private pending = 0;
@@ -180,32 +183,8 @@ export class ViewerScene {
     this.requestRender();
   }
 
-  private context(flag: MarkFlag): GraphicsContext {
-    const s = markStyle(flag.severity);
-    let ctx = this.contexts.get(flag.severity);
-    if (!ctx) {
-      ctx = new GraphicsContext();
-      const r = s.size;
-      if (s.shape === 'triangle') ctx.poly([0, -r * 1.15, r, r * 0.75, -r, r * 0.75]);
-      else if (s.shape === 'diamond') ctx.poly([0, -r, r, 0, 0, r, -r, 0]);
-      else ctx.circle(0, 0, r * 0.8);
-      ctx.fill({ color: s.color }).stroke({ color: 0x111111, width: 1.5 });
-      this.contexts.set(flag.severity, ctx);
-    }
-    return ctx;
-  }
-
   setFlags(flags: MarkFlag[]): void {
-    for (const m of this.marks) m.g.destroy();
-    this.marks = [];
-    // Errors last, so they sit on top of warnings at the same place.
-    const order = [...flags].sort((a, b) => markStyle(b.severity).rank - markStyle(a.severity).rank);
-    for (const flag of order) {
-      const g = new Graphics(this.context(flag));
-      this.overlay.addChild(g);
-      this.marks.push({ flag, g });
-    }
-    this.overlay.addChild(this.highlight);
+    this.marks = [...flags].sort((a, b) => markStyle(a.severity).rank - markStyle(b.severity).rank);
     this.placeOverlay();
     this.requestRender();
   }
@@ -218,17 +197,21 @@ export class ViewerScene {
 
   private placeOverlay(): void {
     const v = this.view;
-    // Declutter: one mark per 9-px cell, the most severe winning (marks are stored least severe first).
+    // Declutter: one mark per 9-px cell, the most severe winning; the selected flag always shows.
     const taken = new Set<number>();
-    for (let k = this.marks.length - 1; k >= 0; k--) {
-      const { flag, g } = this.marks[k]!;
+    const shown: MarkInstance[] = [];
+    for (const flag of this.marks) {
       const [sx, sy] = layoutToScreen(v, flag.xUm, flag.yUm);
-      g.position.set(sx, sy);
-      const inView = sx > -20 && sy > -20 && sx < v.width + 20 && sy < v.height + 20;
+      if (!(sx > -20 && sy > -20 && sx < v.width + 20 && sy < v.height + 20)) continue;
       const cell = Math.floor(sx / 9) * 100_003 + Math.floor(sy / 9);
-      g.visible = inView && (!taken.has(cell) || flag.key === this.selected?.key);
-      if (g.visible) taken.add(cell);
+      if (taken.has(cell) && flag.key !== this.selected?.key) continue;
+      taken.add(cell);
+      const st = markStyle(flag.severity);
+      shown.push({ x: sx, y: sy, shape: st.shape, size: st.size, color: st.color });
     }
+    // Least severe first in the mesh, so errors are drawn on top.
+    shown.reverse();
+    this.setMarkMesh(shown);
     const h = this.highlight;
     h.clear();
     const f = this.selected;
@@ -240,6 +223,21 @@ export class ViewerScene {
       const [cx, cy] = layoutToScreen(v, f.xUm, f.yUm);
       h.circle(cx, cy, 14).stroke({ color: 0xffffff, width: 4 }).stroke({ color: 0x000000, width: 2 });
     }
+  }
+
+  private setMarkMesh(shown: MarkInstance[]): void {
+    if (this.markMesh) {
+      this.overlay.removeChild(this.markMesh);
+      this.retiredGeometry.push(this.markMesh.geometry);
+      this.markMesh.destroy();
+      this.markMesh = null;
+    }
+    if (shown.length === 0 || !this.shader) return;
+    const m = buildMarkMesh(shown);
+    const geometry = new Geometry({ attributes: { aPosition: { buffer: m.positions, format: 'float32x2' }, aColor: { buffer: m.colors, format: 'unorm8x4' } }, indexBuffer: m.indices });
+    const mesh = new Mesh({ geometry, shader: this.shader });
+    this.markMesh = mesh;
+    this.overlay.addChildAt(mesh, 0);
   }
 
   requestRender(): void {
@@ -256,6 +254,7 @@ export class ViewerScene {
     this.app.render();
     this.lastRenderMs = performance.now() - t;
     for (const m of this.retired.splice(0)) m.destroy({ texture: true, textureSource: true });
+    for (const g of this.retiredGeometry.splice(0)) g.destroy(true);
   }
 
   /** PNG of the current view (drawn now, so it matches what is on screen). */
@@ -268,7 +267,6 @@ export class ViewerScene {
     if (this.destroyed) return;
     this.destroyed = true;
     if (this.pending) cancelAnimationFrame(this.pending);
-    for (const ctx of this.contexts.values()) ctx.destroy();
     // app.init may still be running; destroying a half-built renderer throws, so only destroy a finished one.
     try {
       if (this.app.renderer) this.app.destroy({ removeView: true }, { children: true, texture: true, textureSource: true });
