@@ -14,7 +14,7 @@ const area = (b: BoxUm) => (b[2] - b[0]) * (b[3] - b[1]);
 
 /**
  * Level of detail by the count that would be submitted, not by zoom: after the view settles, ask the server for
- * the polygons around it (the view grown by half its size each side, then the bare view); if even the bare view
+ * the polygons around it (the view grown by a margin, smaller margins next, then the bare view); if even the bare view
  * holds more than POLYGON_BUDGET, show the coverage raster. Triangulation runs in a worker.
  */
 export function usePolygonLod(opts: { ready: boolean; view: View | null; sceneRef: RefObject<ViewerScene | null>; base: string; polygonCount: number | null; dieBboxUm: BoxUm | null; hiddenLayers: Set<number> }): 'raster' | 'polygons' | 'loading' {
@@ -41,10 +41,14 @@ export function usePolygonLod(opts: { ready: boolean; view: View | null; sceneRe
     if (st.tooMany && contains(st.tooMany, vb) && area(vb) >= area(st.tooMany) * 0.5) return; // still too many here
     const timer = setTimeout(() => {
       const whole = polygonCount <= POLYGON_BUDGET;
-      const gx = (vb[2] - vb[0]) / 2;
-      const gy = (vb[3] - vb[1]) / 2;
-      const grown: BoxUm = whole ? dieBboxUm : [vb[0] - gx, vb[1] - gy, vb[2] + gx, vb[3] + gy];
-      const ask = (box: BoxUm, fallback: BoxUm | null) => {
+      const grow = (f: number): BoxUm => {
+        const gx = (vb[2] - vb[0]) * f;
+        const gy = (vb[3] - vb[1]) * f;
+        return [vb[0] - gx, vb[1] - gy, vb[2] + gx, vb[3] + gy];
+      };
+      // Margins of half, a fifth, then none of the view on each side: the largest that stays within budget.
+      const tries: BoxUm[] = whole ? [dieBboxUm] : [grow(0.5), grow(0.2), vb];
+      const ask = (box: BoxUm, rest: BoxUm[]) => {
         const id = ++st.seq;
         w.onmessage = (e: MessageEvent<PolygonReply>) => {
           if (e.data.id !== st.seq) return;
@@ -56,8 +60,8 @@ export function usePolygonLod(opts: { ready: boolean; view: View | null; sceneRe
             s.setPolygons(e.data.meshes, e.data.originX, e.data.originY, hidden.current);
             s.setPolygonMode(true);
             setMode('polygons');
-          } else if (fallback) {
-            ask(fallback, null);
+          } else if (rest.length > 0) {
+            ask(rest[0]!, rest.slice(1));
           } else {
             st.box = null;
             st.tooMany = box;
@@ -68,7 +72,7 @@ export function usePolygonLod(opts: { ready: boolean; view: View | null; sceneRe
         };
         w.postMessage({ id, url: `${base}/polygons?box=${box.map((v) => v.toFixed(3)).join(',')}&max=${POLYGON_BUDGET}` });
       };
-      ask(grown, whole ? null : vb);
+      ask(tries[0]!, tries.slice(1));
     }, 120);
     return () => clearTimeout(timer);
   }, [ready, view, sceneRef, base, polygonCount, dieBboxUm]);

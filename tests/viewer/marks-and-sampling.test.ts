@@ -35,3 +35,15 @@ describe('map sampling (TRGRID1 convention: row 0 at the bottom, pixel (i,j) cov
     expect(sampleAt(values, g, 11, 24)).toBeNaN();
   });
 });
+
+describe('mark mesh', () => {
+  it('draws each mark as an outline shape and a smaller coloured shape at its screen point', async () => {
+    const { buildMarkMesh, opaqueAbgr } = await import('@/components/viewer/mark-mesh');
+    const m = buildMarkMesh([{ x: 10, y: 20, shape: 'diamond', size: 7, color: 0xd55e00 }]);
+    expect(m.positions.length / 2).toBe(8); // 4 outline + 4 fill vertices
+    expect(m.indices.length).toBe(12); // 2 + 2 triangles
+    expect(Array.from(m.positions.subarray(8, 16))).toEqual([10, 13, 17, 20, 10, 27, 3, 20]); // fill diamond, radius 7
+    expect(m.colors[4]).toBe(opaqueAbgr(0xd55e00));
+    expect(m.colors[4]! & 0xff).toBe(0xd5); // red in the low byte (RGBA8 little-endian)
+  });
+});
