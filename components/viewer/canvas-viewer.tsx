@@ -45,6 +45,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
   const [cursor, setCursor] = useState<[number, number] | null>(null);
   const [hover, setHover] = useState<{ flag: MarkFlag; sx: number; sy: number } | null>(null);
   const [hiddenLayers, setHiddenLayers] = useState<Set<number>>(new Set());
+  const [showMarks, setShowMarks] = useState(true);
   const { selected, select } = useFindingSelection();
 
   const info = useQuery({ queryKey: ['analysis', analysisId, 'viewer'], queryFn: () => apiJson<ViewerInfo>(`${base}/viewer`) });
@@ -213,7 +214,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
       return;
     }
     setCursor(screenToLayout(v, sx, sy));
-    const hit = hitMark(marks, toScreen, sx, sy);
+    const hit = showMarks ? hitMark(marks, toScreen, sx, sy) : null;
     setHover(hit ? { flag: hit, sx, sy } : null);
   };
   const onPointerUp = (e: React.PointerEvent) => {
@@ -221,7 +222,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
     drag.current = null;
     if (!d || d.moved || !viewRef.current) return;
     const [sx, sy] = local(e);
-    const hit = hitMark(marks, toScreen, sx, sy);
+    const hit = showMarks ? hitMark(marks, toScreen, sx, sy) : null;
     if (hit) select({ flagId: hit.key, xUm: hit.xUm, yUm: hit.yUm, bboxUm: hit.bboxUm, source: 'canvas' });
   };
   useEffect(() => {
@@ -348,6 +349,18 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
           {shown ? <Legend mapName={shown.name} kind={shown.kind} scale={kindInfo.scale} lo={lim[0]} hi={lim[1]} dataRange={dataRange} whatIf={shown.whatIf} onLimits={(lo, hi) => Number.isFinite(lo) && Number.isFinite(hi) && setLimits((p) => ({ ...p, [shown.name]: [lo, hi] }))} onReset={() => setLimits((p) => Object.fromEntries(Object.entries(p).filter(([k]) => k !== shown.name)))} /> : <p className="text-xs text-ink-500">Loading maps…</p>}
           <Readout at={cursor} rows={readout} />
           <MarkKey />
+          <label className="flex items-center gap-1 text-xs text-ink-700">
+            <input
+              type="checkbox"
+              checked={showMarks}
+              onChange={(e) => {
+                setShowMarks(e.target.checked);
+                sceneRef.current?.setMarksVisible(e.target.checked);
+              }}
+              data-testid="show-marks"
+            />
+            flag marks ({marks.length.toLocaleString('en')}{flagsQ.data && flagsQ.data.total > marks.length && !whatIf ? ` of ${flagsQ.data.total.toLocaleString('en')}` : ''}; dense ones thinned, worst kept)
+          </label>
           {layers.length > 0 ? (
             <div className="text-xs text-ink-700" data-testid="layers">
               <p className="font-semibold text-ink-900">Layers</p>

@@ -205,6 +205,13 @@ export class ViewerScene {
     this.requestRender();
   }
 
+  private marksVisible = true;
+  setMarksVisible(visible: boolean): void {
+    this.marksVisible = visible;
+    this.placeOverlay();
+    this.requestRender();
+  }
+
   setSelected(flag: MarkFlag | null): void {
     this.selected = flag;
     this.placeOverlay();
@@ -213,13 +220,22 @@ export class ViewerScene {
 
   private placeOverlay(): void {
     const v = this.view;
-    // Declutter: one mark per 9-px cell, the most severe winning; the selected flag always shows.
+    // Declutter: one mark per cell, the most severe winning; the selected flag always shows.
+    // Where hundreds are in view, coarser cells keep the map beneath readable (every flag stays in the table).
+    let inView = 0;
+    const screen: [number, number][] = this.marks.map((flag) => {
+      const p = layoutToScreen(v, flag.xUm, flag.yUm);
+      if (p[0] > -20 && p[1] > -20 && p[0] < v.width + 20 && p[1] < v.height + 20) inView++;
+      return p;
+    });
+    const cellPx = inView > 300 ? 22 : 9;
     const taken = new Set<number>();
     const shown: MarkInstance[] = [];
-    for (const flag of this.marks) {
-      const [sx, sy] = layoutToScreen(v, flag.xUm, flag.yUm);
-      if (!(sx > -20 && sy > -20 && sx < v.width + 20 && sy < v.height + 20)) continue;
-      const cell = Math.floor(sx / 9) * 100_003 + Math.floor(sy / 9);
+    for (let k = 0; k < this.marks.length; k++) {
+      const flag = this.marks[k]!;
+      const [sx, sy] = screen[k]!;
+      if (!(sx > -20 && sy > -20 && sx < v.width + 20 && sy < v.height + 20) || !this.marksVisible) continue;
+      const cell = Math.floor(sx / cellPx) * 100_003 + Math.floor(sy / cellPx);
       if (taken.has(cell) && flag.key !== this.selected?.key) continue;
       taken.add(cell);
       const st = markStyle(flag.severity);
