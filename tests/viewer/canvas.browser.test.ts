@@ -198,6 +198,10 @@ describe('canvas viewer in Chromium', () => {
     const few = decodePolygons(new Uint8Array(await (await get(`/polygons?box=${b[0] - 1},${b[1] - 1},${b[2] + 1},${b[3] + 1}&max=3`)).body()));
     expect(few.polyLayer.length).toBe(0);
     expect(few.total).toBeGreaterThan(3);
+    for (const path of ['/viewer', '/features.bin', `/polygons?box=${b.join(',')}`]) {
+      const anonymous = await fetch(`${server.baseUrl}/api/v1/analyses/${analysisId}${path}`);
+      expect(anonymous.status, path).toBe(401); // no session, no token
+    }
     const bad = await get('/polygons?box=10,10,5,5');
     expect(bad.status()).toBe(400);
     expect(((await bad.json()) as { error: { message: string } }).error.message).toContain('x0 < x1');
