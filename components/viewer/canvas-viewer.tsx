@@ -186,17 +186,23 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
     if (!selected) return scene.setSelected(null);
     const mark = marks.find((m) => m.key === selected.flagId) ?? { id: selected.flagId, key: selected.flagId, kind: '', severity: 'info' as const, xUm: selected.xUm, yUm: selected.yUm, bboxUm: selected.bboxUm, message: '', measured: 0, limit: 0, unit: '' };
     scene.setSelected(mark);
-    if (selected.source === 'table' && v) applyView(focusOn(v, selected.xUm, selected.yUm, selected.bboxUm));
+    if (selected.source === 'table' && v) {
+      applyView(focusOn(v, selected.xUm, selected.yUm, selected.bboxUm));
+      hostRef.current?.scrollIntoView({ block: 'nearest', behavior: 'smooth' });
+    }
   }, [ready, selected, marks, applyView]);
 
   // --- input ------------------------------------------------------------------------------------------------------
   const drag = useRef<{ x: number; y: number; moved: boolean } | null>(null);
+  // Touch pinch: the two active pointers; zoom by their distance ratio about their midpoint.
+  const touches = useRef(new Map<number, [number, number]>());
   const local = (e: { clientX: number; clientY: number }): [number, number] => {
     const r = hostRef.current!.getBoundingClientRect();
     return [e.clientX - r.left, e.clientY - r.top];
   };
   const toScreen = (x: number, y: number) => layoutToScreen(viewRef.current!, x, y);
   const onPointerDown = (e: React.PointerEvent) => {
+    touches.current.set(e.pointerId, local(e));
     hostRef.current?.setPointerCapture(e.pointerId);
     hostRef.current?.focus();
     drag.current = { x: e.clientX, y: e.clientY, moved: false };
@@ -205,6 +211,19 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
     const v = viewRef.current;
     if (!v) return;
     const [sx, sy] = local(e);
+    const t = touches.current;
+    if (t.size === 2 && t.has(e.pointerId)) {
+      const [other] = [...t.entries()].filter(([id]) => id !== e.pointerId);
+      const before = t.get(e.pointerId)!;
+      const o = other![1];
+      const d0 = Math.hypot(before[0] - o[0], before[1] - o[1]);
+      const d1 = Math.hypot(sx - o[0], sy - o[1]);
+      t.set(e.pointerId, [sx, sy]);
+      if (d0 > 0 && d1 > 0) applyView(zoomAbout(v, (sx + o[0]) / 2, (sy + o[1]) / 2, d1 / d0));
+      if (drag.current) drag.current.moved = true;
+      return;
+    }
+    if (t.has(e.pointerId)) t.set(e.pointerId, [sx, sy]);
     const d = drag.current;
     if (d && (d.moved || Math.abs(e.clientX - d.x) + Math.abs(e.clientY - d.y) > 3)) {
       d.moved = true;
@@ -218,6 +237,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
     setHover(hit ? { flag: hit, sx, sy } : null);
   };
   const onPointerUp = (e: React.PointerEvent) => {
+    touches.current.delete(e.pointerId);
     const d = drag.current;
     drag.current = null;
     if (!d || d.moved || !viewRef.current) return;
@@ -316,10 +336,11 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
             tabIndex={0}
             role="application"
             aria-label="die map: drag to pan, wheel to zoom, F to fit, arrows to pan, + and - to zoom, M for the next map"
-            className="relative h-[560px] w-full cursor-crosshair overflow-hidden rounded border border-wafer-300 bg-wafer-100 outline-none focus-visible:ring-2 focus-visible:ring-copper-600"
+            className="relative h-[560px] w-full cursor-crosshair touch-none overflow-hidden rounded border border-wafer-300 bg-wafer-100 outline-none focus-visible:ring-2 focus-visible:ring-copper-600"
             onPointerDown={onPointerDown}
             onPointerMove={onPointerMove}
             onPointerUp={onPointerUp}
+            onPointerCancel={(e) => touches.current.delete(e.pointerId)}
             onPointerLeave={() => {
               setCursor(null);
               setHover(null);
