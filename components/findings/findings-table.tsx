@@ -112,6 +112,7 @@ export function FindingsTable(props: Props) {
                 key={rowId}
                 ref={lit ? highlightRef : undefined}
                 data-row-id={rowId}
+                data-flag-key={x.key}
                 data-testid="finding-row"
                 aria-selected={lit}
                 tabIndex={0}

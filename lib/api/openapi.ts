@@ -9,6 +9,7 @@ import { LIMITS_PATHS } from './openapi/paths-limits';
 import { PIPELINE_PATHS, PIPELINE_SCHEMAS } from './openapi/paths-pipeline';
 import { REVIEW_PATHS, REVIEW_SCHEMAS } from './openapi/paths-review';
 import { MODEL_PATHS, MODEL_SCHEMAS } from './openapi/paths-models';
+import { VIEWER_PATHS } from './openapi/paths-viewer';
 import { HTTP_METHODS, type HttpMethod, type OpenApiDocument, type OperationObject } from './openapi/types';
 
 export type { HttpMethod, OpenApiDocument, OperationObject } from './openapi/types';
@@ -44,7 +45,7 @@ function buildDocument(): OpenApiDocument {
     servers: [{ url: API_BASE_PATH, description: 'This Trenchant instance' }],
     tags: TAGS,
     security: [{ bearerToken: [] }, { sessionCookie: [] }],
-    paths: { ...CORE_PATHS, ...PIPELINE_PATHS, ...LIMITS_PATHS, ...REVIEW_PATHS, ...MODEL_PATHS },
+    paths: { ...CORE_PATHS, ...PIPELINE_PATHS, ...LIMITS_PATHS, ...REVIEW_PATHS, ...MODEL_PATHS, ...VIEWER_PATHS },
     components: {
       securitySchemes: SECURITY_SCHEMES,
       schemas: { ...CORE_SCHEMAS, ...PIPELINE_SCHEMAS, ...REVIEW_SCHEMAS, ...MODEL_SCHEMAS },

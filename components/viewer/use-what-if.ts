@@ -1,0 +1,72 @@
+'use client';
+
+import { useEffect, useMemo, useRef, useState } from 'react';
+import type { ProcessModel } from '@/lib/etch/process-model';
+import type { Flag } from '@/lib/pipeline/flags';
+import type { GridGeometry } from '@/lib/pipeline/grid-file';
+import type { ViewerInfo } from '@/lib/viewer/viewer-source';
+import { paramsOf, type WhatIfParams } from '@/lib/viewer/whatif';
+import type { WhatIfReply } from './whatif.worker';
+
+export type WhatIfState = { params: WhatIfParams; depth: Float32Array | null; margin: Float32Array | null; risk: Float32Array | null; flags: Flag[]; ms: number; underTarget: number; count: number };
+
+/**
+ * The what-if worker: loads the per-opening columns once, then recomputes on every slider move. One run at a
+ * time; moves that arrive meanwhile collapse into the latest, so the maps follow the slider without a backlog.
+ */
+export function useWhatIf(info: ViewerInfo | undefined, coverage: { values: Float32Array; grid: GridGeometry } | null, base: string, start: boolean) {
+  const [whatIf, setWhatIf] = useState<WhatIfState | null>(null);
+  const [storedMargin, setStoredMargin] = useState<Float32Array | null>(null);
+  const [status, setStatus] = useState('loading per-opening data…');
+  const worker = useRef<Worker | null>(null);
+  const seq = useRef(0);
+  const busy = useRef(false);
+  const pending = useRef<WhatIfParams | null>(null);
+  const baseParams = useMemo(() => (info ? paramsOf(info.model as unknown as ProcessModel) : null), [info]);
+
+  useEffect(() => {
+    // Started only once the maps are on screen, so the per-opening download never delays the first picture.
+    if (!info || !coverage || !start) return;
+    const w = new Worker(new URL('./whatif.worker.ts', import.meta.url), { type: 'module' });
+    worker.current = w;
+    busy.current = false;
+    w.onmessage = (e: MessageEvent<WhatIfReply>) => {
+      const m = e.data;
+      if (m.type === 'ready') {
+        setStoredMargin(m.storedMargin);
+        setStatus(`${m.count.toLocaleString('en')} openings loaded`);
+        return;
+      }
+      busy.current = false;
+      if (m.type === 'error') {
+        setStatus(`what-if failed: ${m.message}`);
+      } else {
+        setWhatIf((prev) => (prev ? { ...prev, depth: m.depth, margin: m.margin, risk: m.risk, flags: m.flags, ms: m.ms.total, underTarget: m.underTarget, count: m.count } : prev));
+        setStatus(`${m.count.toLocaleString('en')} openings in ${m.ms.total.toFixed(0)} ms · ${m.underTarget} under target · ${m.flags.length} opening flags`);
+      }
+      const next = pending.current;
+      pending.current = null;
+      if (next) {
+        busy.current = true;
+        w.postMessage({ type: 'run', seq: ++seq.current, params: next });
+      }
+    };
+    w.postMessage({ type: 'init', featuresUrl: `${base}/features.bin`, model: info.model, limits: info.limits, severities: info.severities, exposedFraction: info.exposedFraction, coverage: coverage.values, grid: coverage.grid });
+    return () => w.terminate();
+  }, [info, coverage, base, start]);
+
+  const run = (params: WhatIfParams) => {
+    setWhatIf((prev) => ({ params, depth: prev?.depth ?? null, margin: prev?.margin ?? null, risk: prev?.risk ?? null, flags: prev?.flags ?? [], ms: 0, underTarget: 0, count: 0 }));
+    if (busy.current) {
+      pending.current = params;
+      return;
+    }
+    busy.current = true;
+    worker.current?.postMessage({ type: 'run', seq: ++seq.current, params });
+  };
+  const reset = () => {
+    pending.current = null;
+    setWhatIf(null);
+  };
+  return { whatIf, storedMargin, status, baseParams, run, reset };
+}
