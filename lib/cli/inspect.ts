@@ -3,7 +3,7 @@
  * format, units, top cell, cell count, and per layer/datatype the polygon count, union area (µm²) and bbox (µm).
  * Exit 0 on success, 2 on unreadable input or bad usage (one line on stderr, no stack trace).
  */
-import { parseCommandArgs, runCommand, UsageError } from './args';
+import { parseCommandArgs, printLayoutWarnings, runCommand, UsageError } from './args';
 import { readLayoutFile } from '../layout/read';
 import { layerSummary, type LayerSummaryRow } from '../layout/union-area';
 import type { FlatLayout } from '../layout/types';
@@ -86,6 +86,7 @@ export async function run(argv: string[]): Promise<number> {
       const message = err instanceof Error ? err.message : String(err);
       throw new Error(message.includes(file) ? message : `${file}: ${message}`);
     }
+    printLayoutWarnings(file, layout.warnings);
     const report = inspectReport(layout);
     console.log(values.json ? JSON.stringify(report) : table(report, file));
     return 0;
