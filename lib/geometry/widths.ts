@@ -28,6 +28,7 @@
 import { maximalDiskCentres, squaredDistanceTransform } from './distance';
 import { latticeInterior, type Lattice } from './lattice';
 import { convexInscribedRadius, isConvexRing } from './convex-width';
+import { polygonisedCircle } from './circle-width';
 import type { Box } from './types';
 
 export interface WidthOptions {
@@ -107,6 +108,10 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
     return { minWidth: w, maxWidth: w, step: 0, exact: true };
   }
   // Convex single ring (round/octagonal holes, rotated bars): exact Chebyshev radius, min = max.
+  // A polygonised circle measures as the circle it was drawn from (circle-width.ts), not its inscribed disk. Tested
+  // before convexity: tile cuts leave points rounded to the dbu grid on its edges, which can make it look non-convex.
+  const circle = rings.length === 1 ? polygonisedCircle(coords, rings[0]![0], rings[0]![1]) : null;
+  if (circle) return { minWidth: circle.diameter, maxWidth: circle.diameter, step: 0, exact: true };
   if (rings.length === 1 && isConvexRing(coords, rings[0]![0], rings[0]![1])) {
     const w = 2 * convexInscribedRadius(coords, rings[0]![0], rings[0]![1]);
     return { minWidth: w, maxWidth: w, step: 0, exact: true };
