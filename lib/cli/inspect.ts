@@ -5,7 +5,7 @@
  */
 import { parseCommandArgs, printLayoutWarnings, runCommand, UsageError } from './args';
 import { readLayoutFile } from '../layout/read';
-import { layerSummary, type LayerSummaryRow } from '../layout/union-area';
+import { layerSummary, type LayerSummaryRow } from '../geometry/union-area';
 import type { FlatLayout } from '../layout/types';
 
 const HELP = `usage: npm run --silent cli -- inspect FILE [--json] [--top CELL]
