@@ -41,29 +41,15 @@ export function setBbox(set: PolygonSet): Box | null {
  */
 export function openRegions(set: PolygonSet, dbuUm: number, opts: OpenRegionsOptions = {}): OpenRegions {
   const polarity = opts.polarity ?? 'clear';
-  const bbox = setBbox(set);
-  const region: Box | null = opts.regionDbu ?? bbox;
-  const b = new Builder();
-  if (!region || region[2] <= region[0] || region[3] <= region[1]) return finishRegions(b, dbuUm, region ?? [0, 0, 0, 0], 1);
-  const w = region[2] - region[0], h = region[3] - region[1];
-  const tile = opts.tileDbu ?? Math.max(1, Math.ceil(Math.sqrt((w * h * 64) / Math.max(1, set.count))));
-  const ntx = Math.max(1, Math.ceil(w / tile)), nty = Math.max(1, Math.ceil(h / tile));
-
-  // Bucket polygon indices per tile (closed bbox test so touching polygons meet in some tile).
+  // Per-polygon boxes first; the set's bbox (default region) comes from them, saving a pass over the points.
   const polyBox = new Float64Array(set.count * 4);
-  const counts = new Uint32Array(ntx * nty + 1);
-  const forEachTile = (p: number, fn: (t: number) => void) => {
-    const bx0 = polyBox[4 * p] as number, by0 = polyBox[4 * p + 1] as number;
-    const bx1 = polyBox[4 * p + 2] as number, by1 = polyBox[4 * p + 3] as number;
-    if (bx1 < region[0] || bx0 > region[2] || by1 < region[1] || by0 > region[3]) return;
-    const i0 = Math.max(0, Math.floor((bx0 - region[0]) / tile)), i1 = Math.min(ntx - 1, Math.floor((bx1 - region[0]) / tile));
-    const j0 = Math.max(0, Math.floor((by0 - region[1]) / tile)), j1 = Math.min(nty - 1, Math.floor((by1 - region[1]) / tile));
-    for (let j = j0; j <= j1; j++) for (let i = i0; i <= i1; i++) fn(j * ntx + i);
-  };
+  let X0 = Infinity, Y0 = Infinity, X1 = -Infinity, Y1 = -Infinity;
+  const c = set.coords, off = set.offsets;
   for (let p = 0; p < set.count; p++) {
     let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
-    for (let k = set.offsets[p] as number; k < (set.offsets[p + 1] as number); k++) {
-      const x = set.coords[2 * k] as number, y = set.coords[2 * k + 1] as number;
+    const e = off[p + 1] as number;
+    for (let k = off[p] as number; k < e; k++) {
+      const x = c[2 * k] as number, y = c[2 * k + 1] as number;
       if (x < x0) x0 = x;
       if (x > x1) x1 = x;
       if (y < y0) y0 = y;
@@ -73,8 +59,30 @@ export function openRegions(set: PolygonSet, dbuUm: number, opts: OpenRegionsOpt
     polyBox[4 * p + 1] = y0;
     polyBox[4 * p + 2] = x1;
     polyBox[4 * p + 3] = y1;
-    forEachTile(p, (t) => { counts[t + 1]!++; });
+    if (x0 < X0) X0 = x0;
+    if (y0 < Y0) Y0 = y0;
+    if (x1 > X1) X1 = x1;
+    if (y1 > Y1) Y1 = y1;
   }
+  const bbox: Box | null = X0 <= X1 ? [X0, Y0, X1, Y1] : null;
+  const region: Box | null = opts.regionDbu ?? bbox;
+  const b = new Builder();
+  if (!region || region[2] <= region[0] || region[3] <= region[1]) return finishRegions(b, dbuUm, region ?? [0, 0, 0, 0], 1);
+  const w = region[2] - region[0], h = region[3] - region[1];
+  const tile = opts.tileDbu ?? Math.max(1, Math.ceil(Math.sqrt((w * h * 64) / Math.max(1, set.count))));
+  const ntx = Math.max(1, Math.ceil(w / tile)), nty = Math.max(1, Math.ceil(h / tile));
+
+  // Bucket polygon indices per tile (closed bbox test so touching polygons meet in some tile).
+  const counts = new Uint32Array(ntx * nty + 1);
+  const forEachTile = (p: number, fn: (t: number) => void) => {
+    const bx0 = polyBox[4 * p] as number, by0 = polyBox[4 * p + 1] as number;
+    const bx1 = polyBox[4 * p + 2] as number, by1 = polyBox[4 * p + 3] as number;
+    if (bx1 < region[0] || bx0 > region[2] || by1 < region[1] || by0 > region[3]) return;
+    const i0 = Math.max(0, Math.floor((bx0 - region[0]) / tile)), i1 = Math.min(ntx - 1, Math.floor((bx1 - region[0]) / tile));
+    const j0 = Math.max(0, Math.floor((by0 - region[1]) / tile)), j1 = Math.min(nty - 1, Math.floor((by1 - region[1]) / tile));
+    for (let j = j0; j <= j1; j++) for (let i = i0; i <= i1; i++) fn(j * ntx + i);
+  };
+  for (let p = 0; p < set.count; p++) forEachTile(p, (t) => { counts[t + 1]!++; });
   for (let t = 0; t < ntx * nty; t++) counts[t + 1]! += counts[t] as number;
   const bucket = new Uint32Array(counts[ntx * nty] as number);
   const fill = counts.slice(0, ntx * nty);

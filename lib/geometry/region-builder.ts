@@ -4,6 +4,7 @@
  */
 import type ClipperLib from 'clipper-lib';
 import type { PolygonSet } from '../layout/types';
+import { GrowU32 } from '../layout/grow-buffer';
 import { ringArea } from './ring';
 import type { Box } from './types';
 
@@ -37,12 +38,17 @@ export class Builder {
   /** Ring points (growable typed buffer: pushing ~10⁷ numbers into a JS array dominated the union). */
   coords = new Float64Array(1 << 16);
   coordLen = 0;
-  ringOffsets: number[] = [0];
-  pieceRings: number[] = [0];
+  /** Typed, growable (a million pieces as JS number arrays cost more in GC than the union itself). */
+  ringOffsets = new GrowU32(1 << 12);
+  pieceRings = new GrowU32(1 << 12);
   seamA: number[] = [];
   seamB: number[] = [];
   seamLen: number[] = [];
-  pieceCoverage: number[] = [];
+  pieceCoverage = new GrowU32(1 << 12);
+  constructor() {
+    this.ringOffsets.push(0);
+    this.pieceRings.push(0);
+  }
   covCoords: number[] = [];
   covRingOffsets: number[] = [0];
   /** Tile-line stretches: key "v:X" / "h:Y" → [lo, hi, piece, side] flat quadruples. side 0 = piece below/left. */
@@ -72,15 +78,15 @@ export function finishRegions(b: Builder, dbuUm: number, region: Box, tile: numb
     dbuUm,
     regionDbu: region,
     coords: b.coords.slice(0, b.coordLen),
-    ringOffsets: Uint32Array.from(b.ringOffsets),
+    ringOffsets: b.ringOffsets.data.slice(0, b.ringOffsets.length),
     ringCount: b.ringOffsets.length - 1,
-    pieceRings: Uint32Array.from(b.pieceRings),
+    pieceRings: b.pieceRings.data.slice(0, b.pieceRings.length),
     pieceCount: b.pieceRings.length - 1,
     seamA: Uint32Array.from(b.seamA),
     seamB: Uint32Array.from(b.seamB),
     seamLen: Float64Array.from(b.seamLen),
     tileDbu: tile,
-    pieceCoverage: Uint8Array.from(b.pieceCoverage),
+    pieceCoverage: Uint8Array.from(b.pieceCoverage.view()),
     coverageCoords: Float64Array.from(b.covCoords),
     coverageRingOffsets: Uint32Array.from(b.covRingOffsets),
   };
@@ -144,11 +150,11 @@ export function emitPieceFromPaths(rings: ClipperLib.Path[], tb: Box, b: Builder
     } else b.addRing(xy, 0, xy.length);
   });
   const piece = b.pieceRings.length - 1;
-  const ringStart = b.pieceRings[piece] as number;
+  const ringStart = b.pieceRings.data[piece] as number;
   b.endPiece(coverage);
   // Record edges lying on the tile's own boundary lines.
   for (let r = ringStart; r < b.ringOffsets.length - 1; r++) {
-    const s = b.ringOffsets[r] as number, e = b.ringOffsets[r + 1] as number;
+    const s = b.ringOffsets.data[r] as number, e = b.ringOffsets.data[r + 1] as number;
     for (let k = s; k < e; k++) {
       const n = k + 1 < e ? k + 1 : s;
       const x0 = b.coords[2 * k] as number, y0 = b.coords[2 * k + 1] as number;
