@@ -285,19 +285,30 @@ const DIR_Y = Float64Array.from({ length: 16 }, (_, k) => Math.sin((k * Math.PI)
  * with halving steps (moves shorter than the current radius never leave the opening).
  */
 function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64Array): number {
-  // The three best nodes (ties broken by position) seed the search.
-  const starts: number[] = [];
+  // The eight best nodes (ties broken by position); of these, up to three more than two steps apart seed the
+  // search. Neighbouring top nodes sit on the same maximum and their searches end at the same point.
+  const top: number[] = [];
   for (let q = 0; q < d2.length; q++) {
     const v = d2[q] as number;
     if (v === 0 || v === Infinity) continue;
-    if (starts.length < 3) starts.push(q);
-    else if (v > (d2[starts[2] as number] as number)) starts[2] = q;
+    if (top.length < 8) top.push(q);
+    else if (v > (d2[top[7] as number] as number)) top[7] = q;
     else continue;
-    starts.sort((a, b) => (d2[b] as number) - (d2[a] as number));
+    for (let k = top.length - 1; k > 0 && (d2[top[k] as number] as number) > (d2[top[k - 1] as number] as number); k--) {
+      const t = top[k] as number;
+      top[k] = top[k - 1] as number;
+      top[k - 1] = t;
+    }
+  }
+  const starts: number[] = [];
+  for (const q of top) {
+    if (starts.length === 3) break;
+    const qi = q % lat.nx, qj = (q - qi) / lat.nx;
+    if (starts.every((s) => (s % lat.nx - qi) ** 2 + ((s - (s % lat.nx)) / lat.nx - qj) ** 2 > 4)) starts.push(q);
   }
   // Lattice D can exceed the true distance off the exact lattice: use exact distances only.
   let best = 0;
-  for (const q of starts.slice(0, 3)) {
+  for (const q of starts) {
     const i = q % lat.nx, j = (q - i) / lat.nx;
     let x = lat.x0 + i * lat.step, y = lat.y0 + j * lat.step;
     let d = distanceToEdges(edges, x, y);
