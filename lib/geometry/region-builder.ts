@@ -54,17 +54,34 @@ export class Builder {
   /** Tile-line stretches: key "v:X" / "h:Y" → [lo, hi, piece, side] flat quadruples. side 0 = piece below/left. */
   lines = new Map<string, number[]>();
 
-  addRing(xy: ArrayLike<number>, start: number, end: number): void {
-    if (this.coordLen + (end - start) > this.coords.length) {
-      const grown = new Float64Array(Math.max(2 * this.coords.length, this.coordLen + (end - start)));
+  /** Room for `n` more coordinates; returns the (possibly replaced) buffer. */
+  reserve(n: number): Float64Array {
+    if (this.coordLen + n > this.coords.length) {
+      const grown = new Float64Array(Math.max(2 * this.coords.length, this.coordLen + n));
       grown.set(this.coords.subarray(0, this.coordLen));
       this.coords = grown;
     }
-    if (xy instanceof Float64Array) {
-      this.coords.set(xy.subarray(start, end), this.coordLen);
-      this.coordLen += end - start;
-    } else for (let k = start; k < end; k++) this.coords[this.coordLen++] = xy[k] as number;
-    this.ringOffsets.push(this.coordLen / 2);
+    return this.coords;
+  }
+  addRing(xy: ArrayLike<number>, start: number, end: number): void {
+    const d = this.reserve(end - start);
+    let o = this.coordLen;
+    for (let k = start; k < end; k++) d[o++] = xy[k] as number;
+    this.coordLen = o;
+    this.ringOffsets.push(o / 2);
+  }
+  /** Ring copied from a Float64Array in order (forward) or reversed point order, without temporary arrays. */
+  addRingF64(xy: Float64Array, start: number, end: number, reverse: boolean): void {
+    const d = this.reserve(end - start);
+    let o = this.coordLen;
+    if (!reverse) for (let k = start; k < end; k++) d[o++] = xy[k] as number;
+    else
+      for (let k = end - 2; k >= start; k -= 2) {
+        d[o++] = xy[k] as number;
+        d[o++] = xy[k + 1] as number;
+      }
+    this.coordLen = o;
+    this.ringOffsets.push(o / 2);
   }
   endPiece(coverage = 1): number {
     this.pieceRings.push(this.ringOffsets.length - 1);
@@ -106,13 +123,9 @@ export function addCoverageRing(b: Builder, xy: number[], sign: number): void {
 }
 
 export function emitRect(set: PolygonSet, p: number, b: Builder): void {
-  const s = set.offsets[p] as number;
-  const xy = set.coords.subarray(2 * s, 2 * s + 8);
-  if (ringArea(xy) >= 0) b.addRing(xy, 0, 8);
-  else {
-    const r = [xy[0], xy[1], xy[6], xy[7], xy[4], xy[5], xy[2], xy[3]] as number[];
-    b.addRing(r, 0, 8);
-  }
+  const s2 = 2 * (set.offsets[p] as number);
+  // Reversed point order of a clockwise rectangle: p0, p3, p2, p1 (the same ring as before, started at p3).
+  b.addRingF64(set.coords, s2, s2 + 8, ringArea(set.coords, s2, s2 + 8) < 0);
   b.endPiece();
 }
 
@@ -126,14 +139,8 @@ export function emitClippedRect(polyBox: Float64Array, p: number, tb: Box, b: Bu
 
 /** An isolated simple polygon strictly inside the tile, oriented counter-clockwise. */
 export function emitRing(set: PolygonSet, p: number, b: Builder): void {
-  const s = set.offsets[p] as number, e = set.offsets[p + 1] as number;
-  const xy = set.coords.subarray(2 * s, 2 * e);
-  if (ringArea(xy) > 0) b.addRing(xy, 0, xy.length);
-  else {
-    const rev: number[] = [];
-    for (let k = xy.length - 2; k >= 0; k -= 2) rev.push(xy[k] as number, xy[k + 1] as number);
-    b.addRing(rev, 0, rev.length);
-  }
+  const s2 = 2 * (set.offsets[p] as number), e2 = 2 * (set.offsets[p + 1] as number);
+  b.addRingF64(set.coords, s2, e2, !(ringArea(set.coords, s2, e2) > 0));
   b.endPiece();
 }
 
