@@ -66,7 +66,7 @@ export function openRegions(set: PolygonSet, dbuUm: number, opts: OpenRegionsOpt
   }
   const bbox: Box | null = X0 <= X1 ? [X0, Y0, X1, Y1] : null;
   const region: Box | null = opts.regionDbu ?? bbox;
-  const b = new Builder();
+  const b = new Builder(set.coords.length);
   if (!region || region[2] <= region[0] || region[3] <= region[1]) return finishRegions(b, dbuUm, region ?? [0, 0, 0, 0], 1);
   const w = region[2] - region[0], h = region[3] - region[1];
   const tile = opts.tileDbu ?? Math.max(1, Math.ceil(Math.sqrt((w * h * 64) / Math.max(1, set.count))));

@@ -36,7 +36,7 @@ export interface OpenRegions {
 
 export class Builder {
   /** Ring points (growable typed buffer: pushing ~10⁷ numbers into a JS array dominated the union). */
-  coords = new Float64Array(1 << 16);
+  coords: Float64Array;
   coordLen = 0;
   /** Typed, growable (a million pieces as JS number arrays cost more in GC than the union itself). */
   ringOffsets = new GrowU32(1 << 12);
@@ -45,7 +45,9 @@ export class Builder {
   seamB: number[] = [];
   seamLen: number[] = [];
   pieceCoverage = new GrowU32(1 << 12);
-  constructor() {
+  /** `expectedCoords`: about the input's coordinate count (isolated polygons pass through), so growing is rare. */
+  constructor(expectedCoords = 1 << 16) {
+    this.coords = new Float64Array(Math.max(1 << 12, Math.ceil(expectedCoords * 1.05) + 1024));
     this.ringOffsets.push(0);
     this.pieceRings.push(0);
   }
@@ -94,7 +96,8 @@ export function finishRegions(b: Builder, dbuUm: number, region: Box, tile: numb
   return {
     dbuUm,
     regionDbu: region,
-    coords: b.coords.slice(0, b.coordLen),
+    // A view when the buffer is nearly full (no 10⁸-byte copy), a trimmed copy when much of it is unused.
+    coords: b.coordLen >= 0.75 * b.coords.length ? b.coords.subarray(0, b.coordLen) : b.coords.slice(0, b.coordLen),
     ringOffsets: b.ringOffsets.data.slice(0, b.ringOffsets.length),
     ringCount: b.ringOffsets.length - 1,
     pieceRings: b.pieceRings.data.slice(0, b.pieceRings.length),
