@@ -6,6 +6,7 @@
 import { parseCommandArgs, printLayoutWarnings, runCommand, UsageError } from './args';
 import { readLayoutFile } from '../layout/read';
 import { layerSummary, type LayerSummaryRow } from '../geometry/union-area';
+import type { LayoutWarning } from '../layout/errors';
 import type { FlatLayout } from '../layout/types';
 
 const HELP = `usage: npm run --silent cli -- inspect FILE [--json] [--top CELL]
@@ -24,6 +25,8 @@ export interface InspectReport {
   cells: number;
   labels: number;
   layers: LayerSummaryRow[];
+  /** Repairs the reader made (also printed on stderr), e.g. unclosed boundaries with their byte offsets. */
+  warnings: LayoutWarning[];
 }
 
 export function inspectReport(layout: FlatLayout): InspectReport {
@@ -36,6 +39,7 @@ export function inspectReport(layout: FlatLayout): InspectReport {
     cells: layout.cellCount,
     labels: layout.labels.length,
     layers: layerSummary(layout),
+    warnings: layout.warnings ?? [],
   };
 }
 

@@ -74,6 +74,8 @@ describe('unclosed BOUNDARY', () => {
     );
     expect(r.code).toBe(0);
     expect(r.stderr).toContain(`warning: ${file}: BOUNDARY element at byte ${boundaryOffsets(bytes)[1]} is not closed`);
-    expect((JSON.parse(r.stdout) as { layers: { areaUm2: number }[] }).layers[0]!.areaUm2).toBeCloseTo(9, 9);
+    const j = JSON.parse(r.stdout) as { layers: { areaUm2: number }[]; warnings: { code: string; offset: number }[] };
+    expect(j.layers[0]!.areaUm2).toBeCloseTo(9, 9);
+    expect(j.warnings).toEqual([expect.objectContaining({ code: 'unclosed-boundary', offset: boundaryOffsets(bytes)[1] })]);
   });
 });
