@@ -124,6 +124,9 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
   return res;
 }
 
+/** Distance buffer reused by every lattice measurement (results never keep it). */
+let d2Scratch = new Float64Array(0);
+
 /** The lattice method of the module doc (shapes that are neither rectangles nor convex). */
 function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbox: Box, area: number, perimeter: number, manhattan: boolean, g: number, opts: WidthOptions): WidthResult {
   const maxNodes = opts.maxNodes ?? 4_096;
@@ -148,7 +151,9 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
   }
   const lat: Lattice = { x0: bbox[0], y0: bbox[1], step, nx: Math.ceil(bw / step - 1e-9) + 1, ny: Math.ceil(bh / step - 1e-9) + 1 };
   const mask = latticeInterior(coords, rings, lat);
-  const d2 = squaredDistanceTransform(mask, lat.nx, lat.ny);
+  const nodes = lat.nx * lat.ny;
+  if (d2Scratch.length < nodes) d2Scratch = new Float64Array(Math.max(nodes, 2 * d2Scratch.length));
+  const d2 = squaredDistanceTransform(mask, lat.nx, lat.ny, d2Scratch.subarray(0, nodes));
   let maxD2 = 0;
   for (let q = 0; q < d2.length; q++) if ((d2[q] as number) > maxD2 && (d2[q] as number) !== Infinity) maxD2 = d2[q] as number;
   if (maxD2 === 0) {
