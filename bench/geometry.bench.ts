@@ -2,30 +2,14 @@
  * Geometry engine benchmark: 1 M polygons over 10 mm × 10 mm (bench/geometry-layout.ts, seeded).
  * Stages: tiled union → coverage raster (10 µm pixels) → window density 100/50 and 700/70 µm → effective density
  * (Gaussian L = 500 µm and 4 mm) → features with widths → feature index. Targets: < 10 s in all, < 2 GB peak.
- * Run: npm run bench, or npx tsx bench/geometry.bench.ts (GEOMETRY_BENCH_WORKERS=2 adds the feature stage sharded
- * over two worker threads). Each stage reports wall and CPU time and the load average: the machine is shared.
+ * Run: npm run bench, or npx tsx bench/geometry.bench.ts. The feature stage runs twice: on one thread, and through
+ * featuresInThreads (the pipeline's two-thread path). Each stage reports wall and CPU time and the load average.
  */
 import { availableParallelism, loadavg } from 'node:os';
 import { pathToFileURL } from 'node:url';
-import { Worker } from 'node:worker_threads';
-import { effectiveDensity, featuresFromRegions, FeatureIndex, numberFeatures, openRegions, rasterizeOpenRegions, windowDensity, type Feature, type Grid, type OpenRegions } from '../lib/geometry';
-import { unpackFeatures } from './geometry-features.worker';
+import { effectiveDensity, featuresFromRegions, FeatureIndex, openRegions, rasterizeOpenRegions, windowDensity, type Grid } from '../lib/geometry';
+import { featuresInThreads } from '../lib/geometry/parallel-features';
 import { benchLayout } from './geometry-layout';
-
-function shardInWorker(regions: OpenRegions, index: number, count: number): Promise<Feature[]> {
-  return new Promise((resolve, reject) => {
-    // The worker is TypeScript: a small bootstrap registers tsx's loader in the worker, then imports it.
-    const api = import.meta.resolve('tsx/esm/api');
-    const file = new URL('./geometry-features.worker.ts', import.meta.url).href;
-    const w = new Worker(`import(${JSON.stringify(api)}).then((m) => { m.register(); return import(${JSON.stringify(file)}); });`, { eval: true });
-    w.once('message', (packed: Float64Array) => {
-      resolve(unpackFeatures(packed));
-      void w.terminate();
-    });
-    w.once('error', reject);
-    w.postMessage({ regions, index, count });
-  });
-}
 
 export default async function geometryBench(): Promise<void> {
   let peak = 0;
@@ -52,22 +36,19 @@ export default async function geometryBench(): Promise<void> {
   const e1 = stage('effective density L = 500 µm', () => effectiveDensity(cov, grid, { lengthUm: 500 }));
   const e2 = stage('effective density L = 4 mm', () => effectiveDensity(cov, grid, { lengthUm: 4000 }));
   const feats = stage('features + widths (1 thread)', () => featuresFromRegions(regions));
-  // Optional (GEOMETRY_BENCH_WORKERS=n): the same stage sharded over n workers by the caller (FeatureOptions.shard),
-  // including worker start-up and copying the regions in and the packed features back. Off by default: it holds
-  // a second copy of everything, and on a machine already busy with other work it gains nothing.
-  const nWorkers = Number(process.env.GEOMETRY_BENCH_WORKERS ?? 0);
-  if (nWorkers > 0) {
-    const t0 = performance.now();
-    const sharded = numberFeatures((await Promise.all(Array.from({ length: nWorkers }, (_, index) => shardInWorker(regions, index, nWorkers)))).flat());
-    rows.push([`features + widths (${nWorkers} workers, wall only)`, performance.now() - t0, NaN]);
-    if (sharded.length !== feats.length || sharded.some((f, k) => f.minWidthUm !== feats[k]?.minWidthUm || f.maxWidthUm !== feats[k]?.maxWidthUm)) throw new Error('sharded features differ from the single-thread run');
-  }
+  // The pipeline's path: the calling thread and one worker (start-up and copying the regions included).
+  const info: { threads?: number } = {};
+  const t0 = performance.now();
+  const threaded = featuresInThreads(regions, {}, info);
+  const nWorkers = info.threads ?? 1;
+  rows.push([`features + widths (${nWorkers} threads, wall only)`, performance.now() - t0, NaN]);
+  if (threaded.length !== feats.length || threaded.some((f, k) => f.minWidthUm !== feats[k]?.minWidthUm || f.maxWidthUm !== feats[k]?.maxWidthUm)) throw new Error('two-thread features differ from the single-thread run');
   stage('feature index (rbush)', () => new FeatureIndex(feats));
   clearInterval(timer);
   sample();
   // Two totals: with the feature stage on one thread, and with it sharded over two workers.
   const sum = (skip: RegExp, col: 1 | 2) => rows.slice(1).filter((r) => !skip.test(r[0])).reduce((s, r) => s + r[col], 0);
-  const counted = sum(/workers/, 1), countedCpu = sum(/workers/, 2);
+  const counted = sum(/threads/, 1), countedCpu = sum(/threads/, 2);
   const counted2 = sum(/1 thread/, 1);
   const kinds: Record<string, number> = {};
   for (const f of feats) kinds[f.kind] = (kinds[f.kind] ?? 0) + 1;
@@ -77,7 +58,7 @@ export default async function geometryBench(): Promise<void> {
   const secs = (ms: number) => (Number.isNaN(ms) ? '      –  ' : `${(ms / 1000).toFixed(2).padStart(7)} s`);
   for (const [name, ms, cpu] of rows) console.log(`  ${name.padEnd(40)} ${secs(ms)} ${secs(cpu)}`);
   console.log(`  ${'total, features on 1 thread'.padEnd(40)} ${secs(counted)} ${secs(countedCpu)}   target < 10 s (without generation)`);
-  if (nWorkers > 0) console.log(`  ${`total, features on ${nWorkers} workers`.padEnd(40)} ${secs(counted2)}`);
+  console.log(`  ${`total, features on ${nWorkers} threads`.padEnd(40)} ${secs(counted2)}`);
   console.log(`  peak RSS ${(peak / 2 ** 20).toFixed(0)} MiB (max RSS ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MiB)   target < 2048 MiB`);
   console.log(`  check: 100/50 ${w1.nx}×${w1.ny} min ${w1.min.toFixed(6)} max ${w1.max.toFixed(6)} mean ${w1.mean.toFixed(6)}; 700/70 ${w2.nx}×${w2.ny} min ${w2.min.toFixed(6)} max ${w2.max.toFixed(6)}; global ${w1.globalDensity.toFixed(6)}`);
   console.log(`  check: effective density centre L=500 ${e1[500 * 1000 + 500]?.toFixed(4)}, L=4mm ${e2[500 * 1000 + 500]?.toFixed(4)}`);

@@ -9,7 +9,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { GdsiiWriter } from '../lib/layout/gdsii-writer';
 import { readLayoutFile } from '../lib/layout/read';
-import { layerSummary } from '../lib/layout/union-area';
+import { layerSummary } from '../lib/geometry/union-area';
 
 const N = 1000; // N × N instances
 

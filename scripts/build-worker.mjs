@@ -2,6 +2,8 @@
 // Next's bundle has no separate worker file:
 //   lib/pipeline/worker.ts       → analysis-worker.mjs (the analysis job pool)
 //   lib/uploads/check-worker.ts  → upload-worker.mjs   (the upload check pool)
+//   lib/geometry/features-thread.ts → features-thread.mjs (the second thread that measures openings; the analysis
+//                                   worker finds it beside itself)
 // Run by `npm run build`, and by the server itself (lib/jobs/worker-file.ts) when a file is missing or older than
 // its sources, so `next build` alone, the test helper and `next dev` work too. Kept out of .next, which
 // `next build` empties. Writes to temporary names and renames, so concurrent builders and running pools never see
@@ -16,6 +18,7 @@ const OUT_DIR = path.join(root, 'node_modules', '.cache', 'trenchant');
 const ENTRIES = [
   { entry: 'lib/pipeline/worker.ts', out: 'analysis-worker.mjs' },
   { entry: 'lib/uploads/check-worker.ts', out: 'upload-worker.mjs' },
+  { entry: 'lib/geometry/features-thread.ts', out: 'features-thread.mjs' },
 ];
 
 const esbuild = createRequire(path.join(root, 'package.json'))('esbuild');

@@ -1,5 +1,10 @@
 import { parseArgs, type ParseArgsConfig } from 'node:util';
 
+/** Print the reader's repairs (unclosed boundaries, ...) on stderr, one line each, so none is silent. */
+export function printLayoutWarnings(file: string, warnings: readonly { message: string }[] | undefined): void {
+  for (const w of warnings ?? []) process.stderr.write(`trenchant: warning: ${file}: ${w.message}\n`);
+}
+
 /** Thrown for a usage problem; the command prints the message and exits 2. */
 export class UsageError extends Error {}
 

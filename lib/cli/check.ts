@@ -17,7 +17,7 @@ import { runAnalysis, type AnalysisResult } from '../pipeline/run-analysis';
 import { parseAnalysisSettings, type FieldIssue } from '../pipeline/settings';
 import type { AnalysisSummary } from '../pipeline/summary';
 import { mapFileName } from '../pipeline/map-files';
-import { layerOption, numberOption, parseCommandArgs, runCommand, UsageError } from './args';
+import { layerOption, numberOption, parseCommandArgs, printLayoutWarnings, runCommand, UsageError } from './args';
 
 const HELP = `usage: npm run --silent cli -- check FILE --layer L/D --model MODEL.json [options]
 
@@ -232,6 +232,7 @@ async function check(values: Values, positionals: string[]): Promise<number> {
     const message = err instanceof Error ? err.message : String(err);
     throw new CheckInputError(typeof code === 'string' ? `layout-${code}` : 'layout', message.includes(file) ? message : `${file}: ${message}`);
   }
+  printLayoutWarnings(file, layout.warnings);
 
   let result: AnalysisResult;
   try {

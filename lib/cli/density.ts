@@ -3,7 +3,7 @@
  * density of one layer, with the method block (origin, denominator, edge policy) printed beside the numbers.
  * Exit 0 on success, 2 on bad input or usage (one line on stderr).
  */
-import { layerOption, numberOption, parseCommandArgs, runCommand, UsageError } from './args';
+import { layerOption, numberOption, parseCommandArgs, printLayoutWarnings, runCommand, UsageError } from './args';
 import { readLayoutFile } from '../layout/read';
 import type { FlatLayout, PolygonSet } from '../layout/types';
 import { alignedPixelUm, coverageRaster64, gridForBox, lengthGcd, setBbox, windowDensity, type Box, type Polarity } from '../geometry';
@@ -32,11 +32,14 @@ export function findLayer(layout: FlatLayout, spec: { layer: number; datatype: n
 }
 
 export async function readLayout(file: string, top: string | undefined): Promise<FlatLayout> {
+  let layout: FlatLayout;
   try {
-    return await readLayoutFile(file, top !== undefined ? { topCell: top } : {});
+    layout = await readLayoutFile(file, top !== undefined ? { topCell: top } : {});
   } catch (err) {
     throw new Error(`${file}: ${err instanceof Error ? err.message : String(err)}`);
   }
+  printLayoutWarnings(file, layout.warnings);
+  return layout;
 }
 
 function choice<T extends string>(name: string, value: string | undefined, allowed: readonly T[], fallback: T): T {

@@ -4,7 +4,8 @@
  */
 import { layerOption, numberOption, parseCommandArgs, runCommand, UsageError } from './args';
 import { findLayer, readLayout } from './density';
-import { extractFeatures, type Polarity } from '../geometry';
+import { openRegions, type Polarity } from '../geometry';
+import { featuresInThreads } from '../geometry/parallel-features';
 
 const HELP = `usage: npm run --silent cli -- features FILE --layer L/D [--json] [options]
 
@@ -45,12 +46,8 @@ export async function run(argv: string[]): Promise<number> {
     if (openFieldWidthUm <= 0 || trenchAspect <= 0) throw new UsageError('--open-field-um and --trench-aspect must be positive');
     const layout = await readLayout(file, o.top);
     const set = findLayer(layout, layerSpec, file);
-    const features = extractFeatures(set, layout.dbuUm, {
-      polarity,
-      regionDbu: polarity === 'dark' ? (layout.bboxDbu ?? undefined) : undefined,
-      openFieldWidthUm,
-      trenchAspect,
-    });
+    const regionDbu = polarity === 'dark' ? (layout.bboxDbu ?? undefined) : undefined;
+    const features = featuresInThreads(openRegions(set, layout.dbuUm, { polarity, regionDbu }), { polarity, regionDbu, openFieldWidthUm, trenchAspect });
     const rows = features.map((f) => ({
       id: f.id,
       kind: f.kind,

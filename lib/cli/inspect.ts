@@ -3,9 +3,10 @@
  * format, units, top cell, cell count, and per layer/datatype the polygon count, union area (µm²) and bbox (µm).
  * Exit 0 on success, 2 on unreadable input or bad usage (one line on stderr, no stack trace).
  */
-import { parseCommandArgs, runCommand, UsageError } from './args';
+import { parseCommandArgs, printLayoutWarnings, runCommand, UsageError } from './args';
 import { readLayoutFile } from '../layout/read';
-import { layerSummary, type LayerSummaryRow } from '../layout/union-area';
+import { layerSummary, type LayerSummaryRow } from '../geometry/union-area';
+import type { LayoutWarning } from '../layout/errors';
 import type { FlatLayout } from '../layout/types';
 
 const HELP = `usage: npm run --silent cli -- inspect FILE [--json] [--top CELL]
@@ -24,6 +25,8 @@ export interface InspectReport {
   cells: number;
   labels: number;
   layers: LayerSummaryRow[];
+  /** Repairs the reader made (also printed on stderr), e.g. unclosed boundaries with their byte offsets. */
+  warnings: LayoutWarning[];
 }
 
 export function inspectReport(layout: FlatLayout): InspectReport {
@@ -36,6 +39,7 @@ export function inspectReport(layout: FlatLayout): InspectReport {
     cells: layout.cellCount,
     labels: layout.labels.length,
     layers: layerSummary(layout),
+    warnings: layout.warnings ?? [],
   };
 }
 
@@ -86,6 +90,7 @@ export async function run(argv: string[]): Promise<number> {
       const message = err instanceof Error ? err.message : String(err);
       throw new Error(message.includes(file) ? message : `${file}: ${message}`);
     }
+    printLayoutWarnings(file, layout.warnings);
     const report = inspectReport(layout);
     console.log(values.json ? JSON.stringify(report) : table(report, file));
     return 0;

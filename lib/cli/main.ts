@@ -32,11 +32,15 @@ async function main(argv: string[]): Promise<number> {
   return (await command.load()).run(rest);
 }
 
+// Never process.exit(): stdout to a pipe is asynchronous, and exiting drops what is still queued (output stopped
+// at 64 KiB). Setting exitCode lets Node drain stdout and stderr, then exit with that code.
 main(process.argv.slice(2)).then(
-  (code) => process.exit(code),
+  (code) => {
+    process.exitCode = code;
+  },
   (err: unknown) => {
     // Commands report expected problems themselves; anything reaching here is a bug, but users still get one line.
     console.error(`trenchant: internal error: ${err instanceof Error ? err.message : String(err)}`);
-    process.exit(2);
+    process.exitCode = 2;
   },
 );

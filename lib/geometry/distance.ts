@@ -3,6 +3,9 @@
  * Theory of Computing 8, 2012) and the thickness (local width) transform built on it.
  */
 
+/** Row buffers of the transform, reused across calls (the widths lattice calls it once per feature). */
+let scratchF = new Float64Array(0), scratchD = new Float64Array(0), scratchZ = new Float64Array(0), scratchV = new Int32Array(0);
+
 /** 1-D squared distance transform of f (lower envelope of parabolas), written into d. */
 function edt1d(f: Float64Array, n: number, d: Float64Array, v: Int32Array, z: Float64Array): void {
   let k = 0;
@@ -43,13 +46,19 @@ function edt1d(f: Float64Array, n: number, d: Float64Array, v: Int32Array, z: Fl
 /**
  * Squared Euclidean distance (in pixel units) from each pixel centre to the nearest background pixel centre;
  * `inside[q]` nonzero marks foreground. Same as scipy.ndimage.distance_transform_edt(inside)**2.
- * Infinity everywhere when there is no background.
+ * Infinity everywhere when there is no background. `into` (length nx·ny) receives the result when given, so callers
+ * measuring many small lattices do not allocate one per call.
  */
-export function squaredDistanceTransform(inside: ArrayLike<number>, nx: number, ny: number): Float64Array {
-  const out = new Float64Array(nx * ny);
+export function squaredDistanceTransform(inside: ArrayLike<number>, nx: number, ny: number, into?: Float64Array): Float64Array {
+  const out = into ?? new Float64Array(nx * ny);
   const n = Math.max(nx, ny);
-  const f = new Float64Array(n), d = new Float64Array(n), z = new Float64Array(n + 1);
-  const v = new Int32Array(n);
+  if (scratchF.length < n + 1) {
+    scratchF = new Float64Array(2 * n + 1);
+    scratchD = new Float64Array(2 * n + 1);
+    scratchZ = new Float64Array(2 * n + 2);
+    scratchV = new Int32Array(2 * n + 1);
+  }
+  const f = scratchF, d = scratchD, z = scratchZ, v = scratchV;
   // Along columns the input is binary (0 or ∞), where the parabola envelope reduces to the squared distance to
   // the nearest background pixel in the column: two linear scans give the same integers.
   for (let i = 0; i < nx; i++) {

@@ -1,7 +1,8 @@
 /** Geometry engine: exact coverage, window and effective density, features, widths. Pure TS, worker-safe. */
 export type { Box, Feature, FeatureKind, Grid, Polarity, WindowCell, WindowDensity } from './types';
 export { ringArea, ringPerimeter, ringMoments } from './ring';
-export { openRegions, setBbox, type OpenRegions, type OpenRegionsOptions } from './open-regions';
+export { openRegions, openArea, setBbox, type OpenRegions, type OpenRegionsOptions } from './open-regions';
+export { unionArea, layerSummary, type LayerSummaryRow } from './union-area';
 export { coverageRaster, coverageRaster64, rasterizeOpenRegions, gridExtentDbu, type CoverageOptions } from './raster';
 export { windowDensity, summedAreaTable, windowCount, type WindowDensityOptions } from './window-density';
 export { effectiveDensity, convolve2d, densityKernel, reflectIndex, erf, KERNEL_RADIUS_IN_L, MIN_L_PIXELS, type EffectiveDensityOptions, type KernelShape } from './convolve';

@@ -28,6 +28,7 @@
 import { maximalDiskCentres, squaredDistanceTransform } from './distance';
 import { latticeInterior, type Lattice } from './lattice';
 import { convexInscribedRadius, isConvexRing } from './convex-width';
+import { polygonisedCircle } from './circle-width';
 import type { Box } from './types';
 
 export interface WidthOptions {
@@ -107,6 +108,10 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
     return { minWidth: w, maxWidth: w, step: 0, exact: true };
   }
   // Convex single ring (round/octagonal holes, rotated bars): exact Chebyshev radius, min = max.
+  // A polygonised circle measures as the circle it was drawn from (circle-width.ts), not its inscribed disk. Tested
+  // before convexity: tile cuts leave points rounded to the dbu grid on its edges, which can make it look non-convex.
+  const circle = rings.length === 1 ? polygonisedCircle(coords, rings[0]![0], rings[0]![1]) : null;
+  if (circle) return { minWidth: circle.diameter, maxWidth: circle.diameter, step: 0, exact: true };
   if (rings.length === 1 && isConvexRing(coords, rings[0]![0], rings[0]![1])) {
     const w = 2 * convexInscribedRadius(coords, rings[0]![0], rings[0]![1]);
     return { minWidth: w, maxWidth: w, step: 0, exact: true };
@@ -118,6 +123,9 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
   if (cache && cache.size < CACHE_LIMIT) cache.set(key, res);
   return res;
 }
+
+/** Distance buffer reused by every lattice measurement (results never keep it). */
+let d2Scratch = new Float64Array(0);
 
 /** The lattice method of the module doc (shapes that are neither rectangles nor convex). */
 function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbox: Box, area: number, perimeter: number, manhattan: boolean, g: number, opts: WidthOptions): WidthResult {
@@ -143,7 +151,9 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
   }
   const lat: Lattice = { x0: bbox[0], y0: bbox[1], step, nx: Math.ceil(bw / step - 1e-9) + 1, ny: Math.ceil(bh / step - 1e-9) + 1 };
   const mask = latticeInterior(coords, rings, lat);
-  const d2 = squaredDistanceTransform(mask, lat.nx, lat.ny);
+  const nodes = lat.nx * lat.ny;
+  if (d2Scratch.length < nodes) d2Scratch = new Float64Array(Math.max(nodes, 2 * d2Scratch.length));
+  const d2 = squaredDistanceTransform(mask, lat.nx, lat.ny, d2Scratch.subarray(0, nodes));
   let maxD2 = 0;
   for (let q = 0; q < d2.length; q++) if ((d2[q] as number) > maxD2 && (d2[q] as number) !== Infinity) maxD2 = d2[q] as number;
   if (maxD2 === 0) {
@@ -280,19 +290,30 @@ const DIR_Y = Float64Array.from({ length: 16 }, (_, k) => Math.sin((k * Math.PI)
  * with halving steps (moves shorter than the current radius never leave the opening).
  */
 function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64Array): number {
-  // The three best nodes (ties broken by position) seed the search.
-  const starts: number[] = [];
+  // The eight best nodes (ties broken by position); of these, up to three more than two steps apart seed the
+  // search. Neighbouring top nodes sit on the same maximum and their searches end at the same point.
+  const top: number[] = [];
   for (let q = 0; q < d2.length; q++) {
     const v = d2[q] as number;
     if (v === 0 || v === Infinity) continue;
-    if (starts.length < 3) starts.push(q);
-    else if (v > (d2[starts[2] as number] as number)) starts[2] = q;
+    if (top.length < 8) top.push(q);
+    else if (v > (d2[top[7] as number] as number)) top[7] = q;
     else continue;
-    starts.sort((a, b) => (d2[b] as number) - (d2[a] as number));
+    for (let k = top.length - 1; k > 0 && (d2[top[k] as number] as number) > (d2[top[k - 1] as number] as number); k--) {
+      const t = top[k] as number;
+      top[k] = top[k - 1] as number;
+      top[k - 1] = t;
+    }
+  }
+  const starts: number[] = [];
+  for (const q of top) {
+    if (starts.length === 3) break;
+    const qi = q % lat.nx, qj = (q - qi) / lat.nx;
+    if (starts.every((s) => (s % lat.nx - qi) ** 2 + ((s - (s % lat.nx)) / lat.nx - qj) ** 2 > 4)) starts.push(q);
   }
   // Lattice D can exceed the true distance off the exact lattice: use exact distances only.
   let best = 0;
-  for (const q of starts.slice(0, 3)) {
+  for (const q of starts) {
     const i = q % lat.nx, j = (q - i) / lat.nx;
     let x = lat.x0 + i * lat.step, y = lat.y0 + j * lat.step;
     let d = distanceToEdges(edges, x, y);

@@ -95,6 +95,10 @@ export function windowDensity(coverage: Float32Array | Float64Array, grid: Grid,
       let v = NaN;
       const full = ref >= W * W * (1 - 1e-9);
       if (ref > 0 && (edge === 'clipped' || full)) v = open / ref;
+      // Summed-area differences leave round-off of ~1e-13 around 0 and 1; a density below 0 or above 1 would print
+      // as "-0.0 %" or exceed a 100 % limit, so snap values within 1e-9 of the bounds.
+      if (v < 0 && v > -1e-9) v = 0;
+      else if (v > 1 && v < 1 + 1e-9) v = 1;
       values[j * nxw + i] = v;
       if (Number.isNaN(v)) continue;
       sum += v;

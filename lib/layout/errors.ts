@@ -21,6 +21,25 @@ export type LayoutErrorCode =
   | 'aborted'
   | 'io';
 
+/**
+ * A problem the reader repaired instead of refusing the file (e.g. an unclosed BOUNDARY, closed implicitly). Readers
+ * return these with the layout; the CLI prints them on stderr and uploads keep them, so no repair is silent.
+ */
+export interface LayoutWarning {
+  code: 'unclosed-boundary' | 'more-warnings';
+  message: string;
+  offset?: number;
+}
+
+/** Readers keep at most this many warnings and then one line saying how many more there were. */
+export const MAX_LAYOUT_WARNINGS = 100;
+
+/** Append a warning, counting (not storing) those beyond MAX_LAYOUT_WARNINGS. */
+export function pushWarning(list: LayoutWarning[], counter: { dropped: number }, w: LayoutWarning): void {
+  if (list.length < MAX_LAYOUT_WARNINGS) list.push(w);
+  else counter.dropped++;
+}
+
 export class LayoutReadError extends Error {
   readonly code: LayoutErrorCode;
   readonly offset?: number;

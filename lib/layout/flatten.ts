@@ -41,7 +41,7 @@ export function flattenLibrary(lib: GdsLibrary, opts: FlattenOptions = {}): Flat
   const order = bottomUpOrder(lib);
   const totals = cellTotals(lib, order);
   const top = chooseTopCell(lib, totals, opts.topCell);
-  const base = { format: 'gdsii' as const, libraryName: lib.libraryName, dbuUm: lib.dbuUm, userUnitUm: lib.userUnitUm, cellCount: lib.cells.length };
+  const base = { format: 'gdsii' as const, libraryName: lib.libraryName, dbuUm: lib.dbuUm, userUnitUm: lib.userUnitUm, cellCount: lib.cells.length, warnings: lib.warnings };
   if (top < 0) return { ...base, topCell: '', layers: [], labels: [], bboxDbu: null };
   const topDef = lib.cells[top] as CellDef;
   const maxPolygons = opts.maxPolygons ?? 25_000_000;

@@ -4,7 +4,7 @@
  * parsed geometry, never the file. Every record type of the manual (0x00–0x3B) is either interpreted or skipped
  * by its length; anything else is an error naming the byte offset.
  */
-import { LayoutReadError } from './errors';
+import { LayoutReadError, pushWarning } from './errors';
 import { DataType, LAST_RECORD_TYPE, Rec, recordName } from './gdsii-records';
 import { decodeReal8 } from './real8';
 import { GrowF64 } from './grow-buffer';
@@ -56,7 +56,8 @@ export class GdsiiParser {
   private carry = new Uint8Array(65540);
   private carryLen = 0;
   private cell: CellDef | null = null;
-  private readonly lib: GdsLibrary = { libraryName: '', dbuUm: NaN, userUnitUm: NaN, cells: [], cellIndex: new Map() };
+  private readonly lib: GdsLibrary = { libraryName: '', dbuUm: NaN, userUnitUm: NaN, cells: [], cellIndex: new Map(), warnings: [] };
+  private readonly dropped = { dropped: 0 };
   private readonly el: ElementState = {
     kind: -1, offset: 0, layer: -1, datatype: 0, width: 0, pathtype: 0, bgnExt: 0, endExt: 0, sname: null,
     snameOffset: 0, strans: 0, mag: 1, angle: 0, cols: 0, rows: 0, text: '', xy: new GrowF64(256), hasXy: false,
@@ -117,6 +118,9 @@ export class GdsiiParser {
         throw new LayoutReadError('truncated', `truncated GDSII: file ends inside a ${what} starting at byte ${at}`, { offset: at });
       }
       throw new LayoutReadError('truncated', `truncated GDSII: file ends at byte ${this.base} before ENDLIB`, { offset: this.base });
+    }
+    if (this.dropped.dropped > 0) {
+      this.lib.warnings.push({ code: 'more-warnings', message: `${this.dropped.dropped} more warnings of the same kinds not listed` });
     }
     return this.lib;
   }
@@ -310,6 +314,15 @@ export class GdsiiParser {
       case Rec.BOX: {
         let m = pts;
         if (m > 1 && xy[0] === xy[2 * m - 2] && xy[1] === xy[2 * m - 1]) m--;
+        else if (m >= 3) {
+          // The manual requires first = last. Close it implicitly (the ring is stored without the closing point
+          // anyway) but say so: a designer should know the writer produced a malformed element.
+          pushWarning(this.lib.warnings, this.dropped, {
+            code: 'unclosed-boundary',
+            message: `${recordName(e.kind)} element at byte ${e.offset} is not closed (last point (${xy[2 * m - 2]}, ${xy[2 * m - 1]}) differs from the first (${xy[0]}, ${xy[1]})); closed implicitly`,
+            offset: e.offset,
+          });
+        }
         if (m < 3) this.fail('bad-record', `${recordName(e.kind)} element at byte ${e.offset} has ${pts} points; a closed polygon needs at least 4`, e.offset);
         appendRing(this.shapesOf(cell, e.layer, e.datatype), xy, 0, 2 * m);
         return;

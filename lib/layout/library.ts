@@ -4,6 +4,7 @@
  * signed area, y up) without the repeated closing point, so that a nonzero-fill union of a set equals the GDSII
  * meaning "every boundary is filled on its own".
  */
+import type { LayoutWarning } from './errors';
 import { GrowF64, GrowU32 } from './grow-buffer';
 
 /** All polygons of one layer/datatype inside one cell. `starts[i]` = first point of polygon i. */
@@ -78,6 +79,8 @@ export interface GdsLibrary {
   userUnitUm: number;
   cells: CellDef[];
   cellIndex: Map<string, number>;
+  /** Repairs made while parsing (see LayoutWarning). */
+  warnings: LayoutWarning[];
 }
 
 export function layerKey(layer: number, datatype: number): number {

@@ -7,6 +7,7 @@
  * (readers normalise them, also under reflection), so each polygon is filled on its own as GDSII intends and a
  * nonzero union of the set is the drawn area. Holes come as keyhole rings, never as opposite-orientation rings.
  */
+import type { LayoutWarning } from './errors';
 
 /** All polygons of one layer/datatype, as flat typed arrays (no per-point objects). */
 export interface PolygonSet {
@@ -46,4 +47,6 @@ export interface FlatLayout {
   labels: LayoutLabel[];
   /** Bounding box of everything flattened, in dbu: [x0, y0, x1, y1]; null for an empty layout. */
   bboxDbu: [number, number, number, number] | null;
+  /** Problems the reader repaired (each names its byte offset or line); absent or empty when none. */
+  warnings?: LayoutWarning[];
 }

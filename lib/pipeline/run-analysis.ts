@@ -9,7 +9,8 @@
  * never decreases. `signal` and `isCancelled` are checked between stages and every few thousand features; an abort
  * throws AnalysisAbortedError (name 'AbortError').
  */
-import { effectiveDensity, featuresFromRegions, localWidthFromCoverage, openRegions, rasterizeOpenRegions, windowDensity, type Grid, type WindowDensity } from '../geometry';
+import { effectiveDensity, localWidthFromCoverage, openRegions, rasterizeOpenRegions, windowDensity, type Grid, type WindowDensity } from '../geometry';
+import { featuresInThreads } from '../geometry/parallel-features';
 import type { ProcessModel } from '../etch';
 import type { FlatLayout } from '../layout/types';
 import { AnalysisAbortedError } from './errors';
@@ -132,7 +133,7 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   const effective = effectiveDensity(coverage, grid, { lengthUm: kernel.lengthUm, kernel: kernel.kind, outside: kernel.outside });
 
   clock.begin('features');
-  const features = featuresFromRegions(regions, { polarity, regionDbu });
+  const features = featuresInThreads(regions, { polarity, regionDbu }); // two threads on big layouts, same result
 
   clock.begin('local-width');
   const localWidth = localWidthFromCoverage(coverage, grid);

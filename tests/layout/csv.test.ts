@@ -4,7 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { readLayoutBytes } from '@/lib/layout/read-bytes';
-import { layerSummary } from '@/lib/layout/union-area';
+import { layerSummary } from '@/lib/geometry/union-area';
 import { text } from './helpers';
 
 describe('CSV polygons', () => {

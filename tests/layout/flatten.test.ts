@@ -8,7 +8,7 @@ import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { GdsiiWriter } from '@/lib/layout/gdsii-writer';
 import { readLayoutBytes } from '@/lib/layout/read-bytes';
-import { layerSummary, unionArea } from '@/lib/layout/union-area';
+import { layerSummary, unionArea } from '@/lib/geometry/union-area';
 import { summedArea } from './helpers';
 
 const ring = (set: { coords: Float64Array; offsets: Uint32Array }, p: number) =>
@@ -148,8 +148,8 @@ describe('unionArea', () => {
       offsets[i + 1] = 4 * (i + 1);
     }
     const set = { layer: 1, datatype: 0, coords, offsets, count: n };
-    const tiled = unionArea(set, { perTile: 16 }).areaDbu2;
-    const single = unionArea(set, { perTile: 1e9 }).areaDbu2;
+    const tiled = unionArea(set, { tileDbu: 2_000 }).areaDbu2;
+    const single = unionArea(set, { tileDbu: 1e9 }).areaDbu2;
     expect(tiled).toBe(single); // exact: Manhattan, integer coordinates
     expect(single).toBeGreaterThan(0);
   });

@@ -10,7 +10,7 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { LayoutReadError } from '@/lib/layout/errors';
 import { readLayoutBytes } from '@/lib/layout/read-bytes';
-import { layerSummary } from '@/lib/layout/union-area';
+import { layerSummary } from '@/lib/geometry/union-area';
 import { text } from './helpers';
 import { apply, mutation } from './mutations';
 
