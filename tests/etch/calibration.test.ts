@@ -24,14 +24,14 @@ describe('fitCalibration — Levenberg–Marquardt (ml-levenberg-marquardt)', ()
       expect(p?.standardError).toBeGreaterThan(0);
       expect(Math.abs((p?.value ?? NaN) - value)).toBeLessThan(3 * (p?.standardError ?? 0));
     }
-    // Residual standard error estimates the injected noise (σ = 0.4 µm) — within 25 % for 57 degrees of freedom.
+    // Residual standard error estimates the injected noise (σ = 0.4 µm) — within 25 % for 137 degrees of freedom.
     expect(Math.abs(fit.residualStandardErrorUm / DEMO_NOISE_UM - 1)).toBeLessThan(0.25);
     expect(fit.rSquared).toBeGreaterThan(0.99);
-    expect(fit.residuals).toHaveLength(60);
+    expect(fit.residuals).toHaveLength(140);
     expect(fit.residuals[0]?.line).toBe(5);
     expect(fit.model.calibration?.date).toBe('2026-12-02');
-    expect(fit.model.calibration?.widthUm).toEqual([1, 20]);
-    expect(fit.model.calibration?.density).toEqual([0.1, 0.6]);
+    expect(fit.model.calibration?.widthUm).toEqual([1, 400]);
+    expect(fit.model.calibration?.density).toEqual([0.02, 0.6]);
     expect(fit.model.calibration?.kinds).toEqual(['hole', 'trench']);
   });
   it('recovers open rate and S for three other noise seeds within 3 standard errors (κ held at its true value)', () => {
@@ -77,7 +77,7 @@ describe('fitCalibration — Levenberg–Marquardt (ml-levenberg-marquardt)', ()
     const fit = fitCalibration(withLines(demoRows(11, 0.3)), { baseModel: { ...startModel(), loading: demoTruthModel().loading }, date: '2026-12-02' });
     if (!fit.ok) throw new Error(fit.message);
     expect(predictFeature(fit.model, { widthUm: 5, kind: 'trench', effectiveDensity: 0.3 }).warnings.filter((w) => /calibrat/.test(w))).toEqual([]);
-    expect(predictFeature(fit.model, { widthUm: 50, kind: 'trench', effectiveDensity: 0.3 }).warnings.join(' ')).toMatch(/outside the calibrated range 1–20 µm/);
+    expect(predictFeature(fit.model, { widthUm: 800, kind: 'trench', effectiveDensity: 0.3 }).warnings.join(' ')).toMatch(/outside the calibrated range 1–400 µm/);
   });
 });
 

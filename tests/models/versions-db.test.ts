@@ -34,7 +34,7 @@ describe('process models in the database', () => {
     const v2 = getVersion(db, trench?.versions[0]?.id ?? '');
     expect(v2.document.version).toBe('v2');
     expect(v2.document.calibration?.covariance?.parameters).toEqual(['openRateUmPerMin', 'reactionProbability']);
-    expect(v2.calibration?.rows).toHaveLength(60);
+    expect(v2.calibration?.rows).toHaveLength(140);
     expect(models.find((m) => m.key === 'cyclic-via')?.featureKind).toBe('hole');
     // A second call does nothing.
     expect(seedDemoModels(db).seeded).toBe(false);
