@@ -11,6 +11,7 @@ export const MAP_KINDS: Record<string, MapKindInfo> = {
   'aspect-ratio': { label: 'Aspect ratio', unit: 'depth / width', scale: 'viridis' },
   'predicted-depth': { label: 'Predicted depth', unit: 'µm', scale: 'viridis' },
   'depth-margin': { label: 'Depth margin', unit: 'µm (depth − target)', scale: 'cividis', note: 'negative = short of the target' },
+  'depth-uncertainty': { label: 'Depth uncertainty (1 σ)', unit: 'µm', scale: 'viridis', note: "from the calibration fit's parameter covariance" },
   risk: { label: 'Risk', unit: 'score (1 = at a limit)', scale: 'magma', fixed: [0, 2], note: '≥ 1 means a limit is reached' },
 };
 
