@@ -68,6 +68,20 @@ function modelLabel(model: ProcessModel): { name: string; version: string } {
   return { name: typeof m.name === 'string' && m.name ? m.name : 'unnamed model', version: m.version == null ? 'unversioned' : String(m.version) };
 }
 
+/** The job columns of an analysis that has just been queued (new, or run again). */
+export const QUEUED_JOB_STATE = {
+  status: 'queued',
+  stage: null,
+  progress: 0,
+  errorCode: null,
+  errorMessage: null,
+  attempts: 0,
+  startedAt: null,
+  finishedAt: null,
+  summary: null,
+  resultDir: null,
+} as const satisfies Partial<AnalysisRow>;
+
 /** Validates and queues a new analysis of a revision in `projectId`. */
 export function createAnalysis(db: Db, input: { projectId: string; userId: string; body: CreateAnalysisBody }): AnalysisRow {
   const { projectId, userId, body } = input;
@@ -101,16 +115,7 @@ export function createAnalysis(db: Db, input: { projectId: string; userId: strin
     modelName: label.name,
     modelVersion: label.version,
     modelSource: source,
-    status: 'queued',
-    stage: null,
-    progress: 0,
-    errorCode: null,
-    errorMessage: null,
-    attempts: 0,
-    startedAt: null,
-    finishedAt: null,
-    summary: null,
-    resultDir: null,
+    ...QUEUED_JOB_STATE,
     modelVersionId: teamModel?.versionId ?? null,
     ruleSetId: body.ruleSetId ?? null,
   };

@@ -9,6 +9,7 @@ import type { Db } from '@/db/client';
 import { analyses, type AnalysisRow } from '@/db/schema';
 import { ApiError } from '@/lib/http/errors';
 import { parseAnalysisSettings } from '@/lib/pipeline/settings';
+import { QUEUED_JOB_STATE } from './analyses';
 import { jobRunner } from './runner';
 
 export function rerunAnalysis(db: Db, input: { analysisId: string; userId: string }): AnalysisRow {
@@ -28,16 +29,7 @@ export function rerunAnalysis(db: Db, input: { analysisId: string; userId: strin
     createdBy: input.userId,
     createdAt: new Date(),
     settings: settings.settings as unknown as Record<string, unknown>,
-    status: 'queued',
-    stage: null,
-    progress: 0,
-    errorCode: null,
-    errorMessage: null,
-    attempts: 0,
-    startedAt: null,
-    finishedAt: null,
-    summary: null,
-    resultDir: null,
+    ...QUEUED_JOB_STATE,
   };
   db.insert(analyses).values(row).run();
   jobRunner().pump();
