@@ -113,7 +113,7 @@ function View({ analysisId, initial, canCancel }: { analysisId: string; initial:
           </dd>
           <dt>model</dt>
           <dd>
-            {a.model.name} · {a.model.version} · {a.model.source}
+            {a.model.name} · {a.model.version} · {modelSourceText(a.model.source)}
           </dd>
           <dt>started</dt>
           <dd>
@@ -157,4 +157,12 @@ function RunAgain({ analysisId }: { analysisId: string }) {
       </Button>
     </div>
   );
+}
+
+/** Where the model came from, in words (stored as 'version:<id>', 'builtin:<id>' or 'uploaded'). */
+function modelSourceText(source: string): string {
+  if (source.startsWith('version:')) return 'published team version';
+  if (source.startsWith('builtin:')) return `built-in sample (${source.slice('builtin:'.length)})`;
+  if (source === 'uploaded') return 'model document sent with the analysis';
+  return source;
 }
