@@ -120,10 +120,14 @@ export function thicknessTransform(d2: Float64Array, nx: number, ny: number): Fl
   return t;
 }
 
+let scratchRoot = new Float64Array(0);
+
 /** Foreground pixels whose disk (radius √d2) is not inside an 8-neighbour's disk: the maximal-disk centres. */
 export function maximalDiskCentres(d2: Float64Array, nx: number, ny: number): number[] {
   const centres: number[] = [];
-  const d = new Float64Array(d2.length);
+  // The widths lattice calls this once per feature: reuse one root buffer instead of allocating 32 KB each time.
+  if (scratchRoot.length < d2.length) scratchRoot = new Float64Array(Math.max(d2.length, 2 * scratchRoot.length));
+  const d = scratchRoot;
   for (let q = 0; q < d2.length; q++) d[q] = Math.sqrt(d2[q] as number);
   for (let j = 0; j < ny; j++) {
     for (let i = 0; i < nx; i++) {
