@@ -106,7 +106,8 @@ export function requiredAspectRatio(targetDepthUm: number, widthUm: number): num
 
 /**
  * Receives flags as they are found. `offer` gets the ranking facts first and builds the Flag (message included)
- * only if it wants to keep it, so millions of openings that all fail do not cost millions of messages.
+ * only if it wants to keep it, so millions of openings that all fail do not cost millions of messages. `build` must be
+ * called inside `offer` or not at all: callers may reuse the input they pass for the next opening.
  */
 export interface FlagSink {
   offer(id: string, kind: FlagKind, severity: Severity, measured: number, limit: number, build: () => Flag): void;
