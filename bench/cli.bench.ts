@@ -81,9 +81,14 @@ export default async function cliBench(): Promise<void> {
     const model = join(root, 'samples/models/deep-trench-continuous.json');
     const args = ['check', files.mixed, '--layer', '1/0', '--model', model, '--json'];
     const ours = cli(root, args);
-    const s = (JSON.parse(ours.stdout) as { summary: { timingsMs: Record<string, number>; features?: { count?: number } } }).summary;
-    console.log(`check (full analysis) mixed 1 M polygons: Trenchant ${fmt(ours)}; ${s.features?.count ?? '?'} openings; stages ms ${JSON.stringify(Object.fromEntries(Object.entries(s.timingsMs).map(([k, v]) => [k, Math.round(v)])))}`);
-    if (before) console.log(`  before: ${fmt(cli(before, args))}`);
+    type CheckOut = { summary: { timingsMs: Record<string, number>; features?: { count?: number } } };
+    const stages = (r: Run) => JSON.stringify(Object.fromEntries(Object.entries((JSON.parse(r.stdout) as CheckOut).summary.timingsMs).map(([k, v]) => [k, Math.round(v)])));
+    const s = (JSON.parse(ours.stdout) as CheckOut).summary;
+    console.log(`check (full analysis) mixed 1 M polygons: Trenchant ${fmt(ours)}; ${s.features?.count ?? '?'} openings; stages ms ${stages(ours)}`);
+    if (before) {
+      const b = cli(before, args);
+      console.log(`  before: ${fmt(b)}; stages ms ${stages(b)}`);
+    }
     console.log(`load average at end ${load()}`);
   } finally {
     rmSync(dir, { recursive: true, force: true });

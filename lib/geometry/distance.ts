@@ -120,10 +120,19 @@ export function thicknessTransform(d2: Float64Array, nx: number, ny: number): Fl
   return t;
 }
 
+let scratchRoot = new Float64Array(0);
+const SCRATCH_MAX = 1 << 18;
+
 /** Foreground pixels whose disk (radius √d2) is not inside an 8-neighbour's disk: the maximal-disk centres. */
 export function maximalDiskCentres(d2: Float64Array, nx: number, ny: number): number[] {
   const centres: number[] = [];
-  const d = new Float64Array(d2.length);
+  // The widths lattice calls this once per feature: reuse one root buffer instead of allocating 32 KB each time
+  // (big maps, e.g. the local-width raster, allocate their own so the module does not keep tens of MB alive).
+  let d: Float64Array;
+  if (d2.length <= SCRATCH_MAX) {
+    if (scratchRoot.length < d2.length) scratchRoot = new Float64Array(Math.min(SCRATCH_MAX, Math.max(d2.length, 2 * scratchRoot.length)));
+    d = scratchRoot;
+  } else d = new Float64Array(d2.length);
   for (let q = 0; q < d2.length; q++) d[q] = Math.sqrt(d2[q] as number);
   for (let j = 0; j < ny; j++) {
     for (let i = 0; i < nx; i++) {

@@ -13,9 +13,10 @@ export interface Lattice {
 
 /**
  * @param rings list of [start, end) point ranges into `coords` (interleaved x,y, dbu), nonzero fill
+ * @param into optional buffer of length nx·ny to write into (cleared first): callers measuring many lattices reuse one
  * @returns Uint8Array nx·ny, 1 = interior node
  */
-export function latticeInterior(coords: ArrayLike<number>, rings: [number, number][], lat: Lattice): Uint8Array {
+export function latticeInterior(coords: ArrayLike<number>, rings: [number, number][], lat: Lattice, into?: Uint8Array): Uint8Array {
   let total = 0;
   for (const [s, e] of rings) total += e - s;
   // Non-horizontal edges as ymin, ymax, xa, ya, xb, yb, sorted by ymin (typed arrays: this runs per feature).
@@ -38,7 +39,7 @@ export function latticeInterior(coords: ArrayLike<number>, rings: [number, numbe
   const order = new Int32Array(ne);
   for (let k = 0; k < ne; k++) order[k] = k;
   order.sort((a, b) => (raw[6 * a] as number) - (raw[6 * b] as number));
-  const mask = new Uint8Array(lat.nx * lat.ny);
+  const mask = into ? into.fill(0) : new Uint8Array(lat.nx * lat.ny);
   const active = new Int32Array(ne);
   let nActive = 0;
   let next = 0;

@@ -126,6 +126,7 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
 
 /** Distance buffer reused by every lattice measurement (results never keep it). */
 let d2Scratch = new Float64Array(0);
+let maskScratch = new Uint8Array(0);
 
 /** The lattice method of the module doc (shapes that are neither rectangles nor convex). */
 function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbox: Box, area: number, perimeter: number, manhattan: boolean, g: number, opts: WidthOptions): WidthResult {
@@ -150,8 +151,9 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
     while (nodesAt(step) > maxNodes) step *= 1.1;
   }
   const lat: Lattice = { x0: bbox[0], y0: bbox[1], step, nx: Math.ceil(bw / step - 1e-9) + 1, ny: Math.ceil(bh / step - 1e-9) + 1 };
-  const mask = latticeInterior(coords, rings, lat);
   const nodes = lat.nx * lat.ny;
+  if (maskScratch.length < nodes) maskScratch = new Uint8Array(Math.max(nodes, 2 * maskScratch.length));
+  const mask = latticeInterior(coords, rings, lat, maskScratch.subarray(0, nodes));
   if (d2Scratch.length < nodes) d2Scratch = new Float64Array(Math.max(nodes, 2 * d2Scratch.length));
   const d2 = squaredDistanceTransform(mask, lat.nx, lat.ny, d2Scratch.subarray(0, nodes));
   let maxD2 = 0;
@@ -181,9 +183,9 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
 function smallestSelfCentred(d2: Float64Array, nx: number, ny: number, slack: number): { width: number; node: number } {
   const tol = 1e-9;
   const centres = maximalDiskCentres(d2, nx, ny);
-  const desc = centres.slice().sort((a, b) => (d2[b] as number) - (d2[a] as number));
-  const asc = desc.slice().reverse();
-  for (const c of asc) {
+  const desc = centres.sort((a, b) => (d2[b] as number) - (d2[a] as number));
+  for (let ci0 = desc.length - 1; ci0 >= 0; ci0--) {
+    const c = desc[ci0] as number;
     const dc = Math.sqrt(d2[c] as number);
     const ci = c % nx, cj = (c - ci) / nx;
     let covered = false;

@@ -51,9 +51,19 @@ export class FlagCollector implements FlagSink {
   offer(id: string, kind: FlagKind, severity: Severity, measured: number, limit: number, build: () => Flag): void {
     this.counts[kind][severity]++;
     this.total++;
-    const key = { severity, ex: exceedanceOf(measured, limit), id };
-    if (this.cut && compareKeys(key, this.cut) >= 0) return;
-    this.kept.push({ ...key, flag: build() });
+    const ex = exceedanceOf(measured, limit);
+    // Most offers on a big layout rank below the cut: decide that before allocating anything.
+    const cut = this.cut;
+    if (cut) {
+      const bySeverity = SEVERITY_RANK[severity] - SEVERITY_RANK[cut.severity];
+      if (bySeverity > 0) return;
+      if (bySeverity === 0) {
+        const d = cut.ex - ex; // as compareKeys: NaN falls through to the id, like 0
+        if (d > 0) return;
+        if (!(d < 0) && id >= cut.id) return;
+      }
+    }
+    this.kept.push({ severity, ex, id, flag: build() });
     if (this.kept.length >= 2 * this.cap) this.trim();
   }
 

@@ -106,7 +106,8 @@ export function requiredAspectRatio(targetDepthUm: number, widthUm: number): num
 
 /**
  * Receives flags as they are found. `offer` gets the ranking facts first and builds the Flag (message included)
- * only if it wants to keep it, so millions of openings that all fail do not cost millions of messages.
+ * only if it wants to keep it, so millions of openings that all fail do not cost millions of messages. `build` must be
+ * called inside `offer` or not at all: callers may reuse the input they pass for the next opening.
  */
 export interface FlagSink {
   offer(id: string, kind: FlagKind, severity: Severity, measured: number, limit: number, build: () => Flag): void;
@@ -119,37 +120,54 @@ export function featureFlags(f: FeatureCheckInput, limits: ResolvedLimits, sever
 }
 
 /** featureFlags, delivering to a sink (see FlagSink). */
-export function featureFlagsInto(sink: FlagSink, f: FeatureCheckInput, limits: ResolvedLimits, severities?: SeverityMap): void {
-  const where = () => `Opening #${f.featureId} (${f.shape}, ${fmt(f.widthUm)} µm wide)`;
-  const emit = (kind: FlagKind, measured: number, limit: number, unit: FlagUnit, message: () => string, id = `${kind}:f${f.featureId}`, uncertain = false) => {
-    const severity = severityOf(kind, severities);
-    sink.offer(id, kind, severity, measured, limit, () => ({
-      id,
-      kind,
-      severity,
-      bboxUm: f.bboxUm,
-      xUm: f.centroidUm[0],
-      yUm: f.centroidUm[1],
-      featureId: f.featureId,
-      measured,
-      limit,
-      unit,
-      message: message(),
-      ...(uncertain ? { uncertain: true } : {}),
-    }));
-  };
+const where = (f: FeatureCheckInput) => `Opening #${f.featureId} (${f.shape}, ${fmt(f.widthUm)} µm wide)`;
 
+/** Offers one per-feature flag; the Flag and its message are built only if the sink keeps it. */
+function emitFeatureFlag(
+  sink: FlagSink,
+  f: FeatureCheckInput,
+  severities: SeverityMap | undefined,
+  kind: FlagKind,
+  measured: number,
+  limit: number,
+  unit: FlagUnit,
+  message: () => string,
+  id = `${kind}:f${f.featureId}`,
+  uncertain = false,
+): void {
+  const severity = severityOf(kind, severities);
+  sink.offer(id, kind, severity, measured, limit, () => ({
+    id,
+    kind,
+    severity,
+    bboxUm: f.bboxUm,
+    xUm: f.centroidUm[0],
+    yUm: f.centroidUm[1],
+    featureId: f.featureId,
+    measured,
+    limit,
+    unit,
+    message: message(),
+    ...(uncertain ? { uncertain: true } : {}),
+  }));
+}
+
+/** featureFlags, delivering to a sink (see FlagSink). No closure or string for an opening that passes every rule. */
+export function featureFlagsInto(sink: FlagSink, f: FeatureCheckInput, limits: ResolvedLimits, severities?: SeverityMap): void {
   const minDepth = limits.targetDepthUm - limits.toleranceUm;
   if (f.depthUm < minDepth) {
     const band = f.depthSigmaUm ? DEPTH_BAND_K * f.depthSigmaUm : 0;
     const uncertain = band > 0 && f.depthUm + band >= minDepth;
-    emit(
+    emitFeatureFlag(
+      sink,
+      f,
+      severities,
       'under-target-depth',
       f.depthUm,
       minDepth,
       'µm',
       () =>
-        `${where()} is predicted to reach ${fmt(f.depthUm)} µm${band > 0 ? ` (± ${fmt(band)} µm, 95 % band from the calibration)` : ''}, short of the ` +
+        `${where(f)} is predicted to reach ${fmt(f.depthUm)} µm${band > 0 ? ` (± ${fmt(band)} µm, 95 % band from the calibration)` : ''}, short of the ` +
         `${fmt(limits.targetDepthUm)} µm target by ${fmt(limits.targetDepthUm - f.depthUm)} µm (tolerance ${fmt(limits.toleranceUm)} µm). ` +
         (uncertain
           ? 'Uncertain: the limit lies inside the prediction\u2019s uncertainty band, so the calibration data cannot tell whether it reaches the target; measure a test structure of this width. '
@@ -162,8 +180,8 @@ export function featureFlagsInto(sink: FlagSink, f: FeatureCheckInput, limits: R
 
   const budget = limits.stopOverEtchBudgetUm;
   if (budget !== null && f.overEtchUm > budget) {
-    emit('over-etch-budget', f.overEtchUm, budget, 'µm', () =>
-      `${where()} reaches the stop layer early and etches ${fmt(f.overEtchUm)} µm into it by the end of the etch, beyond the ` +
+    emitFeatureFlag(sink, f, severities, 'over-etch-budget', f.overEtchUm, budget, 'µm', () =>
+      `${where(f)} reaches the stop layer early and etches ${fmt(f.overEtchUm)} µm into it by the end of the etch, beyond the ` +
       `${fmt(budget)} µm budget. Wide openings reach the stop first; expect notching or footing there — ` +
       `narrow it or even out the widths on this layer.`,
     );
@@ -171,15 +189,15 @@ export function featureFlagsInto(sink: FlagSink, f: FeatureCheckInput, limits: R
 
   const ar = requiredAspectRatio(limits.targetDepthUm, f.widthUm);
   if (ar > limits.maxAspectRatio) {
-    emit('aspect-ratio-above-limit', ar, limits.maxAspectRatio, 'ratio', () =>
-      `${where()} needs an aspect ratio of ${fmt(ar)}:1 to reach ${fmt(limits.targetDepthUm)} µm, above the process limit of ` +
+    emitFeatureFlag(sink, f, severities, 'aspect-ratio-above-limit', ar, limits.maxAspectRatio, 'ratio', () =>
+      `${where(f)} needs an aspect ratio of ${fmt(ar)}:1 to reach ${fmt(limits.targetDepthUm)} µm, above the process limit of ` +
       `${fmt(limits.maxAspectRatio)}:1. Beyond it the etch may slow sharply or stop; widen the opening.`,
     );
   }
 
   const minWidth = limits.minWidthUm;
   if (minWidth !== null && f.widthUm < minWidth) {
-    emit('width-below-minimum', f.widthUm, minWidth, 'µm', () => `${where()} is narrower than the ${fmt(minWidth)} µm minimum width rule for this layer.`);
+    emitFeatureFlag(sink, f, severities, 'width-below-minimum', f.widthUm, minWidth, 'µm', () => `${where(f)} is narrower than the ${fmt(minWidth)} µm minimum width rule for this layer.`);
   }
 
   for (const e of f.excursions) {
@@ -189,13 +207,16 @@ export function featureFlagsInto(sink: FlagSink, f: FeatureCheckInput, limits: R
     const show = (v: number) => (e.unit === 'fraction' ? pct(v) : e.unit === 'µm' ? `${fmt(v)} µm` : `${fmt(v)}:1`);
     // Densities are reported in percent like every other density flag.
     const asPct = e.unit === 'fraction';
-    emit(
+    emitFeatureFlag(
+      sink,
+      f,
+      severities,
       'outside-calibrated-range',
       asPct ? e.value * 100 : e.value,
       (below ? e.min : e.max) * (asPct ? 100 : 1),
       asPct ? '%' : e.unit,
       () =>
-        `${where()}: its ${label} of ${show(e.value)} is ${below ? 'below' : 'above'} the range the model was calibrated on ` +
+        `${where(f)}: its ${label} of ${show(e.value)} is ${below ? 'below' : 'above'} the range the model was calibrated on ` +
         `(${show(e.min)} to ${show(e.max)}), so its predicted depth is an extrapolation. Add test structures of this size to the calibration.`,
       `outside-calibrated-range:f${f.featureId}:${e.quantity}`,
     );

@@ -41,31 +41,53 @@ export interface FeatureMaps {
 
 export function paintFeatureMaps(results: FeatureResult[], risks: Float64Array, coverage: Float32Array, grid: Grid): FeatureMaps {
   const n = grid.nx * grid.ny;
+  const count = results.length;
+  // One owner map instead of four value maps painted per feature: each covered pixel keeps the index of the
+  // smallest-area feature whose bbox contains it, ties to the later feature — the same winner as painting in a
+  // stable largest-area-first order, without sorting a million objects.
+  const owner = new Int32Array(n).fill(-1);
+  const areas = new Float64Array(count);
+  let anySigma = false;
+  const { x0Um, y0Um, pixelUm, nx, ny } = grid;
+  for (let k = 0; k < count; k++) {
+    const f = results[k] as FeatureResult;
+    const area = f.areaUm2;
+    areas[k] = area;
+    if (f.depthSigmaUm !== null) anySigma = true;
+    const b = f.bboxUm;
+    const i0 = Math.max(0, Math.floor((b[0] - x0Um) / pixelUm));
+    const i1 = Math.min(nx - 1, Math.ceil((b[2] - x0Um) / pixelUm) - 1);
+    const j0 = Math.max(0, Math.floor((b[1] - y0Um) / pixelUm));
+    const j1 = Math.min(ny - 1, Math.ceil((b[3] - y0Um) / pixelUm) - 1);
+    for (let j = j0; j <= j1; j++) {
+      const row = j * nx;
+      for (let i = i0; i <= i1; i++) {
+        const p = row + i;
+        if (!((coverage[p] as number) > 0)) continue;
+        const o = owner[p] as number;
+        if (o < 0 || !(area > (areas[o] as number))) owner[p] = k;
+      }
+    }
+  }
   const aspectRatio = new Float32Array(n).fill(Number.NaN);
   const predictedDepth = new Float32Array(n).fill(Number.NaN);
   const risk = new Float32Array(n).fill(Number.NaN);
-  const depthSigma = results.some((f) => f.depthSigmaUm !== null) ? new Float32Array(n).fill(Number.NaN) : null;
-  const order = results.map((_, k) => k).sort((a, b) => (results[b] as FeatureResult).areaUm2 - (results[a] as FeatureResult).areaUm2);
-  const { x0Um, y0Um, pixelUm, nx, ny } = grid;
-  for (const k of order) {
+  const depthSigma = anySigma ? new Float32Array(n).fill(Number.NaN) : null;
+  const ar = new Float32Array(count), depth = new Float32Array(count), sigma = new Float32Array(count);
+  for (let k = 0; k < count; k++) {
     const f = results[k] as FeatureResult;
-    const [bx0, by0, bx1, by1] = f.bboxUm;
-    const i0 = Math.max(0, Math.floor((bx0 - x0Um) / pixelUm));
-    const i1 = Math.min(nx - 1, Math.ceil((bx1 - x0Um) / pixelUm) - 1);
-    const j0 = Math.max(0, Math.floor((by0 - y0Um) / pixelUm));
-    const j1 = Math.min(ny - 1, Math.ceil((by1 - y0Um) / pixelUm) - 1);
-    const r = risks[k] as number;
-    const sigma = f.depthSigmaUm ?? Number.NaN;
-    for (let j = j0; j <= j1; j++) {
-      for (let i = i0; i <= i1; i++) {
-        const p = j * nx + i;
-        if (!((coverage[p] as number) > 0)) continue;
-        aspectRatio[p] = f.aspectRatio;
-        predictedDepth[p] = f.depthUm;
-        risk[p] = r;
-        if (depthSigma) depthSigma[p] = sigma;
-      }
-    }
+    ar[k] = f.aspectRatio;
+    depth[k] = f.depthUm;
+    sigma[k] = f.depthSigmaUm ?? Number.NaN;
+  }
+  const risk32 = Float32Array.from(risks);
+  for (let p = 0; p < n; p++) {
+    const o = owner[p] as number;
+    if (o < 0) continue;
+    aspectRatio[p] = ar[o] as number;
+    predictedDepth[p] = depth[o] as number;
+    risk[p] = risk32[o] as number;
+    if (depthSigma) depthSigma[p] = sigma[o] as number;
   }
   return { aspectRatio, predictedDepth, risk, depthSigma };
 }

@@ -15,7 +15,7 @@ import type { ProcessModel } from '../etch';
 import type { FlatLayout } from '../layout/types';
 import { AnalysisAbortedError } from './errors';
 import { dieFrame, layerName, selectEtchLayers } from './etch-layers';
-import { densityGradientFlags, FlagCollector, featureFlagsInto, windowDensityFlags, type Flag, type WindowSetInput } from './flags';
+import { densityGradientFlags, FlagCollector, featureFlagsInto, windowDensityFlags, type FeatureCheckInput, type Flag, type WindowSetInput } from './flags';
 import type { GridMap } from './grid-file';
 import { predictFeatures, type FeatureResult } from './predict-features';
 import { featureRisk, paintFeatureMaps } from './result-maps';
@@ -157,15 +157,23 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
     collector.add(windowDensityFlags(input, limits, sev));
     collector.add(densityGradientFlags(input, limits.maxGradient, sev));
   }
+  // One input object refilled per opening: the collector builds a kept flag (copying what it needs) inside offer(),
+  // so nothing holds on to it, and a million openings do not cost a million short-lived objects.
+  const input: FeatureCheckInput = { featureId: 0, shape: '', modelKind: 'trench', bboxUm: [0, 0, 0, 0], centroidUm: [0, 0], widthUm: 0, depthUm: 0, overEtchUm: 0, excursions: [], depthSigmaUm: null };
   for (let k = 0; k < results.length; k++) {
     if (k % 4096 === 0) clock.within(k / Math.max(1, results.length));
     const r = results[k] as FeatureResult;
-    featureFlagsInto(
-      collector,
-      { featureId: r.id, shape: r.shape, modelKind: r.modelKind, bboxUm: r.bboxUm, centroidUm: r.centroidUm, widthUm: r.widthUm, depthUm: r.depthUm, overEtchUm: r.overEtchUm, excursions: r.excursions, depthSigmaUm: r.depthSigmaUm },
-      limits,
-      sev,
-    );
+    input.featureId = r.id;
+    input.shape = r.shape;
+    input.modelKind = r.modelKind;
+    input.bboxUm = r.bboxUm;
+    input.centroidUm = r.centroidUm;
+    input.widthUm = r.widthUm;
+    input.depthUm = r.depthUm;
+    input.overEtchUm = r.overEtchUm;
+    input.excursions = r.excursions;
+    input.depthSigmaUm = r.depthSigmaUm;
+    featureFlagsInto(collector, input, limits, sev);
   }
   const flags = collector.list();
 
