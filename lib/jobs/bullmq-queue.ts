@@ -91,6 +91,22 @@ export class BullJobQueue implements JobQueue {
    * them, and a dead worker's jobs come back by BullMQ's stalled-job check.
    */
   async requeueInterrupted(): Promise<number> {
+    // Redis down at start-up must not hold the server's start: skip this round (the rows stay as they are).
+    let timer: NodeJS.Timeout | undefined;
+    const timeout = new Promise<number>((resolve) => {
+      timer = setTimeout(() => {
+        console.error('[trenchant] Redis did not answer within 10 s at start-up; interrupted analyses were not checked');
+        resolve(0);
+      }, 10_000);
+    });
+    try {
+      return await Promise.race([this.requeueOrphans(), timeout]);
+    } finally {
+      clearTimeout(timer);
+    }
+  }
+
+  private async requeueOrphans(): Promise<number> {
     const sqlite = getDb().$client;
     const running = sqlite.prepare(`SELECT id FROM analyses WHERE status = 'running'`).all() as { id: string }[];
     let n = 0;

@@ -66,7 +66,12 @@ export async function startQueueWorker(url: string, log: (line: string) => void 
       log(`[trenchant] worker ${process.pid}: analysis ${job.data.analysisId} will be retried (${err.message})`);
       return;
     }
-    runner.failJob(job.data.analysisId, 'worker-crash', `The analysis could not be run by a queue worker after ${job.attemptsMade} attempts: ${err.message.replace(/\s+/g, ' ').slice(0, 300)}`);
+    try {
+      runner.failJob(job.data.analysisId, 'worker-crash', `The analysis could not be run by a queue worker after ${job.attemptsMade} attempts: ${err.message.replace(/\s+/g, ' ').slice(0, 300)}`);
+    } catch (e) {
+      // The database is still unusable: the row stays as it is; the server's start-up requeues it.
+      console.error(`[trenchant] worker ${process.pid}: could not mark analysis ${job.data.analysisId} failed:`, e instanceof Error ? e.message : e);
+    }
   });
   await worker.waitUntilReady();
   log(`[trenchant] queue worker ${process.pid} on ${safeUrl(url)}: up to ${runner.concurrency} analyses at a time`);
