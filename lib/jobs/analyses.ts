@@ -14,7 +14,7 @@ import { applyRuleSet } from '@/lib/models/rule-set-schema';
 import { ruleSetForAnalysis } from '@/lib/models/rule-sets';
 import { projectTeamId, resolvePublishedVersion } from '@/lib/models/versions';
 import { findBuiltinModel } from './models';
-import { jobRunner } from './runner';
+import { jobQueue } from './queue';
 
 export const createAnalysisBody = z
   .object({
@@ -120,7 +120,7 @@ export function createAnalysis(db: Db, input: { projectId: string; userId: strin
     ruleSetId: body.ruleSetId ?? null,
   };
   db.insert(analyses).values(row).run();
-  jobRunner().pump();
+  jobQueue().pump();
   return row;
 }
 
@@ -193,7 +193,7 @@ export function listProjectAnalyses(db: Db, projectId: string, limit = 200): Ana
 
 /** Cancels a queued or running analysis; 409 when it already finished. */
 export function cancelAnalysis(db: Db, analysisId: string): AnalysisView {
-  const status = jobRunner().cancel(analysisId);
+  const status = jobQueue().cancel(analysisId);
   if (status === null) {
     const view = getAnalysisView(db, analysisId);
     throw new ApiError('conflict', `The analysis has already finished (${view.status}); nothing to cancel.`);

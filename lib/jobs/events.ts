@@ -1,6 +1,7 @@
 /**
  * In-process fan-out of job progress to server-sent-event subscribers. Kept on globalThis because Next may load
- * this module in several bundles of the same process (instrumentation, route handlers).
+ * this module in several bundles of the same process (instrumentation, route handlers). A BullMQ worker process
+ * sets a relay that forwards every event to Redis; the server re-emits those with emitRelayedJobEvent().
  */
 import { EventEmitter } from 'node:events';
 import type { AnalysisStatus } from '@/db/schema';
@@ -15,7 +16,7 @@ export type JobEvent = {
   errorMessage: string | null;
 };
 
-const holder = globalThis as typeof globalThis & { __trenchantJobEvents?: EventEmitter };
+const holder = globalThis as typeof globalThis & { __trenchantJobEvents?: EventEmitter; __trenchantJobEventRelay?: (event: JobEvent) => void };
 
 function bus(): EventEmitter {
   if (!holder.__trenchantJobEvents) {
@@ -26,6 +27,17 @@ function bus(): EventEmitter {
 }
 
 export function publishJobEvent(event: JobEvent): void {
+  bus().emit(event.analysisId, event);
+  holder.__trenchantJobEventRelay?.(event);
+}
+
+/** Worker processes: also send every event published here to `relay` (null stops relaying). */
+export function setJobEventRelay(relay: ((event: JobEvent) => void) | null): void {
+  holder.__trenchantJobEventRelay = relay ?? undefined;
+}
+
+/** An event that arrived from another process: to local subscribers only (never relayed back). */
+export function emitRelayedJobEvent(event: JobEvent): void {
   bus().emit(event.analysisId, event);
 }
 

@@ -10,7 +10,7 @@ import { analyses, type AnalysisRow } from '@/db/schema';
 import { ApiError } from '@/lib/http/errors';
 import { parseAnalysisSettings } from '@/lib/pipeline/settings';
 import { QUEUED_JOB_STATE } from './analyses';
-import { jobRunner } from './runner';
+import { jobQueue } from './queue';
 
 export function rerunAnalysis(db: Db, input: { analysisId: string; userId: string }): AnalysisRow {
   const old = db.select().from(analyses).where(eq(analyses.id, input.analysisId)).get();
@@ -32,6 +32,6 @@ export function rerunAnalysis(db: Db, input: { analysisId: string; userId: strin
     ...QUEUED_JOB_STATE,
   };
   db.insert(analyses).values(row).run();
-  jobRunner().pump();
+  jobQueue().pump();
   return row;
 }

@@ -9,7 +9,9 @@
  * process down is then marked failed instead of crashing every restart.
  * Each job may write at most the team's per-analysis result limit, and no more than is left of the team's quota
  * of stored results (lib/jobs/team-limits.ts); the worker refuses before writing anything.
- * One runner per process, kept on globalThis (Next may load this module in several bundles).
+ * One runner per process, kept on globalThis (Next may load this module in several bundles). This is the embedded
+ * backend of lib/jobs/queue.ts; a BullMQ worker process (lib/jobs/queue-worker.ts) reuses it with `autoPump: false`
+ * and starts the jobs Redis hands it with runById().
  */
 import { existsSync } from 'node:fs';
 import { rm } from 'node:fs/promises';
@@ -20,6 +22,8 @@ import { getDb } from '@/db/client';
 import type { AnalysisStatus } from '@/db/schema';
 import type { AnalysisTask, AnalysisTaskResult, WorkerMessage } from '@/lib/pipeline/worker';
 import { isTerminal, publishJobEvent } from './events';
+import { finishJob } from './finish-job';
+import type { JobQueue } from './queue';
 import { analysisRelDir, resolveData } from './paths';
 import { saveResultRows } from './save-results';
 import { getTeamLimits, teamStoredResultBytes } from './team-limits';
@@ -64,7 +68,13 @@ type ClaimedRow = {
   team_id: string;
 };
 
-class JobRunner {
+export class JobRunner implements JobQueue {
+  readonly kind = 'embedded' as const;
+  /** False in a BullMQ worker: jobs come from Redis (runById), never straight from the table. */
+  private readonly autoPump: boolean;
+  constructor(options: { autoPump?: boolean } = {}) {
+    this.autoPump = options.autoPump ?? true;
+  }
   private pool: Piscina<AnalysisTask, AnalysisTaskResult> | null = null;
   private readonly running = new Map<string, RunningJob>();
   private pumping = false;
@@ -108,6 +118,7 @@ class JobRunner {
 
   /** Starts queued jobs while there is room. Safe to call any time, from anywhere. */
   pump(): void {
+    if (!this.autoPump) return;
     if (this.pumping) {
       this.pumpAgain = true;
       return;
@@ -119,20 +130,7 @@ class JobRunner {
         while (this.running.size < this.concurrency) {
           const row = this.claimNext();
           if (!row) break;
-          const job: RunningJob = {
-            analysisId: row.id,
-            controller: new AbortController(),
-            port: null,
-            flag: new Int32Array(new SharedArrayBuffer(4)),
-            cancelRequested: false,
-            started: false,
-            crash: null,
-          };
-          this.running.set(row.id, job);
-          void this.run(job, row).finally(() => {
-            this.running.delete(row.id);
-            this.pump();
-          });
+          void this.start(row);
         }
       } while (this.pumpAgain);
     } finally {
@@ -140,32 +138,70 @@ class JobRunner {
     }
   }
 
-  /** Marks the oldest queued job running and returns what the worker needs; null when the queue is empty. */
-  private claimNext(): ClaimedRow | null {
+  private start(row: ClaimedRow): Promise<void> {
+    const job: RunningJob = {
+      analysisId: row.id,
+      controller: new AbortController(),
+      port: null,
+      flag: new Int32Array(new SharedArrayBuffer(4)),
+      cancelRequested: false,
+      started: false,
+      crash: null,
+    };
+    this.running.set(row.id, job);
+    return this.run(job, row).finally(() => {
+      this.running.delete(row.id);
+      this.pump();
+    });
+  }
+
+  /**
+   * Queue backends that hand out jobs themselves (BullMQ): claims this analysis if it is queued, or 'running' but
+   * not here (its previous worker died), and runs it. Null when it is finished, cancelled or over the attempt cap
+   * (then marked failed). The job is registered as running before this returns, so cancel() reaches it at once.
+   */
+  runById(analysisId: string): Promise<void> | null {
+    if (this.running.has(analysisId)) return null;
+    const row = this.claimNext(analysisId);
+    return row ? this.start(row) : null;
+  }
+
+  /** Marks a job failed from outside a run (e.g. the queue gave up on it); no-op when it already finished. */
+  failJob(analysisId: string, code: string, message: string): void {
+    this.finish(analysisId, 'failed', { code, message });
+  }
+
+  /**
+   * Marks the oldest queued job running and returns what the worker needs; null when the queue is empty. With an
+   * id: that job, if it is queued or left running by a worker that died.
+   */
+  private claimNext(analysisId?: string): ClaimedRow | null {
     const sqlite = getDb().$client;
+    const which =
+      analysisId === undefined ? `(SELECT id FROM analyses WHERE status = 'queued' ORDER BY created_at, id LIMIT 1)` : `? AND status IN ('queued', 'running')`;
     const row = sqlite
       .prepare(
         `UPDATE analyses SET status = 'running', stage = 'starting', progress = 0, started_at = ?, attempts = attempts + 1,
            error_code = NULL, error_message = NULL
-         WHERE id = (SELECT id FROM analyses WHERE status = 'queued' ORDER BY created_at, id LIMIT 1)
+         WHERE id = ${which}
          RETURNING id, settings, model, revision_id, project_id, attempts`,
       )
-      .get(Date.now()) as { id: string; settings: string; model: string; revision_id: string; project_id: string; attempts: number } | undefined;
+      .get(...(analysisId === undefined ? [Date.now()] : [Date.now(), analysisId])) as { id: string; settings: string; model: string; revision_id: string; project_id: string; attempts: number } | undefined;
     if (!row) return null;
     const maxAttempts = jobMaxAttempts();
     if (row.attempts > maxAttempts) {
       this.finish(row.id, 'failed', {
         code: 'too-many-attempts',
-        message: `This analysis was interrupted ${row.attempts - 1 === 1 ? 'once' : `${row.attempts - 1} times`} (the server stopped while it ran) and was not started again (limit: ${maxAttempts} attempts, TRENCHANT_JOB_MAX_ATTEMPTS). Try a coarser pixel or a smaller layout, or start it again.`,
+        message: `This analysis was interrupted ${row.attempts - 1 === 1 ? 'once' : `${row.attempts - 1} times`} (${analysisId === undefined ? 'the server' : 'its worker process'} stopped while it ran) and was not started again (limit: ${maxAttempts} attempts, TRENCHANT_JOB_MAX_ATTEMPTS). Try a coarser pixel or a smaller layout, or start it again.`,
       });
-      return this.claimNext();
+      return analysisId === undefined ? this.claimNext() : null;
     }
     const rev = sqlite.prepare('SELECT stored_path, top_cell FROM layout_revisions WHERE id = ?').get(row.revision_id) as
       | { stored_path: string; top_cell: string }
       | undefined;
     if (!rev) {
       this.finish(row.id, 'failed', { code: 'missing-revision', message: 'the layout revision of this analysis no longer exists' });
-      return this.claimNext();
+      return analysisId === undefined ? this.claimNext() : null;
     }
     const team = sqlite.prepare('SELECT team_id FROM projects WHERE id = ?').get(row.project_id) as { team_id: string } | undefined;
     publishJobEvent({ analysisId: row.id, status: 'running', stage: 'starting', progress: 0, errorMessage: null });
@@ -275,23 +311,7 @@ class JobRunner {
     error: { code: string; message: string } | null,
     done?: { summary: unknown; resultDir: string },
   ): void {
-    const sqlite = getDb().$client;
-    const progress = status === 'done' ? 1 : null;
-    const res = sqlite
-      .prepare(
-        `UPDATE analyses SET status = ?, stage = ?, progress = COALESCE(?, progress), error_code = ?, error_message = ?, finished_at = ?,
-           summary = ?, result_dir = ? WHERE id = ? AND status IN ('queued', 'running')`,
-      )
-      .run(status, status, progress, error?.code ?? null, error?.message ?? null, Date.now(), done ? JSON.stringify(done.summary) : null, done?.resultDir ?? null, analysisId);
-    if (res.changes === 0) return;
-    if (status !== 'done') {
-      sqlite.prepare('DELETE FROM analysis_flags WHERE analysis_id = ?').run(analysisId);
-      sqlite.prepare('DELETE FROM analysis_features WHERE analysis_id = ?').run(analysisId);
-      sqlite.prepare('DELETE FROM analysis_feature_files WHERE analysis_id = ?').run(analysisId);
-      sqlite.prepare('DELETE FROM analysis_maps WHERE analysis_id = ?').run(analysisId);
-    }
-    const row = sqlite.prepare('SELECT progress FROM analyses WHERE id = ?').get(analysisId) as { progress: number } | undefined;
-    publishJobEvent({ analysisId, status, stage: status, progress: row?.progress ?? 0, errorMessage: error?.message ?? null });
+    finishJob(analysisId, status, error, done);
   }
 
   /**

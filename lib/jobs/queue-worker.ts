@@ -1,0 +1,90 @@
+/**
+ * A BullMQ worker process (`npm run worker`): takes analysis jobs from Redis and runs each in the same piscina
+ * pool and with the same steps as the embedded backend (lib/jobs/runner.ts, started per job with runById). It
+ * needs the server's database file and data folder (same TRENCHANT_DB / TRENCHANT_DATA_DIR, e.g. on a shared
+ * disk) and TRENCHANT_REDIS_URL.
+ *
+ * Failure handling:
+ *   - the worker process dies mid-job (kill -9, out of memory, power loss): its lock on the job lapses, BullMQ's
+ *     stalled-job check puts the job back and another worker takes it; the analyses row counts the attempt, and
+ *     past TRENCHANT_JOB_MAX_ATTEMPTS pick-ups the job is marked failed, as in the embedded pool;
+ *   - an error of the worker itself before the job starts (database busy): thrown to BullMQ, which retries with
+ *     exponential backoff up to the same number of attempts, then the job is marked failed;
+ *   - cancel: the server publishes the id; the worker running it stops it (the same shared-memory flag and grace
+ *     period as the embedded pool). A cancel key in Redis covers a job that is picked up after the message.
+ * Progress and final states go to Redis pub/sub, where the server hands them to its SSE subscribers.
+ */
+import { Worker, type Job } from 'bullmq';
+import { cancelChannel, cancelKey, eventsChannel, lockMs, openRedis, QUEUE_NAME, redisPrefix, safeUrl, type AnalysisJobData } from './bullmq-shared';
+import { setJobEventRelay } from './events';
+import { jobMaxAttempts, JobRunner } from './runner';
+
+export type QueueWorker = { close: () => Promise<void>; concurrency: number };
+
+export async function startQueueWorker(url: string, log: (line: string) => void = (l) => console.log(l)): Promise<QueueWorker> {
+  const runner = new JobRunner({ autoPump: false });
+  const pub = openRedis(url, 'worker');
+  const sub = openRedis(url, 'worker-cancel');
+  const connection = openRedis(url, 'worker-jobs');
+
+  setJobEventRelay((event) => {
+    void pub.publish(eventsChannel(), JSON.stringify(event)).catch(() => undefined);
+  });
+  await sub.subscribe(cancelChannel());
+  sub.on('message', (channel: string, analysisId: string) => {
+    if (channel === cancelChannel() && runner.isRunning(analysisId)) runner.cancel(analysisId);
+  });
+
+  const processor = async (job: Job<AnalysisJobData>) => {
+    const analysisId = job.data.analysisId;
+    // Throws on a database error: BullMQ retries the job after a backoff.
+    const running = runner.runById(analysisId);
+    if (!running) return { ran: false }; // finished, cancelled, or over the attempt cap (marked failed)
+    log(`[trenchant] worker ${process.pid}: analysis ${analysisId} started (pick-up ${job.attemptsStarted}, stalled ${job.stalledCounter})`);
+    if (await pub.get(cancelKey(analysisId)).catch(() => null)) runner.cancel(analysisId);
+    await running;
+    log(`[trenchant] worker ${process.pid}: analysis ${analysisId} ended`);
+    return { ran: true };
+  };
+
+  const lock = lockMs();
+  const worker = new Worker<AnalysisJobData>(QUEUE_NAME, processor, {
+    connection,
+    prefix: redisPrefix(),
+    concurrency: runner.concurrency,
+    lockDuration: lock,
+    stalledInterval: Math.max(1_000, Math.floor(lock / 2)),
+    // The analyses row counts pick-ups and fails the job past the cap with a clear message; BullMQ allows one
+    // more stall so that check is the one that decides.
+    maxStalledCount: jobMaxAttempts(),
+  });
+  worker.on('error', (err) => console.error('[trenchant] worker:', err.message));
+  worker.on('failed', (job, err) => {
+    if (!job) return;
+    const final = job.attemptsMade >= (job.opts.attempts ?? 1) || /stalled more than allowable limit/i.test(err.message);
+    if (!final) {
+      log(`[trenchant] worker ${process.pid}: analysis ${job.data.analysisId} will be retried (${err.message})`);
+      return;
+    }
+    try {
+      runner.failJob(job.data.analysisId, 'worker-crash', `The analysis could not be run by a queue worker after ${job.attemptsMade} attempts: ${err.message.replace(/\s+/g, ' ').slice(0, 300)}`);
+    } catch (e) {
+      // The database is still unusable: the row stays as it is; the server's start-up requeues it.
+      console.error(`[trenchant] worker ${process.pid}: could not mark analysis ${job.data.analysisId} failed:`, e instanceof Error ? e.message : e);
+    }
+  });
+  await worker.waitUntilReady();
+  log(`[trenchant] queue worker ${process.pid} on ${safeUrl(url)}: up to ${runner.concurrency} analyses at a time`);
+
+  return {
+    concurrency: runner.concurrency,
+    close: async () => {
+      await worker.close();
+      setJobEventRelay(null);
+      await runner.close();
+      sub.disconnect();
+      pub.disconnect();
+      connection.disconnect();
+    },
+  };
+}

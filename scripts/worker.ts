@@ -1,0 +1,23 @@
+// `npm run worker`: a BullMQ worker process for analysis jobs (lib/jobs/queue-worker.ts). Needs
+// TRENCHANT_REDIS_URL and the server's database file and data folder (TRENCHANT_DB, TRENCHANT_DATA_DIR) — on
+// another machine, a shared disk mounted at the same paths. TRENCHANT_JOB_CONCURRENCY sets how many analyses it
+// runs at once. SIGTERM / Ctrl-C: finish the running analyses, then exit; a second signal exits at once (the jobs
+// then go to another worker after the lock lapses).
+import { startQueueWorker } from '../lib/jobs/queue-worker';
+import { redisUrl } from '../lib/jobs/queue';
+
+const url = redisUrl();
+if (!url) {
+  console.error('[trenchant] set TRENCHANT_REDIS_URL (e.g. redis://127.0.0.1:6379) to run a queue worker');
+  process.exit(2);
+}
+const worker = await startQueueWorker(url);
+let stopping = false;
+for (const signal of ['SIGINT', 'SIGTERM'] as const) {
+  process.on(signal, () => {
+    if (stopping) process.exit(1);
+    stopping = true;
+    console.log(`[trenchant] worker ${process.pid}: ${signal}, finishing the running analyses (send it again to stop now)`);
+    void worker.close().then(() => process.exit(0));
+  });
+}
