@@ -4,26 +4,23 @@ import { useQuery } from '@tanstack/react-query';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { useFindingSelection } from '@/components/analysis/finding-selection';
 import { apiJson } from '@/components/pipeline/api-client';
-import type { Flag } from '@/lib/pipeline/flags';
 import { decodeGrid, type GridMap } from '@/lib/pipeline/grid-file';
 import { finiteRange, paintCoverage, paintRaster } from '@/lib/viewer/color-scale';
 import { mapKindInfo, sampleAt } from '@/lib/viewer/map-kinds';
 import { fitView, focusOn, layoutToScreen, panBy, scaleBar, screenToLayout, zoomAbout, type View } from '@/lib/viewer/view-transform';
 import type { ViewerInfo } from '@/lib/viewer/viewer-source';
-import { hitMark, type MarkFlag } from './flag-marks';
+import { FlagTooltip, type HoverMark } from './flag-tooltip';
 import type { ViewerScene } from './pixi-scene';
 import { Legend, MarkKey, Readout, WhatIfPanel, type ReadoutRow } from './viewer-panels';
 import { POLYGON_BUDGET, usePolygonLod } from './use-polygon-lod';
+import { useFlagMarks } from './use-flag-marks';
 import { useWhatIf } from './use-what-if';
 
 const HEIGHT = 560;
 
 type MapInfo = { name: string; kind: string; unit: string; url: string };
-type ApiFlag = { key: string; kind: string; severity: MarkFlag['severity']; bboxUm: [number, number, number, number]; atUm: [number, number]; measured: number; limit: number; unit: string; message: string };
 type LoadedMap = { info: MapInfo; grid: GridMap };
 
-const toMark = (f: ApiFlag): MarkFlag => ({ id: f.key, key: f.key, kind: f.kind, severity: f.severity, xUm: f.atUm[0], yUm: f.atUm[1], bboxUm: f.bboxUm, message: f.message, measured: f.measured, limit: f.limit, unit: f.unit });
-const flagMark = (f: Flag): MarkFlag => ({ id: f.id, key: f.id, kind: f.kind, severity: f.severity, xUm: f.xUm, yUm: f.yUm, bboxUm: f.bboxUm, message: f.message, measured: f.measured, limit: f.limit, unit: f.unit });
 
 async function fetchGrid(info: MapInfo): Promise<LoadedMap> {
   const res = await fetch(info.url, { credentials: 'same-origin' });
@@ -43,14 +40,13 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
   const [limits, setLimits] = useState<Record<string, [number, number]>>({});
   const [opacity, setOpacity] = useState(0.75);
   const [cursor, setCursor] = useState<[number, number] | null>(null);
-  const [hover, setHover] = useState<{ flag: MarkFlag; sx: number; sy: number } | null>(null);
+  const [hover, setHover] = useState<HoverMark | null>(null);
   const [hiddenLayers, setHiddenLayers] = useState<Set<number>>(new Set());
   const [showMarks, setShowMarks] = useState(true);
   const { selected, select } = useFindingSelection();
 
   const info = useQuery({ queryKey: ['analysis', analysisId, 'viewer'], queryFn: () => apiJson<ViewerInfo>(`${base}/viewer`) });
   const results = useQuery({ queryKey: ['analysis', analysisId, 'viewer-maps'], queryFn: () => apiJson<{ maps: MapInfo[] }>(`${base}/results?limit=1`) });
-  const flagsQ = useQuery({ queryKey: ['analysis', analysisId, 'viewer-flags'], queryFn: () => apiJson<{ items: ApiFlag[]; total: number }>(`${base}/flags?limit=5000`) });
 
   // --- scene: built once, destroyed on unmount -------------------------------------------------------------
   useEffect(() => {
@@ -169,28 +165,22 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
   const mode = usePolygonLod({ ready, view, sceneRef, base, polygonCount: info.data?.polygonCount ?? null, dieBboxUm: info.data?.dieBboxUm ?? null, hiddenLayers });
 
   // --- flags ----------------------------------------------------------------------------------------------------
-  const marks = useMemo(() => {
-    const stored = (flagsQ.data?.items ?? []).map(toMark);
-    if (!whatIf) return stored;
-    // Density flags do not depend on the etch model; opening flags come from the what-if.
-    return [...stored.filter((f) => f.kind.startsWith('window-density') || f.kind.startsWith('density-gradient')), ...whatIf.flags.map(flagMark)];
-  }, [flagsQ.data, whatIf]);
-  useEffect(() => {
-    if (ready) sceneRef.current?.setFlags(marks);
-  }, [ready, marks]);
-
-  useEffect(() => {
-    const scene = sceneRef.current;
-    const v = viewRef.current;
-    if (!ready || !scene) return;
-    if (!selected) return scene.setSelected(null);
-    const mark = marks.find((m) => m.key === selected.flagId) ?? { id: selected.flagId, key: selected.flagId, kind: '', severity: 'info' as const, xUm: selected.xUm, yUm: selected.yUm, bboxUm: selected.bboxUm, message: '', measured: 0, limit: 0, unit: '' };
-    scene.setSelected(mark);
-    if (selected.source === 'table' && v) {
-      applyView(focusOn(v, selected.xUm, selected.yUm, selected.bboxUm));
+  const focus = useCallback(
+    (xUm: number, yUm: number, bboxUm: [number, number, number, number]) => {
+      const v = viewRef.current;
+      if (!v) return;
+      applyView(focusOn(v, xUm, yUm, bboxUm));
       hostRef.current?.scrollIntoView({ block: 'nearest', behavior: 'smooth' });
-    }
-  }, [ready, selected, marks, applyView]);
+    },
+    [applyView],
+  );
+  const marks = useFlagMarks({ base, analysisId, ready, sceneRef, whatIfFlags: whatIf?.flags ?? null, onFocus: focus });
+  const hitAt = (sx: number, sy: number): HoverMark | null => {
+    const hit = showMarks ? sceneRef.current?.hitTest(sx, sy) : null;
+    const record = hit ? marks.recordAt(hit.index) : null;
+    if (!hit || !record || !marks.source) return null;
+    return { record, source: marks.source(hit.index), merged: hit.merged, sx, sy };
+  };
 
   // --- input ------------------------------------------------------------------------------------------------------
   const drag = useRef<{ x: number; y: number; moved: boolean } | null>(null);
@@ -200,7 +190,6 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
     const r = hostRef.current!.getBoundingClientRect();
     return [e.clientX - r.left, e.clientY - r.top];
   };
-  const toScreen = (x: number, y: number) => layoutToScreen(viewRef.current!, x, y);
   const onPointerDown = (e: React.PointerEvent) => {
     touches.current.set(e.pointerId, local(e));
     hostRef.current?.setPointerCapture(e.pointerId);
@@ -233,8 +222,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
       return;
     }
     setCursor(screenToLayout(v, sx, sy));
-    const hit = showMarks ? hitMark(marks, toScreen, sx, sy) : null;
-    setHover(hit ? { flag: hit, sx, sy } : null);
+    setHover(hitAt(sx, sy));
   };
   const onPointerUp = (e: React.PointerEvent) => {
     touches.current.delete(e.pointerId);
@@ -242,8 +230,8 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
     drag.current = null;
     if (!d || d.moved || !viewRef.current) return;
     const [sx, sy] = local(e);
-    const hit = showMarks ? hitMark(marks, toScreen, sx, sy) : null;
-    if (hit) select({ flagId: hit.key, xUm: hit.xUm, yUm: hit.yUm, bboxUm: hit.bboxUm, source: 'canvas' });
+    const hit = hitAt(sx, sy);
+    if (hit) select({ flagId: hit.record.key, xUm: hit.record.xUm, yUm: hit.record.yUm, bboxUm: [...hit.record.bboxUm], source: 'canvas' });
   };
   useEffect(() => {
     const host = hostRef.current;
@@ -357,14 +345,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
           <div className="pointer-events-none absolute top-2 left-2 rounded bg-white/85 px-2 py-0.5 text-[11px] text-ink-700" data-testid="lod-mode">
             {mode === 'polygons' ? 'polygons in view' : mode === 'raster' ? `coverage raster (more than ${POLYGON_BUDGET.toLocaleString('en')} polygons here; zoom in)` : 'loading polygons…'}
           </div>
-          {hover ? (
-            <div className="pointer-events-none absolute z-10 max-w-xs rounded border border-ink-900/20 bg-white p-2 text-xs shadow" style={{ left: Math.min(hover.sx + 14, (view?.width ?? 600) - 300), top: hover.sy + 14 }} data-testid="flag-tooltip">
-              <p className="font-semibold text-ink-900">
-                {hover.flag.severity} · {hover.flag.kind}
-              </p>
-              <p className="text-ink-700">{hover.flag.message}</p>
-            </div>
-          ) : null}
+          {hover ? <FlagTooltip hover={hover} base={base} width={view?.width ?? 600} whatIfMessage={(k) => whatIf?.flags[k]?.message} /> : null}
         </div>
         <div className="grid content-start gap-3">
           {shown ? <Legend mapName={shown.name} kind={shown.kind} scale={kindInfo.scale} lo={lim[0]} hi={lim[1]} dataRange={dataRange} whatIf={shown.whatIf} onLimits={(lo, hi) => Number.isFinite(lo) && Number.isFinite(hi) && setLimits((p) => ({ ...p, [shown.name]: [lo, hi] }))} onReset={() => setLimits((p) => Object.fromEntries(Object.entries(p).filter(([k]) => k !== shown.name)))} /> : <p className="text-xs text-ink-500">Loading maps…</p>}
@@ -380,8 +361,11 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
               }}
               data-testid="show-marks"
             />
-            flag marks ({marks.length.toLocaleString('en')}{flagsQ.data && flagsQ.data.total > marks.length && !whatIf ? ` of ${flagsQ.data.total.toLocaleString('en')}` : ''}; dense ones thinned, worst kept)
+            flag marks
           </label>
+          <p className="-mt-2 text-xs text-ink-500" data-testid="mark-count" data-total={marks.flags?.count ?? ''} data-in-view={marks.placed.inView} data-drawn={marks.placed.drawn}>
+            {marks.flags ? `${marks.flags.count.toLocaleString('en')} flags${whatIf ? ' (what-if)' : ''}; ${marks.placed.inView.toLocaleString('en')} in view, ${marks.placed.drawn.toLocaleString('en')} marks drawn${marks.placed.drawn < marks.placed.inView ? ' (close ones merged, worst on top; zoom in to separate)' : ''}` : marks.error ? `flags could not be loaded (${marks.error})` : 'loading flags…'}
+          </p>
           {layers.length > 0 ? (
             <div className="text-xs text-ink-700" data-testid="layers">
               <p className="font-semibold text-ink-900">Layers</p>

@@ -48,6 +48,21 @@ export const VIEWER_PATHS: Record<string, PathItemObject> = {
       errors: [409],
     }),
   },
+  '/analyses/{analysisId}/flags.bin': {
+    get: operation('get', {
+      id: 'getFlagColumns',
+      tag: 'Analyses',
+      summary: 'Every flag of a finished analysis as compact binary columns (TRFLAG1), worst first',
+      access: 'session-or-token',
+      permission: 'project.read',
+      path: analysisId,
+      ok: {
+        200: { description: 'TRFLAG1 columns.', contentType: 'application/vnd.trenchant.flags', schema: { type: 'string', contentMediaType: 'application/vnd.trenchant.flags' } },
+        304: { description: 'Not modified.' },
+      },
+      errors: [409],
+    }),
+  },
   '/analyses/{analysisId}/polygons': {
     get: operation('get', {
       id: 'getPolygonsInBox',
