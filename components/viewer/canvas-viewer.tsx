@@ -15,6 +15,7 @@ import { Legend, MarkKey, Readout, WhatIfPanel, type ReadoutRow } from './viewer
 import { POLYGON_BUDGET, usePolygonLod } from './use-polygon-lod';
 import { useFlagMarks } from './use-flag-marks';
 import { useWhatIf } from './use-what-if';
+import { WhatIfSaveButton } from './whatif-save-button';
 
 const HEIGHT = 560;
 
@@ -314,7 +315,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
       </div>
       {whatIf ? (
         <p className="rounded bg-copper-600 px-3 py-1 text-xs font-semibold text-white" data-testid="whatif-banner">
-          WHAT-IF: depth, margin, risk and opening flags below are recomputed in the browser from changed model parameters — not the stored analysis.
+          WHAT-IF: depth, margin, risk and opening flags below are recomputed in the browser from changed model parameters — not the stored analysis until saved as a new analysis.
         </p>
       ) : null}
       <div className="grid gap-3 lg:grid-cols-[1fr_260px]">
@@ -389,6 +390,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
             </div>
           ) : null}
           {baseParams ? <WhatIfPanel base={baseParams} params={whatIf?.params ?? baseParams} active={Boolean(whatIf)} status={whatIfStatus} onChange={runWhatIf} onReset={resetWhatIf} /> : null}
+          {whatIf ? <WhatIfSaveButton base={base} params={whatIf.params} /> : null}
         </div>
       </div>
       <p className="text-xs text-ink-500">

@@ -229,6 +229,43 @@ describe('canvas viewer in Chromium', () => {
     }
   });
 
+  it('a what-if saved as a new analysis queues the same revision and settings with the derived model', async () => {
+    await page.goto(`${server.baseUrl}/analyses/${analysisId}?view=flat`);
+    await page.waitForSelector('[data-testid=canvas-viewer][data-ready=yes]', { timeout: 60_000 });
+    await page.waitForFunction(() => /openings loaded/.test(document.querySelector('[data-testid=whatif-status]')?.textContent ?? ''), null, { timeout: 60_000 });
+    const slider = page.getByTestId('whatif-timeMin');
+    const max = Number(await slider.getAttribute('max'));
+    const min = Number(await slider.getAttribute('min'));
+    await slider.fill(String(min + 0.8 * (max - min)));
+    await page.waitForSelector('[data-testid=whatif-banner]');
+    const wanted = Number(await slider.inputValue());
+    await page.getByTestId('whatif-save-button').click();
+    const saved = page.getByTestId('whatif-saved');
+    await saved.waitFor({ timeout: 20_000 });
+    await screenshot(page, 'viewer-whatif-saved');
+    const newId = (await saved.getAttribute('data-analysis-id'))!;
+    expect(newId).not.toBe(analysisId);
+    expect(await saved.textContent()).toContain('etch.timeMin');
+    const db = new Database(server.dbFile, { readonly: true });
+    try {
+      const row = (id: string) => db.prepare('select revision_id as rev, settings, model, model_version as version from analyses where id = ?').get(id) as { rev: string; settings: string; model: string; version: string };
+      const before = row(analysisId);
+      const after = row(newId);
+      expect(after.rev).toBe(before.rev);
+      expect(JSON.parse(after.settings)).toEqual(JSON.parse(before.settings));
+      const m0 = JSON.parse(before.model) as { etch: { timeMin: number }; openRateUmPerMin: number };
+      const m1 = JSON.parse(after.model) as { etch: { timeMin: number }; openRateUmPerMin: number; description: string };
+      expect(m1.etch.timeMin).toBeCloseTo(wanted, 9);
+      expect(m1.etch.timeMin).not.toBeCloseTo(m0.etch.timeMin, 6);
+      expect(m1.openRateUmPerMin).toBe(m0.openRateUmPerMin);
+      expect(after.version).toBe(`${before.version}+what-if`);
+      expect(m1.description).toContain(`version ${before.version} (analysis ${analysisId})`);
+      expect(m1.description).toContain('etch.timeMin');
+    } finally {
+      db.close();
+    }
+  }, 120_000);
+
   // Runs last: it adds flags to the analysis, beyond the JSON flags API's page of 5,000.
   it('every flag reaches the canvas (> 5,000): flags.bin serves all, a far-down flag is drawn when zoomed to and selects on click', async () => {
     const info = (await (await page.request.get(`${server.baseUrl}/api/v1/analyses/${analysisId}/viewer`)).json()) as { dieBboxUm: [number, number, number, number] };
