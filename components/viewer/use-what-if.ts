@@ -42,7 +42,7 @@ export function useWhatIf(info: ViewerInfo | undefined, coverage: { values: Floa
         setStatus(`what-if failed: ${m.message}`);
       } else {
         setWhatIf((prev) => (prev ? { ...prev, depth: m.depth, margin: m.margin, risk: m.risk, flags: m.flags, ms: m.ms.total, underTarget: m.underTarget, count: m.count } : prev));
-        setStatus(`${m.count.toLocaleString('en')} openings in ${m.ms.total.toFixed(0)} ms (${m.threads} thread${m.threads > 1 ? 's' : ''}) · ${m.underTarget} under target · ${m.flags.length} opening flags`);
+        setStatus(`${m.count.toLocaleString('en')} openings in ${m.ms.total.toFixed(0)} ms (${m.threads} thread${m.threads > 1 ? 's' : ''}) · ${m.underTarget} under target · ${m.flags.length} opening flags${m.flagsLeftOut > 0 ? ` (first ${m.flags.length.toLocaleString('en')} only: ${m.flagsLeftOut.toLocaleString('en')} more flagged openings are not marked in the what-if; save it as a new analysis to see all)` : ''}`);
       }
       const next = pending.current;
       pending.current = null;

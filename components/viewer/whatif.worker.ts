@@ -24,7 +24,7 @@ export type WhatIfInit = {
 export type WhatIfRun = { type: 'run'; seq: number; params: WhatIfParams };
 export type WhatIfReply =
   | { type: 'ready'; count: number; storedMargin: Float32Array | null }
-  | { type: 'result'; seq: number; depth: Float32Array | null; margin: Float32Array | null; risk: Float32Array | null; flags: Flag[]; underTarget: number; count: number; threads: number; ms: { predictor: number; features: number; flags: number; maps: number; total: number } }
+  | { type: 'result'; seq: number; depth: Float32Array | null; margin: Float32Array | null; risk: Float32Array | null; flags: Flag[]; flagsLeftOut: number; underTarget: number; count: number; threads: number; ms: { predictor: number; features: number; flags: number; maps: number; total: number } }
   | { type: 'error'; message: string };
 type HelperAsk = { seq: number; params: WhatIfParams; q0: number };
 type HelperAnswer = { seq: number; pred: UniquePrediction } | { seq: number; error: string } | { ready: true };
@@ -110,7 +110,7 @@ self.onmessage = async (e: MessageEvent<WhatIfInit | WhatIfRun>) => {
     const risk = owner ? spread(owner, r.risk) : null;
     const t2 = performance.now();
     const transfer = [depth, margin, risk].filter((a): a is Float32Array => a !== null).map((a) => a.buffer as ArrayBuffer);
-    post({ type: 'result', seq: e.data.seq, depth, margin, risk, flags: r.flags, underTarget: r.underTarget, count: features.count, threads: q0 !== null ? 2 : 1, ms: { ...r.ms, maps: t2 - t1, total: t2 - t0 } }, transfer);
+    post({ type: 'result', seq: e.data.seq, depth, margin, risk, flags: r.flags, flagsLeftOut: r.flagsLeftOut, underTarget: r.underTarget, count: features.count, threads: q0 !== null ? 2 : 1, ms: { ...r.ms, maps: t2 - t1, total: t2 - t0 } }, transfer);
   } catch (err) {
     post({ type: 'error', message: err instanceof Error ? err.message : String(err) });
   }

@@ -33,6 +33,8 @@ export interface WhatIfResult {
   marginUm: Float64Array;
   risk: Float64Array;
   flags: Flag[];
+  /** Openings that would be flagged but were left out because `maxFlags` was reached. */
+  flagsLeftOut: number;
   /** Openings predicted under target, at the what-if parameters. */
   underTarget: number;
   ms: { predictor: number; features: number; flags: number };
@@ -160,6 +162,7 @@ export function runWhatIf(ctx: WhatIfContext, p: WhatIfParams, cache = new Predi
   const range = calibratedRangeOf(model);
   const flags: Flag[] = [];
   let underTarget = 0;
+  let flagsLeftOut = 0;
   let flagMs = 0;
   const u = uniqueInputs(f);
   const m = u.kind.length;
@@ -189,7 +192,9 @@ export function runWhatIf(ctx: WhatIfContext, p: WhatIfParams, cache = new Predi
     risk[k] = uRisk[q] as number;
     if (!uReach[q]) underTarget++;
     // Every feature rule is one of the risk terms crossing 1 (or a calibration excursion), so the rest pass.
-    if ((risk[k]! >= 1 || range) && flags.length < maxFlags) {
+    if ((risk[k]! >= 1 || range) && flags.length >= maxFlags) {
+      if (risk[k]! >= 1) flagsLeftOut++;
+    } else if (risk[k]! >= 1 || range) {
       const s = performance.now();
       const kind = MODEL_KIND[f.modelKind[k] as number] ?? 'trench';
       const widthUm = f.widthUm[k] as number;
@@ -213,7 +218,7 @@ export function runWhatIf(ctx: WhatIfContext, p: WhatIfParams, cache = new Predi
     }
   }
   const t2 = performance.now();
-  return { depthUm, marginUm, risk, flags, underTarget, ms: { predictor: t1 - t0, features: t2 - t1 - flagMs, flags: flagMs } };
+  return { depthUm, marginUm, risk, flags, flagsLeftOut, underTarget, ms: { predictor: t1 - t0, features: t2 - t1 - flagMs, flags: flagMs } };
 }
 
 /**

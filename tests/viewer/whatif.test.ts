@@ -71,6 +71,16 @@ describe('what-if recomputation', () => {
     const bad = runWhatIf(ctx, p, new PredictorCache(), 5000, predictUnique(ctx, p, new PredictorCache(), q0, m - 1));
     expect([...bad.depthUm]).toEqual([...one.depthUm]);
   });
+  it('counts the flagged openings left out when the flag cap is reached', () => {
+    const p = { ...paramsOf(model), timeMin: paramsOf(model).timeMin * 0.5 };
+    const full = runWhatIf(ctx, p, new PredictorCache());
+    const atRisk = [...full.risk].filter((r) => r >= 1).length;
+    expect(atRisk).toBeGreaterThan(2);
+    expect(full.flagsLeftOut).toBe(0);
+    const capped = runWhatIf(ctx, p, new PredictorCache(), 1);
+    expect(capped.flagsLeftOut).toBeGreaterThan(0);
+    expect(capped.flagsLeftOut).toBeLessThan(atRisk);
+  });
   it('spreads per-opening values onto the grid through the pipeline painter', () => {
     const grid = { x0Um: 0, y0Um: 0, pixelUm: 1, nx: 40, ny: 3 };
     const coverage = new Float32Array(120).fill(1);
