@@ -11,7 +11,7 @@ import 'pixi.js/unsafe-eval';
 import { Application, BufferImageSource, Container, Geometry, Graphics, Mesh, MeshSimple, Shader, Texture, type MeshGeometry } from 'pixi.js';
 import type { LayerMesh } from '@/lib/viewer/polygon-mesh';
 import { layoutToScreen, worldMatrix, type View } from '@/lib/viewer/view-transform';
-import { hitThinned, thinMarks, type ThinnedMarks } from '@/lib/viewer/flag-thinning';
+import { hitThinned, severityOrder, thinMarks, type ThinnedMarks } from '@/lib/viewer/flag-thinning';
 import { SEVERITY_CODES, type FlagColumns } from '@/lib/viewer/flag-wire';
 import { markStyle } from './flag-marks';
 import { buildMarkMesh, type MarkInstance } from './mark-mesh';
@@ -60,6 +60,8 @@ export class ViewerScene {
   private overlay = new Container();
   /** Every flag of the analysis (or of the what-if), as columns. */
   private flags: FlagColumns | null = null;
+  /** The flags by severity (thinMarks draws the worst first). */
+  private flagOrder: Uint32Array | null = null;
   /** The marks of the last placement (for hit tests). */
   private thinned: ThinnedMarks | null = null;
   /** Called after each placement with the marks drawn and the flags in view. */
@@ -213,6 +215,7 @@ export class ViewerScene {
 
   setFlags(flags: FlagColumns | null): void {
     this.flags = flags;
+    this.flagOrder = flags ? severityOrder(flags.severity, flags.count) : null;
     this.placeOverlay();
     this.requestRender();
   }
@@ -242,7 +245,7 @@ export class ViewerScene {
     const v = this.view;
     const c = this.flags;
     // Declutter by screen cell (lib/viewer/flag-thinning.ts); the selected flag always shows.
-    const t = c && this.marksVisible ? thinMarks(v, c.xUm, c.yUm, c.severity, c.count, this.selected?.index ?? -1) : null;
+    const t = c && this.marksVisible ? thinMarks(v, c.xUm, c.yUm, c.severity, c.count, this.selected?.index ?? -1, this.flagOrder ?? undefined) : null;
     this.thinned = t;
     const shown: MarkInstance[] = [];
     if (t && c) {

@@ -23,23 +23,34 @@ export interface ThinnedMarks {
   inView: number;
 }
 
-export function thinMarks(v: View, x: ArrayLike<number>, y: ArrayLike<number>, severity: ArrayLike<number>, count: number, selected = -1): ThinnedMarks {
+/** Flag indices by severity (errors first), rank order kept within one: a counting sort, done once per flag set. */
+export function severityOrder(severity: ArrayLike<number>, count: number): Uint32Array {
+  const start = [0, 0, 0, 0];
+  for (let i = 0; i < count; i++) start[Math.min(2, severity[i] as number) + 1]! += 1;
+  start[2]! += start[1]!;
+  start[3]! += start[2]!;
+  const out = new Uint32Array(count);
+  for (let i = 0; i < count; i++) out[start[Math.min(2, severity[i] as number)]!++] = i;
+  return out;
+}
+
+/**
+ * Marks for view `v`. `order` (severityOrder of the same flags) saves its sort on every call; the scene keeps it
+ * per flag set, so a view change costs two passes of arithmetic over the flags and no allocation per flag.
+ */
+export function thinMarks(v: View, x: ArrayLike<number>, y: ArrayLike<number>, severity: ArrayLike<number>, count: number, selected = -1, order?: Uint32Array): ThinnedMarks {
   const [ox, oy] = layoutToScreen(v, 0, 0);
   const s = v.scale;
-  const px = new Float32Array(count);
-  const py = new Float32Array(count);
-  const inside = new Uint8Array(count);
+  const x0 = -MARGIN_PX;
+  const y0 = -MARGIN_PX;
+  const x1 = v.width + MARGIN_PX;
+  const y1 = v.height + MARGIN_PX;
+  // layoutToScreen is affine with y flipped: screen = origin + scale · (x, −y).
   let inView = 0;
   for (let i = 0; i < count; i++) {
-    // layoutToScreen is affine with y flipped: screen = origin + scale · (x, −y).
     const a = ox + s * (x[i] as number);
     const b = oy - s * (y[i] as number);
-    px[i] = a;
-    py[i] = b;
-    if (a > -MARGIN_PX && b > -MARGIN_PX && a < v.width + MARGIN_PX && b < v.height + MARGIN_PX) {
-      inside[i] = 1;
-      inView++;
-    }
+    if (a > x0 && b > y0 && a < x1 && b < y1) inView++;
   }
   const cell = cellPxFor(inView);
   const gx = Math.ceil((v.width + 2 * MARGIN_PX) / cell) + 1;
@@ -47,8 +58,13 @@ export function thinMarks(v: View, x: ArrayLike<number>, y: ArrayLike<number>, s
   const owner = new Int32Array(gx * gy).fill(-1);
   const drawn: number[] = [];
   const merged: number[] = [];
+  const sx: number[] = [];
+  const sy: number[] = [];
   const place = (i: number, force: boolean) => {
-    const c = Math.floor((px[i]! + MARGIN_PX) / cell) + gx * Math.floor((py[i]! + MARGIN_PX) / cell);
+    const a = ox + s * (x[i] as number);
+    const b = oy - s * (y[i] as number);
+    if (!(a > x0 && b > y0 && a < x1 && b < y1)) return;
+    const c = Math.floor((a - x0) / cell) + gx * Math.floor((b - y0) / cell);
     const o = owner[c]!;
     if (o >= 0 && !force) {
       merged[o]! += 1;
@@ -57,22 +73,17 @@ export function thinMarks(v: View, x: ArrayLike<number>, y: ArrayLike<number>, s
     if (o < 0) owner[c] = drawn.length;
     drawn.push(i);
     merged.push(1);
+    sx.push(a);
+    sy.push(b);
   };
-  if (selected >= 0 && selected < count && inside[selected]) place(selected, true);
-  // Severity 0 (error) first, then warnings, then info; within one, input (rank) order.
-  for (let sev = 0; sev <= 2; sev++) {
-    for (let i = 0; i < count; i++) {
-      if (!inside[i] || i === selected) continue;
-      const si = Math.min(2, severity[i] as number);
-      if (si === sev) place(i, false);
-    }
+  if (selected >= 0 && selected < count) place(selected, true);
+  // Errors first, then warnings, then info; within one, input (rank) order.
+  const ord = order && order.length === count ? order : severityOrder(severity, count);
+  for (let k = 0; k < count; k++) {
+    const i = ord[k]!;
+    if (i !== selected) place(i, false);
   }
-  const out: ThinnedMarks = { drawn: Uint32Array.from(drawn), sx: new Float32Array(drawn.length), sy: new Float32Array(drawn.length), merged: Uint32Array.from(merged), inView };
-  drawn.forEach((i, k) => {
-    out.sx[k] = px[i]!;
-    out.sy[k] = py[i]!;
-  });
-  return out;
+  return { drawn: Uint32Array.from(drawn), sx: Float32Array.from(sx), sy: Float32Array.from(sy), merged: Uint32Array.from(merged), inView };
 }
 
 /** Drawn mark nearest to (sx, sy) within `radiusPx`, as its slot in `t.drawn`; −1 when none. Earlier slots (more severe) win ties. */

@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { cellPxFor, hitThinned, thinMarks } from '@/lib/viewer/flag-thinning';
+import { cellPxFor, hitThinned, severityOrder, thinMarks } from '@/lib/viewer/flag-thinning';
 import { decodeFlags, encodeFlags, flagAt, flagColumns, FlagWireError, selectAndAppend, type FlagRecord } from '@/lib/viewer/flag-wire';
 import { layoutToScreen, MAX_SCALE, type View } from '@/lib/viewer/view-transform';
 
@@ -87,6 +87,17 @@ describe('flag thinning (one mark per screen cell; zoom separates)', () => {
       }),
       { numRuns: 200 },
     );
+  });
+  it('severityOrder puts errors, then warnings, then info first, keeping rank order within each; a given order gives the same marks', () => {
+    const sev = Uint8Array.from([2, 0, 1, 0, 2, 1]);
+    expect([...severityOrder(sev, 6)]).toEqual([1, 3, 2, 5, 0, 4]);
+    const pts: [number, number][] = Array.from({ length: 500 }, (_, k) => [(k * 37) % 101, (k * 53) % 97]);
+    const c = cols(pts, pts.map((_, k) => (k * 7) % 3));
+    const v = view(50, 50, 3);
+    const a = thinMarks(v, c.xUm, c.yUm, c.severity, c.count);
+    const b = thinMarks(v, c.xUm, c.yUm, c.severity, c.count, -1, severityOrder(c.severity, c.count));
+    expect([...b.drawn]).toEqual([...a.drawn]);
+    expect([...b.merged]).toEqual([...a.merged]);
   });
   it('the selected flag is always drawn, and hit tests find drawn marks by screen position', () => {
     const pts: [number, number][] = [[0, 0], [0.01, 0], [50, 50]];
