@@ -11,7 +11,9 @@ import 'pixi.js/unsafe-eval';
 import { Application, BufferImageSource, Container, Geometry, Graphics, Mesh, MeshSimple, Shader, Texture, type MeshGeometry } from 'pixi.js';
 import type { LayerMesh } from '@/lib/viewer/polygon-mesh';
 import { layoutToScreen, worldMatrix, type View } from '@/lib/viewer/view-transform';
-import { markStyle, type MarkFlag } from './flag-marks';
+import { hitThinned, severityOrder, thinMarks, type ThinnedMarks } from '@/lib/viewer/flag-thinning';
+import { SEVERITY_CODES, type FlagColumns } from '@/lib/viewer/flag-wire';
+import { markStyle } from './flag-marks';
 import { buildMarkMesh, type MarkInstance } from './mark-mesh';
 
 const VERTEX = `in vec2 aPosition;
@@ -45,6 +47,9 @@ export interface RasterLayer {
   pixelUm: number;
 }
 
+/** The selected flag: its index in the scene's flags (−1 when not among them) and where it is. */
+export type SelectedMark = { index: number; xUm: number; yUm: number; bboxUm: [number, number, number, number] };
+
 export class ViewerScene {
   readonly app = new Application();
   private world = new Container();
@@ -53,15 +58,21 @@ export class ViewerScene {
   private polygons = new Container();
   private layerMeshes = new Map<number, Container>();
   private overlay = new Container();
-  /** Flags, most severe first (declutter keeps the first mark in a cell). */
-  private marks: MarkFlag[] = [];
+  /** Every flag of the analysis (or of the what-if), as columns. */
+  private flags: FlagColumns | null = null;
+  /** The flags by severity (thinMarks draws the worst first). */
+  private flagOrder: Uint32Array | null = null;
+  /** The marks of the last placement (for hit tests). */
+  private thinned: ThinnedMarks | null = null;
+  /** Called after each placement with the marks drawn and the flags in view. */
+  onMarksPlaced: ((drawn: number, inView: number) => void) | null = null;
   private markMesh: Mesh<Geometry, Shader> | null = null;
   private retiredGeometry: Geometry[] = [];
   private highlight = new Graphics();
   private shader: Shader | null = null;
   private view: View = { cx: 0, cy: 0, scale: 1, width: 1, height: 1 };
   private pending = 0;
-  private selected: MarkFlag | null = null;
+  private selected: SelectedMark | null = null;
   private destroyed = false;
   /** Whether the drawn polygons have outlines (see OUTLINE_BUDGET). */
   outlinesShown = true;
@@ -202,8 +213,9 @@ export class ViewerScene {
     this.requestRender();
   }
 
-  setFlags(flags: MarkFlag[]): void {
-    this.marks = [...flags].sort((a, b) => markStyle(a.severity).rank - markStyle(b.severity).rank);
+  setFlags(flags: FlagColumns | null): void {
+    this.flags = flags;
+    this.flagOrder = flags ? severityOrder(flags.severity, flags.count) : null;
     this.placeOverlay();
     this.requestRender();
   }
@@ -215,35 +227,34 @@ export class ViewerScene {
     this.requestRender();
   }
 
-  setSelected(flag: MarkFlag | null): void {
-    this.selected = flag;
+  setSelected(sel: SelectedMark | null): void {
+    this.selected = sel;
     this.placeOverlay();
     this.requestRender();
   }
 
+  /** The drawn mark under screen point (sx, sy): its flag index and how many flags it stands for. */
+  hitTest(sx: number, sy: number): { index: number; merged: number } | null {
+    const t = this.thinned;
+    if (!t || !this.marksVisible) return null;
+    const k = hitThinned(t, sx, sy);
+    return k < 0 ? null : { index: t.drawn[k]!, merged: t.merged[k]! };
+  }
+
   private placeOverlay(): void {
     const v = this.view;
-    // Declutter: one mark per cell, the most severe winning; the selected flag always shows.
-    // Where hundreds are in view, coarser cells keep the map beneath readable (every flag stays in the table).
-    let inView = 0;
-    const screen: [number, number][] = this.marks.map((flag) => {
-      const p = layoutToScreen(v, flag.xUm, flag.yUm);
-      if (p[0] > -20 && p[1] > -20 && p[0] < v.width + 20 && p[1] < v.height + 20) inView++;
-      return p;
-    });
-    const cellPx = inView > 300 ? 22 : 9;
-    const taken = new Set<number>();
+    const c = this.flags;
+    // Declutter by screen cell (lib/viewer/flag-thinning.ts); the selected flag always shows.
+    const t = c && this.marksVisible ? thinMarks(v, c.xUm, c.yUm, c.severity, c.count, this.selected?.index ?? -1, this.flagOrder ?? undefined) : null;
+    this.thinned = t;
     const shown: MarkInstance[] = [];
-    for (let k = 0; k < this.marks.length; k++) {
-      const flag = this.marks[k]!;
-      const [sx, sy] = screen[k]!;
-      if (!(sx > -20 && sy > -20 && sx < v.width + 20 && sy < v.height + 20) || !this.marksVisible) continue;
-      const cell = Math.floor(sx / cellPx) * 100_003 + Math.floor(sy / cellPx);
-      if (taken.has(cell) && flag.key !== this.selected?.key) continue;
-      taken.add(cell);
-      const st = markStyle(flag.severity);
-      shown.push({ x: sx, y: sy, shape: st.shape, size: st.size, color: st.color });
+    if (t && c) {
+      for (let k = 0; k < t.drawn.length; k++) {
+        const st = markStyle(SEVERITY_CODES[c.severity[t.drawn[k]!] ?? 2] ?? 'info');
+        shown.push({ x: t.sx[k]!, y: t.sy[k]!, shape: st.shape, size: st.size, color: st.color });
+      }
     }
+    this.onMarksPlaced?.(t ? t.drawn.length : 0, t ? t.inView : 0);
     // Least severe first in the mesh, so errors are drawn on top.
     shown.reverse();
     this.setMarkMesh(shown);

@@ -42,7 +42,7 @@ export function useWhatIf(info: ViewerInfo | undefined, coverage: { values: Floa
         setStatus(`what-if failed: ${m.message}`);
       } else {
         setWhatIf((prev) => (prev ? { ...prev, depth: m.depth, margin: m.margin, risk: m.risk, flags: m.flags, ms: m.ms.total, underTarget: m.underTarget, count: m.count } : prev));
-        setStatus(`${m.count.toLocaleString('en')} openings in ${m.ms.total.toFixed(0)} ms · ${m.underTarget} under target · ${m.flags.length} opening flags`);
+        setStatus(`${m.count.toLocaleString('en')} openings in ${m.ms.total.toFixed(0)} ms (${m.threads} thread${m.threads > 1 ? 's' : ''}) · ${m.underTarget} under target · ${m.flags.length} opening flags${m.flagsLeftOut > 0 ? ` (first ${m.flags.length.toLocaleString('en')} only: ${m.flagsLeftOut.toLocaleString('en')} more flagged openings are not marked in the what-if; save it as a new analysis to see all)` : ''}`);
       }
       const next = pending.current;
       pending.current = null;
@@ -51,8 +51,21 @@ export function useWhatIf(info: ViewerInfo | undefined, coverage: { values: Floa
         w.postMessage({ type: 'run', seq: ++seq.current, params: next });
       }
     };
-    w.postMessage({ type: 'init', featuresUrl: `${base}/features.bin`, model: info.model, limits: info.limits, severities: info.severities, exposedFraction: info.exposedFraction, coverage: coverage.values, grid: coverage.grid });
-    return () => w.terminate();
+    const initMsg = { type: 'init', featuresUrl: `${base}/features.bin`, model: info.model, limits: info.limits, severities: info.severities, exposedFraction: info.exposedFraction } as const;
+    // A helper predicts half of the distinct openings in parallel (lib/viewer/whatif.ts predictUnique).
+    let helper: Worker | null = null;
+    const link = typeof MessageChannel === 'function' && (navigator.hardwareConcurrency ?? 1) > 1 ? new MessageChannel() : null;
+    if (link) {
+      helper = new Worker(new URL('./whatif.worker.ts', import.meta.url), { type: 'module' });
+      helper.postMessage({ ...initMsg, coverage: null, grid: null, role: 'helper', port: link.port2 }, [link.port2]);
+      w.postMessage({ ...initMsg, coverage: coverage.values, grid: coverage.grid, role: 'main', port: link.port1 }, [link.port1]);
+    } else {
+      w.postMessage({ ...initMsg, coverage: coverage.values, grid: coverage.grid });
+    }
+    return () => {
+      w.terminate();
+      helper?.terminate();
+    };
   }, [info, coverage, base, start]);
 
   const run = (params: WhatIfParams) => {

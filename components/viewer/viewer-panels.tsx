@@ -125,7 +125,7 @@ export function WhatIfPanel(props: { base: WhatIfParams; params: WhatIfParams; o
         </button>
       </div>
       <p className="mt-1 text-ink-500">
-        Recomputes predicted depth, depth margin, risk and the opening flags from the stored widths and effective densities. The effective density itself is not recomputed (it depends on the kernel length, not on these). Advisory only: run a new analysis to keep a result.
+        Recomputes predicted depth, depth margin, risk and the opening flags from the stored widths and effective densities. The effective density itself is not recomputed (it depends on the kernel length, not on these). Advisory only: “Save as new analysis” runs the full analysis with these values to keep a result.
       </p>
     </div>
   );

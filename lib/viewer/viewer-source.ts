@@ -1,16 +1,14 @@
 import 'server-only';
 /**
- * Server side of the canvas viewer: what it needs about a finished analysis (model, limits, layers) and a
- * per-revision cache of the flattened layout's polygon index (built once, off the request path of later views).
+ * Server side of the canvas viewer: what it needs about a finished analysis (model, limits, layers) and
+ * where its layout revision is stored (the polygon index lives on a worker thread, lib/viewer/index-host.ts).
  */
 import { eq } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { analyses, layoutRevisions } from '@/db/schema';
 import { ApiError } from '@/lib/http/errors';
 import { resolveData } from '@/lib/jobs/paths';
-import { readLayoutFile } from '@/lib/layout/read';
 import type { AnalysisSummary } from '@/lib/pipeline/summary';
-import { buildPolygonIndex, type PolygonIndex } from './polygon-index';
 
 export type ViewerInfo = {
   analysisId: string;
@@ -51,22 +49,8 @@ export function viewerInfo(db: Db, analysisId: string): ViewerInfo {
   };
 }
 
-// A few revisions at a time: an index of 1M polygons holds ~150 MB.
-const CACHE_SIZE = 2;
-const cache = new Map<string, Promise<PolygonIndex>>();
-
-/** The polygon index of the analysis's layout revision, built on first use and kept for the next views. */
-export function polygonIndexFor(db: Db, analysisId: string): Promise<PolygonIndex> {
+/** Where the analysis's layout revision is, for the polygon-index worker (lib/viewer/index-host.ts). */
+export function layoutSourceFor(db: Db, analysisId: string): { revisionId: string; path: string; topCell: string | null } {
   const { rev } = finished(db, analysisId);
-  const hit = cache.get(rev.id);
-  if (hit) {
-    cache.delete(rev.id);
-    cache.set(rev.id, hit);
-    return hit;
-  }
-  const p = readLayoutFile(resolveData(rev.storedPath), { topCell: rev.topCell }).then(buildPolygonIndex);
-  p.catch(() => cache.delete(rev.id));
-  cache.set(rev.id, p);
-  while (cache.size > CACHE_SIZE) cache.delete(cache.keys().next().value as string);
-  return p;
+  return { revisionId: rev.id, path: resolveData(rev.storedPath), topCell: rev.topCell ?? null };
 }

@@ -33,6 +33,8 @@ export interface WhatIfResult {
   marginUm: Float64Array;
   risk: Float64Array;
   flags: Flag[];
+  /** Openings that would be flagged but were left out because `maxFlags` was reached. */
+  flagsLeftOut: number;
   /** Openings predicted under target, at the what-if parameters. */
   underTarget: number;
   ms: { predictor: number; features: number; flags: number };
@@ -106,10 +108,51 @@ export function uniqueInputs(f: WireFeatures): UniqueInputs {
   return out;
 }
 
-export function runWhatIf(ctx: WhatIfContext, p: WhatIfParams, cache = new PredictorCache(), maxFlags = 5000): WhatIfResult {
+/** Predictions for the distinct inputs q0 ≤ q < q1 (see uniqueInputs) at one set of parameters. */
+export interface UniquePrediction {
+  q0: number;
+  depth: Float64Array;
+  margin: Float64Array;
+  over: Float64Array;
+  ar: Float64Array;
+  risk: Float64Array;
+  reach: Uint8Array;
+}
+
+export function predictUnique(ctx: WhatIfContext, p: WhatIfParams, cache: PredictorCache, q0: number, q1: number): UniquePrediction {
+  const { predictor } = cache.get(whatIfModel(ctx, p));
+  const u = uniqueInputs(ctx.features);
+  const len = Math.max(0, q1 - q0);
+  const out: UniquePrediction = { q0, depth: new Float64Array(len), margin: new Float64Array(len), over: new Float64Array(len), ar: new Float64Array(len), risk: new Float64Array(len), reach: new Uint8Array(len) };
+  for (let j = 0; j < len; j++) {
+    const q = q0 + j;
+    const widthUm = u.widthUm[q] as number;
+    const r = predictor({ widthUm, kind: MODEL_KIND[u.kind[q] as number] ?? 'trench', effectiveDensity: u.density[q] as number, exposedFraction: ctx.exposedFraction });
+    out.depth[j] = r.depthUm;
+    out.margin[j] = r.marginUm;
+    out.over[j] = r.overEtchUm;
+    out.ar[j] = r.aspectRatio;
+    out.reach[j] = r.reachesTarget ? 1 : 0;
+    out.risk[j] = featureRisk({ depthUm: r.depthUm, overEtchUm: r.overEtchUm, widthUm }, ctx.limits);
+  }
+  return out;
+}
+
+/** Where a second thread should start on the distinct inputs (half of them), or null when too few to split. */
+export function splitPoint(f: WireFeatures, minDistinct = 256): number | null {
+  const m = uniqueInputs(f).kind.length;
+  return m >= minDistinct ? Math.floor(m / 2) : null;
+}
+
+/**
+ * Depth, margin, risk and opening flags at the what-if parameters. `tail`, when given, holds the predictions of
+ * the distinct inputs from tail.q0 on, made by another thread; this thread predicts the rest (or takes `headDone`,
+ * the same for the inputs before tail.q0, when it was predicted while waiting for the tail).
+ */
+export function runWhatIf(ctx: WhatIfContext, p: WhatIfParams, cache = new PredictorCache(), maxFlags = 5000, tail?: UniquePrediction, headDone?: UniquePrediction): WhatIfResult {
   const t0 = performance.now();
   const model = whatIfModel(ctx, p);
-  const { predictor } = cache.get(model);
+  cache.get(model);
   const t1 = performance.now();
   const f = ctx.features;
   const n = f.count;
@@ -119,24 +162,28 @@ export function runWhatIf(ctx: WhatIfContext, p: WhatIfParams, cache = new Predi
   const range = calibratedRangeOf(model);
   const flags: Flag[] = [];
   let underTarget = 0;
+  let flagsLeftOut = 0;
   let flagMs = 0;
   const u = uniqueInputs(f);
   const m = u.kind.length;
-  const uDepth = new Float64Array(m);
-  const uMargin = new Float64Array(m);
-  const uOver = new Float64Array(m);
-  const uAr = new Float64Array(m);
-  const uRisk = new Float64Array(m);
-  const uReach = new Uint8Array(m);
-  for (let q = 0; q < m; q++) {
-    const widthUm = u.widthUm[q] as number;
-    const r = predictor({ widthUm, kind: MODEL_KIND[u.kind[q] as number] ?? 'trench', effectiveDensity: u.density[q] as number, exposedFraction: ctx.exposedFraction });
-    uDepth[q] = r.depthUm;
-    uMargin[q] = r.marginUm;
-    uOver[q] = r.overEtchUm;
-    uAr[q] = r.aspectRatio;
-    uReach[q] = r.reachesTarget ? 1 : 0;
-    uRisk[q] = featureRisk({ depthUm: r.depthUm, overEtchUm: r.overEtchUm, widthUm }, ctx.limits);
+  const split = tail && tail.q0 <= m && tail.q0 + tail.depth.length === m ? tail.q0 : m;
+  const head = headDone && headDone.q0 === 0 && headDone.depth.length === split ? headDone : predictUnique(ctx, p, cache, 0, split);
+  const join = <K extends 'depth' | 'margin' | 'over' | 'ar' | 'risk'>(key: K): Float64Array => {
+    if (split === m) return head[key];
+    const a = new Float64Array(m);
+    a.set(head[key], 0);
+    a.set(tail![key], split);
+    return a;
+  };
+  const uDepth = join('depth');
+  const uMargin = join('margin');
+  const uOver = join('over');
+  const uAr = join('ar');
+  const uRisk = join('risk');
+  const uReach = split === m ? head.reach : new Uint8Array(m);
+  if (split !== m) {
+    uReach.set(head.reach, 0);
+    uReach.set(tail!.reach, split);
   }
   for (let k = 0; k < n; k++) {
     const q = u.of[k] as number;
@@ -145,7 +192,9 @@ export function runWhatIf(ctx: WhatIfContext, p: WhatIfParams, cache = new Predi
     risk[k] = uRisk[q] as number;
     if (!uReach[q]) underTarget++;
     // Every feature rule is one of the risk terms crossing 1 (or a calibration excursion), so the rest pass.
-    if ((risk[k]! >= 1 || range) && flags.length < maxFlags) {
+    if ((risk[k]! >= 1 || range) && flags.length >= maxFlags) {
+      if (risk[k]! >= 1) flagsLeftOut++;
+    } else if (risk[k]! >= 1 || range) {
       const s = performance.now();
       const kind = MODEL_KIND[f.modelKind[k] as number] ?? 'trench';
       const widthUm = f.widthUm[k] as number;
@@ -169,7 +218,7 @@ export function runWhatIf(ctx: WhatIfContext, p: WhatIfParams, cache = new Predi
     }
   }
   const t2 = performance.now();
-  return { depthUm, marginUm, risk, flags, underTarget, ms: { predictor: t1 - t0, features: t2 - t1 - flagMs, flags: flagMs } };
+  return { depthUm, marginUm, risk, flags, flagsLeftOut, underTarget, ms: { predictor: t1 - t0, features: t2 - t1 - flagMs, flags: flagMs } };
 }
 
 /**

@@ -1,11 +1,14 @@
 // The canvas viewer in headless Chromium (WebGL through SwiftShader) on the seeded demo analysis.
+import { randomUUID } from 'node:crypto';
 import { readFileSync } from 'node:fs';
+import Database from 'better-sqlite3';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PASSWORD_DEFAULT } from '@/lib/data/demo';
 import { decodeGrid } from '@/lib/pipeline/grid-file';
 import { finiteRange } from '@/lib/viewer/color-scale';
 import { decodeFeatures } from '@/lib/viewer/feature-wire';
+import { decodeFlags, flagAt } from '@/lib/viewer/flag-wire';
 import { decodePolygons } from '@/lib/viewer/polygon-wire';
 import { layoutToScreen, type View } from '@/lib/viewer/view-transform';
 import { CHROMIUM_PATH, launchBrowser, screenshot } from '../support/browser';
@@ -225,4 +228,110 @@ describe('canvas viewer in Chromium', () => {
       await noGl.close();
     }
   });
+
+  it('a what-if saved as a new analysis queues the same revision and settings with the derived model', async () => {
+    await page.goto(`${server.baseUrl}/analyses/${analysisId}?view=flat`);
+    await page.waitForSelector('[data-testid=canvas-viewer][data-ready=yes]', { timeout: 60_000 });
+    await page.waitForFunction(() => /openings loaded/.test(document.querySelector('[data-testid=whatif-status]')?.textContent ?? ''), null, { timeout: 60_000 });
+    const slider = page.getByTestId('whatif-timeMin');
+    const max = Number(await slider.getAttribute('max'));
+    const min = Number(await slider.getAttribute('min'));
+    await slider.fill(String(min + 0.8 * (max - min)));
+    await page.waitForSelector('[data-testid=whatif-banner]');
+    // The recomputation ran split over the worker and its helper (the demo has more than 256 distinct openings).
+    await page.waitForFunction(() => /in \d+ ms \(2 threads\)/.test(document.querySelector('[data-testid=whatif-status]')?.textContent ?? ''), null, { timeout: 30_000 });
+    const wanted = Number(await slider.inputValue());
+    await page.getByTestId('whatif-save-button').click();
+    const saved = page.getByTestId('whatif-saved');
+    await saved.waitFor({ timeout: 20_000 });
+    await screenshot(page, 'viewer-whatif-saved');
+    const newId = (await saved.getAttribute('data-analysis-id'))!;
+    expect(newId).not.toBe(analysisId);
+    expect(await saved.textContent()).toContain('etch.timeMin');
+    const db = new Database(server.dbFile, { readonly: true });
+    try {
+      const row = (id: string) => db.prepare('select revision_id as rev, settings, model, model_version as version from analyses where id = ?').get(id) as { rev: string; settings: string; model: string; version: string };
+      const before = row(analysisId);
+      const after = row(newId);
+      expect(after.rev).toBe(before.rev);
+      expect(JSON.parse(after.settings)).toEqual(JSON.parse(before.settings));
+      const m0 = JSON.parse(before.model) as { etch: { timeMin: number }; openRateUmPerMin: number };
+      const m1 = JSON.parse(after.model) as { etch: { timeMin: number }; openRateUmPerMin: number; description: string };
+      expect(m1.etch.timeMin).toBeCloseTo(wanted, 9);
+      expect(m1.etch.timeMin).not.toBeCloseTo(m0.etch.timeMin, 6);
+      expect(m1.openRateUmPerMin).toBe(m0.openRateUmPerMin);
+      expect(after.version).toBe(`${before.version}+what-if`);
+      expect(m1.description).toContain(`version ${before.version} (analysis ${analysisId})`);
+      expect(m1.description).toContain('etch.timeMin');
+    } finally {
+      db.close();
+    }
+  }, 120_000);
+
+  // Runs last: it adds flags to the analysis, beyond the JSON flags API's page of 5,000.
+  it('every flag reaches the canvas (> 5,000): flags.bin serves all, a far-down flag is drawn when zoomed to and selects on click', async () => {
+    const info = (await (await page.request.get(`${server.baseUrl}/api/v1/analyses/${analysisId}/viewer`)).json()) as { dieBboxUm: [number, number, number, number] };
+    const [bx0, by0, bx1, by1] = info.dieBboxUm;
+    const db = new Database(server.dbFile);
+    const extra = 7000;
+    try {
+      const rank0 = (db.prepare('select coalesce(max(rank), -1) + 1 as r from analysis_flags where analysis_id = ?').get(analysisId) as { r: number }).r;
+      const ins = db.prepare(`insert into analysis_flags (id, analysis_id, flag_key, rank, kind, severity, x0_um, y0_um, x1_um, y1_um, x_um, y_um, measured, limit_value, unit, message)
+        values (?, ?, ?, ?, 'window-density-high', 'info', ?, ?, ?, ?, ?, ?, 0.9, 0.8, 'fraction', ?)`);
+      db.transaction(() => {
+        for (let k = 0; k < extra; k++) {
+          // A 100 × 70 lattice over the die, 1 µm boxes.
+          const x = bx0 + ((k % 100) + 0.5) * ((bx1 - bx0) / 100);
+          const y = by0 + (Math.floor(k / 100) + 0.5) * ((by1 - by0) / 70);
+          ins.run(randomUUID(), analysisId, `test-extra:${k}`, rank0 + k, x - 0.5, y - 0.5, x + 0.5, y + 0.5, x, y, `synthetic test flag ${k}`);
+        }
+      })();
+    } finally {
+      db.close();
+    }
+    const json = (await (await page.request.get(`${server.baseUrl}/api/v1/analyses/${analysisId}/flags?limit=1`)).json()) as { total: number };
+    expect(json.total).toBeGreaterThan(5000);
+    const bin = await page.request.get(`${server.baseUrl}/api/v1/analyses/${analysisId}/flags.bin`);
+    expect(bin.headers()['content-type']).toBe('application/vnd.trenchant.flags');
+    const cols = decodeFlags(new Uint8Array(await bin.body()));
+    expect(cols.count).toBe(json.total);
+    const last = flagAt(cols, cols.count - 1);
+    expect(last.key).toBe(`test-extra:${extra - 1}`);
+
+    // A fresh context (flags.bin is cached as immutable) with the bench hook to set the view.
+    const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    try {
+      await ctx.addCookies(await page.context().cookies());
+      const p = await ctx.newPage();
+      await p.goto(`${server.baseUrl}/analyses/${analysisId}?view=flat&bench=1`);
+      await p.waitForSelector('[data-testid=canvas-viewer][data-ready=yes]', { timeout: 60_000 });
+      await p.waitForFunction((n) => document.querySelector('[data-testid=mark-count]')?.getAttribute('data-total') === String(n), cols.count, { timeout: 30_000 });
+      // At fit, the marks are thinned: fewer drawn than in view, and the panel says so.
+      const fitCount = p.getByTestId('mark-count');
+      expect(Number(await fitCount.getAttribute('data-in-view'))).toBeGreaterThan(5000);
+      expect(Number(await fitCount.getAttribute('data-drawn'))).toBeLessThan(Number(await fitCount.getAttribute('data-in-view')));
+      // Zoom to the last-ranked flag: it gets its own mark; hovering explains it, clicking selects it.
+      await p.waitForFunction(() => Boolean((window as unknown as { __trenchantViewer?: unknown }).__trenchantViewer));
+      const v0 = await viewOf(p);
+      await p.evaluate(([x, y, w, h]) => (window as unknown as { __trenchantViewer: { applyView: (v: View) => void } }).__trenchantViewer.applyView({ cx: x!, cy: y!, scale: 20, width: w!, height: h! }), [last.xUm, last.yUm, v0.width, v0.height]);
+      await p.waitForTimeout(300);
+      const v = await viewOf(p);
+      const [sx, sy] = layoutToScreen(v, last.xUm, last.yUm);
+      // The page above the map may still grow while it loads (moving the map): hover again until the tooltip shows.
+      let host = await p.getByTestId('viewer-host').boundingBox();
+      for (let attempt = 0; attempt < 10; attempt++) {
+        await p.getByTestId('viewer-host').scrollIntoViewIfNeeded();
+        host = await p.getByTestId('viewer-host').boundingBox();
+        await p.mouse.move(host!.x + sx + 1 + (attempt % 2), host!.y + sy + 1);
+        if (await p.waitForSelector('[data-testid=flag-tooltip]', { timeout: 1500 }).then(() => true, () => false)) break;
+      }
+      await p.waitForSelector('[data-testid=flag-tooltip]', { timeout: 1000 });
+      await p.waitForFunction((k) => document.querySelector('[data-testid=flag-tooltip]')?.textContent?.includes(`synthetic test flag ${k}`), extra - 1, { timeout: 10_000 });
+      await screenshot(p, 'viewer-many-flags-zoomed');
+      await p.mouse.click(host!.x + sx + 1, host!.y + sy + 1);
+      await p.waitForFunction((k) => document.querySelector('[data-testid=canvas-viewer]')?.getAttribute('data-selected') === k, last.key, { timeout: 10_000 });
+    } finally {
+      await ctx.close();
+    }
+  }, 120_000);
 });

@@ -1,22 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { hitMark, markStyle, type MarkFlag } from '@/components/viewer/flag-marks';
+import { markStyle } from '@/components/viewer/flag-marks';
 import { sampleAt } from '@/lib/viewer/map-kinds';
-import { layoutToScreen } from '@/lib/viewer/view-transform';
-
-const flag = (key: string, severity: MarkFlag['severity'], x: number, y: number): MarkFlag => ({ id: key, key, kind: 'k', severity, xUm: x, yUm: y, bboxUm: [x, y, x, y], message: '', measured: 0, limit: 0, unit: '' });
 
 describe('flag marks', () => {
   it('differ in shape as well as colour by severity (readable without colour)', () => {
     const shapes = new Set((['error', 'warning', 'info'] as const).map((s) => markStyle(s).shape));
     expect(shapes.size).toBe(3);
-  });
-  it('hit test picks the nearest mark within the radius, the more severe one on a tie', () => {
-    const v = { cx: 0, cy: 0, scale: 1, width: 200, height: 200 };
-    const toScreen = (x: number, y: number) => layoutToScreen(v, x, y);
-    const marks = [flag('w', 'warning', 5, 0), flag('e', 'error', 5, 0), flag('far', 'error', 50, 0)];
-    expect(hitMark(marks, toScreen, 100 + 5, 100)?.key).toBe('e');
-    expect(hitMark(marks, toScreen, 100 + 30, 100)).toBeNull();
-    expect(hitMark(marks, toScreen, 100 + 48, 100 + 3)?.key).toBe('far');
   });
 });
 

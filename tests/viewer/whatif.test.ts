@@ -4,7 +4,7 @@
 import { describe, expect, it } from 'vitest';
 import { predictFeature } from '@/lib/etch/predict';
 import { decodeFeatures, encodeFeatures } from '@/lib/viewer/feature-wire';
-import { ownerMap, paramsOf, PredictorCache, runWhatIf, spread, whatIfModel } from '@/lib/viewer/whatif';
+import { ownerMap, paramsOf, predictUnique, PredictorCache, runWhatIf, splitPoint, spread, uniqueInputs, whatIfModel } from '@/lib/viewer/whatif';
 import { testModel } from '../etch/helpers';
 
 const model = testModel({ loading: { coefficient: 0.5, lengthUm: 500 } });
@@ -57,6 +57,30 @@ describe('what-if recomputation', () => {
     expect(under(b)).toBeLessThanOrEqual(under(a));
   });
 
+  it('split over two threads (tail of the distinct inputs predicted elsewhere) gives the same result', () => {
+    const p = { ...paramsOf(model), timeMin: paramsOf(model).timeMin * 1.3 };
+    const one = runWhatIf(ctx, p, new PredictorCache());
+    const m = uniqueInputs(f).kind.length;
+    const q0 = splitPoint(f, 10) ?? 0;
+    expect(q0).toBe(Math.floor(m / 2));
+    const two = runWhatIf(ctx, p, new PredictorCache(), 5000, predictUnique(ctx, p, new PredictorCache(), q0, m));
+    expect([...two.depthUm]).toEqual([...one.depthUm]);
+    expect([...two.risk]).toEqual([...one.risk]);
+    expect(two.flags.map((x) => x.id)).toEqual(one.flags.map((x) => x.id));
+    // A tail that does not end at the last distinct input is ignored (predicted here instead).
+    const bad = runWhatIf(ctx, p, new PredictorCache(), 5000, predictUnique(ctx, p, new PredictorCache(), q0, m - 1));
+    expect([...bad.depthUm]).toEqual([...one.depthUm]);
+  });
+  it('counts the flagged openings left out when the flag cap is reached', () => {
+    const p = { ...paramsOf(model), timeMin: paramsOf(model).timeMin * 0.5 };
+    const full = runWhatIf(ctx, p, new PredictorCache());
+    const atRisk = [...full.risk].filter((r) => r >= 1).length;
+    expect(atRisk).toBeGreaterThan(2);
+    expect(full.flagsLeftOut).toBe(0);
+    const capped = runWhatIf(ctx, p, new PredictorCache(), 1);
+    expect(capped.flagsLeftOut).toBeGreaterThan(0);
+    expect(capped.flagsLeftOut).toBeLessThan(atRisk);
+  });
   it('spreads per-opening values onto the grid through the pipeline painter', () => {
     const grid = { x0Um: 0, y0Um: 0, pixelUm: 1, nx: 40, ny: 3 };
     const coverage = new Float32Array(120).fill(1);

@@ -1,4 +1,5 @@
 import { arrayOf, bool, int, num, object, operation, queryParam, str } from './build';
+import { whatIfSaveBody } from '@/lib/viewer/whatif-save';
 import type { JsonSchema, PathItemObject } from './types';
 
 const analysisId = { analysisId: 'Analysis id.' };
@@ -46,6 +47,42 @@ export const VIEWER_PATHS: Record<string, PathItemObject> = {
         304: { description: 'Not modified.' },
       },
       errors: [409],
+    }),
+  },
+  '/analyses/{analysisId}/flags.bin': {
+    get: operation('get', {
+      id: 'getFlagColumns',
+      tag: 'Analyses',
+      summary: 'Every flag of a finished analysis as compact binary columns (TRFLAG1), worst first',
+      access: 'session-or-token',
+      permission: 'project.read',
+      path: analysisId,
+      ok: {
+        200: { description: 'TRFLAG1 columns.', contentType: 'application/vnd.trenchant.flags', schema: { type: 'string', contentMediaType: 'application/vnd.trenchant.flags' } },
+        304: { description: 'Not modified.' },
+      },
+      errors: [409],
+    }),
+  },
+  '/analyses/{analysisId}/what-if': {
+    post: operation('post', {
+      id: 'saveWhatIf',
+      tag: 'Analyses',
+      summary: 'Save a viewer what-if as a new analysis',
+      description:
+        'Queues a new analysis of the same revision with the stored settings and the analysis\'s process model with the given etch time, open-field rate, reaction probability and microloading coefficient. The model is recorded as derived: version "<original>+what-if", description naming the original model version and every changed parameter. 400 when nothing changed.',
+      access: 'session-or-token',
+      permission: 'analysis.create',
+      path: analysisId,
+      body: whatIfSaveBody,
+      ok: {
+        202: {
+          description: 'Queued.',
+          headers: { location: { description: 'URL of the new analysis', schema: str() } },
+          schema: object({ analysis: object({ id: str(), status: str(), url: str(), modelVersion: str() }), changes: arrayOf(object({ path: str(), from: num(), to: num(), unit: str() })) }),
+        },
+      },
+      errors: [409, 422],
     }),
   },
   '/analyses/{analysisId}/polygons': {

@@ -3,9 +3,9 @@ import { getDb } from '@/db/client';
 import { idParam } from '@/lib/data/schemas';
 import { toErrorResponse } from '@/lib/http/errors';
 import { requireAnalysisAccess } from '@/lib/jobs/access';
-import { queryPolygons } from '@/lib/viewer/polygon-index';
+import { queryPolygonsOffThread } from '@/lib/viewer/index-host';
 import { encodePolygons } from '@/lib/viewer/polygon-wire';
-import { polygonIndexFor } from '@/lib/viewer/viewer-source';
+import { layoutSourceFor } from '@/lib/viewer/viewer-source';
 
 export const runtime = 'nodejs';
 export const dynamic = 'force-dynamic';
@@ -26,8 +26,9 @@ export async function GET(request: Request, ctx: { params: Promise<{ analysisId:
     const analysisId = idParam.parse((await ctx.params).analysisId);
     const q = query.parse(Object.fromEntries(new URL(request.url).searchParams));
     await requireAnalysisAccess(request, analysisId, 'project.read');
-    const index = await polygonIndexFor(getDb(), analysisId);
-    const body = encodePolygons(queryPolygons(index, q.box, q.max));
+    // The index is built and queried on a worker thread; this request waits without blocking others.
+    const { polygons } = await queryPolygonsOffThread({ ...layoutSourceFor(getDb(), analysisId), box: q.box, max: q.max });
+    const body = encodePolygons(polygons);
     return new Response(body as unknown as BodyInit, { headers: { 'content-type': 'application/vnd.trenchant.polygons', 'cache-control': 'private, max-age=3600', 'content-length': String(body.byteLength) } });
   } catch (error) {
     return toErrorResponse(error);
