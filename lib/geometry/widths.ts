@@ -15,11 +15,13 @@
  * Method: the feature is sampled on a node lattice (lattice.ts), D by the exact Euclidean distance transform to
  * the nearest non-interior node, T by painting the maximal disks. For Manhattan features whose vertices lie on
  * a lattice of spacing g/2 (g = gcd of the vertex offsets) every nearest boundary point is a node, so D is exact
- * and so are the widths (widthExact). Otherwise the step is 1/150 of the mean width 2·area/perimeter and D
- * overestimates the true distance by at most step·√2/2 (widths high by ≤ 1.0 % of a trench width, ≤ 0.5 % of a
- * hole diameter). A node counts as self-centred when no node with a strictly larger disk covers it, so lattice
- * noise can only raise minWidth (by ≤ step·√2). Very acute spikes (a few degrees) bottom out at 2 steps. (before the node cap on very large features, which coarsens the step and is reported
- * in widthStepUm). Axis-aligned rectangles are computed analytically.
+ * and so are the widths (widthExact). Otherwise the step is 1/5 of the mean width 2·area/perimeter (stepsPerWidth),
+ * coarser when the node cap (maxNodes) demands it, and reported in widthStepUm. Lattice D overestimates the true
+ * distance by up to step·√2/2, so the narrowest self-centred node and the best largest-disk nodes are refined by
+ * pattern search on the exact distance to the edges (polishLocal, refineLargestDisk); the tests hold a curved non-convex
+ * shape (an annulus) to 2 % of its analytic width. A node counts as self-centred when no node with a strictly larger disk
+ * covers it, so lattice noise can only raise minWidth. Axis-aligned rectangles, convex shapes and polygonised
+ * circles are computed analytically.
  *
  * Cost: the lattice path is ~0.1–0.3 ms per feature (a few thousand nodes). The exact-distance pattern searches
  * reject most probes after one edge test (`distanceAbove`), and with a `WidthCache` congruent copies under
