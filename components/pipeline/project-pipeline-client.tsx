@@ -21,6 +21,7 @@ type Revision = {
   polygonCount: number;
   sha256: string;
   note: string;
+  readWarnings: string[];
   analysisCount: number;
 };
 type Layout = { id: string; name: string; revisions: Revision[] };
@@ -86,6 +87,18 @@ export function ProjectPipelineClient({ projectId, canUpload, canAnalyse }: { pr
                         <span className="ml-2 font-mono text-xs text-ink-500">
                           {r.format} · {formatBytes(r.sizeBytes)} · {r.polygonCount.toLocaleString('en')} polygons
                         </span>
+                        {r.readWarnings.length > 0 ? (
+                          <details className="mt-0.5 text-xs text-warn" data-testid="revision-read-warnings">
+                            <summary className="cursor-pointer">
+                              {r.readWarnings.length} repair{r.readWarnings.length === 1 ? '' : 's'} while reading — check the drawing
+                            </summary>
+                            <ul className="mt-1 list-disc pl-5 font-mono text-[11px] text-ink-700">
+                              {r.readWarnings.map((w) => (
+                                <li key={w}>{w}</li>
+                              ))}
+                            </ul>
+                          </details>
+                        ) : null}
                         {r.note ? (
                           <p className="mt-0.5 text-xs text-ink-600 italic" data-testid="revision-note">
                             {r.note}

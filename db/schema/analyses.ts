@@ -59,6 +59,8 @@ export const layoutRevisions = sqliteTable(
     bboxDbu: text('bbox_dbu', { mode: 'json' }).$type<[number, number, number, number] | null>(),
     polygonCount: integer('polygon_count').notNull(),
     note: text('note').notNull().default(''),
+    /** What the reader repaired when checking the upload (unclosed boundaries, ...), each with its byte offset. */
+    readWarnings: text('read_warnings', { mode: 'json' }).$type<string[]>().notNull().default([]),
   },
   (t) => [uniqueIndex('layout_revisions_layout_rev_idx').on(t.layoutId, t.revision)],
 );

@@ -34,6 +34,8 @@ export type UploadCheckResult =
       bboxDbu: [number, number, number, number] | null;
       polygonCount: number;
       pointCount: number;
+      /** What the reader repaired (e.g. an unclosed BOUNDARY), each naming its byte offset; kept with the revision. */
+      warnings: string[];
     }
   | { ok: false; code: 'over-limit'; limit: LimitName; limitValue: number; count: number; atLeast: boolean; message: string }
   | { ok: false; code: 'unreadable'; message: string };
@@ -64,6 +66,7 @@ function describe(layout: FlatLayout): Extract<UploadCheckResult, { ok: true }> 
     bboxDbu: layout.bboxDbu ? ([...layout.bboxDbu] as [number, number, number, number]) : null,
     polygonCount: layers.reduce((n, l) => n + l.polygons, 0),
     pointCount: layers.reduce((n, l) => n + l.points, 0),
+    warnings: (layout.warnings ?? []).map((w) => w.message),
   };
 }
 

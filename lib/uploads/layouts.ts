@@ -63,6 +63,8 @@ export type RevisionView = {
   bboxUm: [number, number, number, number] | null;
   polygonCount: number;
   note: string;
+  /** What the reader repaired (e.g. an unclosed BOUNDARY closed), each naming its byte offset. */
+  readWarnings: string[];
 };
 
 function toRevisionView(r: LayoutRevisionRow, layout: { id: string; name: string; projectId: string }, userName: string | null): RevisionView {
@@ -85,6 +87,7 @@ function toRevisionView(r: LayoutRevisionRow, layout: { id: string; name: string
     bboxUm: r.bboxDbu ? (r.bboxDbu.map((v) => v * r.dbuUm) as [number, number, number, number]) : null,
     polygonCount: r.polygonCount,
     note: r.note,
+    readWarnings: r.readWarnings,
   };
 }
 
@@ -160,6 +163,7 @@ export async function storeLayoutUpload(db: Db, input: { projectId: string; user
         bboxDbu: checked.bboxDbu,
         polygonCount: checked.polygonCount,
         note: parsed.data.note ?? '',
+        readWarnings: checked.warnings,
       };
       tx.insert(layoutRevisions).values(rev).run();
       return rev;

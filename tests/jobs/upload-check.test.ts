@@ -102,3 +102,28 @@ describe('upload check limits', () => {
     expect(await checkLayoutChunks(chunks(new Uint8Array(0)), LIMITS)).toMatchObject({ ok: false, code: 'unreadable', message: expect.stringContaining('empty') });
   });
 });
+
+describe('upload check repairs', () => {
+  it('an unclosed BOUNDARY is closed and the repair, with its byte offset, travels with the check result', async () => {
+    // GDSII XY of a BOUNDARY must repeat its first point last (GDSII Stream Format Manual, release 6.0, XY record).
+    const { GdsiiWriter } = await import('@/lib/layout/gdsii-writer');
+    const { DataType, Rec } = await import('@/lib/layout/gdsii-records');
+    const w = new GdsiiWriter().beginCell('TOP');
+    w.rect(1, 0, 0, 0, 1000, 1000);
+    w.record(Rec.BOUNDARY, DataType.none);
+    w.int16Record(Rec.LAYER, [1]);
+    w.int16Record(Rec.DATATYPE, [0]);
+    w.int32Record(Rec.XY, [5000, 0, 7000, 0, 7000, 4000, 5000, 4000]); // four points, not closed
+    w.record(Rec.ENDEL, DataType.none);
+    const bytes = w.endCell().finish();
+    const r = await checkLayoutChunks(chunks(bytes), LIMITS);
+    if (!r.ok) throw new Error(r.message);
+    expect(r.polygonCount).toBe(2);
+    expect(r.warnings).toHaveLength(1);
+    expect(r.warnings[0]).toMatch(/unclosed|not closed/i);
+    expect(r.warnings[0]).toMatch(/byte|offset/i);
+    const closed = await checkLayoutChunks(chunks(new GdsiiWriter().beginCell('TOP').rect(1, 0, 0, 0, 1000, 1000).endCell().finish()), LIMITS);
+    if (!closed.ok) throw new Error(closed.message);
+    expect(closed.warnings).toEqual([]);
+  });
+});

@@ -188,6 +188,23 @@ describe('bad input is refused clearly and leaves nothing behind', () => {
       expect((await waitFor(designer, ok, ['done', 'failed'])).status).toBe('done');
     });
   });
+
+  it('an unclosed BOUNDARY is accepted closed, and the repair with its byte offset is kept with the revision', async () => {
+    // GDSII Stream Format Manual, release 6.0 (XY record): a BOUNDARY's last point repeats its first.
+    const { GdsiiWriter } = await import('@/lib/layout/gdsii-writer');
+    const { DataType, Rec } = await import('@/lib/layout/gdsii-records');
+    const w = new GdsiiWriter().beginCell('TOP');
+    w.rect(1, 0, 0, 0, 1000, 1000);
+    w.record(Rec.BOUNDARY, DataType.none).int16Record(Rec.LAYER, [1]).int16Record(Rec.DATATYPE, [0]);
+    w.int32Record(Rec.XY, [5000, 0, 7000, 0, 7000, 4000, 5000, 4000]).record(Rec.ENDEL, DataType.none);
+    const res = await upload(designer, uploadUrl, w.endCell().finish(), 'open-boundary.gds', { name: 'Open boundary' });
+    expect(res.status).toBe(201);
+    const body = await json<{ revision: { id: string; readWarnings: string[] } }>(res);
+    expect(body.revision.readWarnings).toHaveLength(1);
+    expect(body.revision.readWarnings[0]).toMatch(/byte \d+/i);
+    const list = await json<{ layouts: { name: string; revisions: { readWarnings: string[] }[] }[] }>(await designer.get(uploadUrl));
+    expect(list.layouts.find((l) => l.name === 'Open boundary')?.revisions[0]?.readWarnings).toEqual(body.revision.readWarnings);
+  });
 });
 
 function cookieOf(client: TestClient): string {

@@ -37,6 +37,7 @@ export const PIPELINE_SCHEMAS: Record<string, JsonSchema> = {
     bboxUm: nullable(bbox('Bounding box over all layers, µm [x0, y0, x1, y1]')),
     polygonCount: int(),
     note: str(),
+    readWarnings: arrayOf(str('What the reader repaired, e.g. an unclosed BOUNDARY closed; names the byte offset')),
   }),
   Layout: object({
     id: str(),

@@ -1,0 +1,1 @@
+ALTER TABLE `layout_revisions` ADD `read_warnings` text DEFAULT '[]' NOT NULL;
