@@ -235,7 +235,8 @@ describe('review in the browser with two roles', () => {
     expect(added).not.toMatch(/width-below-minimum/);
     expect(unchanged).not.toMatch(/width-below-minimum/);
     await page.click('[data-testid=carry-waivers]');
-    await page.locator('text=/waivers? carried over/').waitFor();
+    await page.locator('[data-testid=carried-notice]').waitFor();
+    expect(await page.textContent('[data-testid=carried-notice]')).toMatch(/^\d+ waivers? carried over/);
     await screenshot(page, 'review-compare');
 
     await page.goto(`${server.baseUrl}/analyses/${second}?view=flat&status=waived`);

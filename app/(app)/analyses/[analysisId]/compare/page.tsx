@@ -101,6 +101,11 @@ export default async function ComparePage({ params, searchParams }: { params: Pr
               </Card>
             ))}
           </div>
+          {/^\d+$/.test(sp.carried ?? '') ? (
+            <p className="mb-4 rounded-md border border-pass/30 bg-pass/5 px-3 py-2 text-sm text-ink-800" role="status" data-testid="carried-notice">
+              {sp.carried} waiver{sp.carried === '1' ? '' : 's'} carried over; each notes the analysis it came from.
+            </p>
+          ) : null}
           {result.carriable > 0 && can(role, 'flag.waive') && !signoffOf(db, analysisId) ? (
             <Card className="mb-6 flex flex-wrap items-center justify-between gap-3 p-5">
               <p className="text-sm">
