@@ -1,4 +1,5 @@
 import { mulberry32 } from '../lib/random';
+import { GdsiiWriter } from '../lib/layout/gdsii-writer';
 
 /**
  * Seeded synthetic etch layer for the geometry benchmark (mirrored exactly by bench/gdspy_density.py):
@@ -46,4 +47,30 @@ export function benchLayout(sites = 1000, seed = 4242) {
     }
   }
   return { coords: Float64Array.from(coords), offsets: Uint32Array.from(offsets), count: offsets.length - 1, layer: 1, datatype: 0 };
+}
+
+/** The invented process model the end-to-end benches analyse with (continuous, neutral-limited). */
+export const BENCH_MODEL = {
+  name: 'bench model (invented)',
+  version: 'bench-1',
+  openRateUmPerMin: 3,
+  reactionProbability: 0.2,
+  loading: { coefficient: 0.3, lengthUm: 800 },
+  etch: { timeMin: 10, targetDepthUm: 25, toleranceUm: 1.5, maxAspectRatio: 30 },
+  mode: 'continuous',
+};
+
+/** benchLayout() written flat as GDSII, with a 10 mm die outline on layer 0/0. */
+export function benchLayoutGds(libraryName: string): { bytes: Uint8Array; polygons: number } {
+  const set = benchLayout();
+  const w = new GdsiiWriter({ libraryName, dbuUm: 0.001 });
+  w.beginCell('TOP');
+  w.rect(0, 0, 0, 0, 10_000_000, 10_000_000);
+  for (let p = 0; p < set.count; p++) {
+    const a = set.offsets[p] as number;
+    const b = set.offsets[p + 1] as number;
+    w.boundary(set.layer, set.datatype, set.coords.subarray(2 * a, 2 * b));
+  }
+  w.endCell();
+  return { bytes: w.finish(), polygons: set.count + 1 };
 }

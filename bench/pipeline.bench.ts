@@ -7,39 +7,14 @@
  * Run: npm run bench, or npx tsx bench/pipeline.bench.ts
  */
 import { pathToFileURL } from 'node:url';
-import { GdsiiWriter } from '../lib/layout/gdsii-writer';
 import { DEMO_PASSWORD_DEFAULT } from '../lib/data/demo';
 import { signIn } from '../tests/support/http';
 import { startTestServer } from '../tests/support/server';
-import { benchLayout } from './geometry-layout';
-
-const MODEL = {
-  name: 'bench model (invented)',
-  version: 'bench-1',
-  openRateUmPerMin: 3,
-  reactionProbability: 0.2,
-  loading: { coefficient: 0.3, lengthUm: 800 },
-  etch: { timeMin: 10, targetDepthUm: 25, toleranceUm: 1.5, maxAspectRatio: 30 },
-  mode: 'continuous',
-};
-
-function layoutGds(): { bytes: Uint8Array; polygons: number } {
-  const set = benchLayout();
-  const w = new GdsiiWriter({ libraryName: 'BENCH1M', dbuUm: 0.001 });
-  w.beginCell('TOP');
-  w.rect(0, 0, 0, 0, 10_000_000, 10_000_000);
-  for (let p = 0; p < set.count; p++) {
-    const a = set.offsets[p] as number;
-    const b = set.offsets[p + 1] as number;
-    w.boundary(set.layer, set.datatype, set.coords.subarray(2 * a, 2 * b));
-  }
-  w.endCell();
-  return { bytes: w.finish(), polygons: set.count + 1 };
-}
+import { BENCH_MODEL, benchLayoutGds } from './geometry-layout';
 
 export default async function pipelineBench(): Promise<void> {
   const t = performance.now();
-  const { bytes, polygons } = layoutGds();
+  const { bytes, polygons } = benchLayoutGds('BENCH1M');
   const genMs = performance.now() - t;
   const server = await startTestServer({ env: { TRENCHANT_JOB_CONCURRENCY: '1' }, readyTimeoutMs: 600_000 });
   try {
@@ -64,7 +39,7 @@ export default async function pipelineBench(): Promise<void> {
     const created = await client.post('/api/v1/projects/demo-kestrel/analyses', {
       revisionId: revision.id,
       settings: { etchLayers: [{ layer: 1, datatype: 0 }], densityWindows: [{ windowUm: 100, stepUm: 50 }, { windowUm: 700, stepUm: 70 }], limits: { minDensity: 0.05, maxDensity: 0.5, minWidthUm: 1 } },
-      model: MODEL,
+      model: BENCH_MODEL,
     });
     if (created.status !== 202) throw new Error(`create failed: ${created.status} ${await created.text()}`);
     const id = ((await created.json()) as { analysis: { id: string } }).analysis.id;

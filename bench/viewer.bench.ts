@@ -12,39 +12,14 @@
 import { pathToFileURL } from 'node:url';
 import type { Page } from 'playwright-core';
 import { DEMO_PASSWORD_DEFAULT } from '../lib/data/demo';
-import { GdsiiWriter } from '../lib/layout/gdsii-writer';
 import { launchBrowser } from '../tests/support/browser';
 import { signIn } from '../tests/support/http';
 import { startTestServer } from '../tests/support/server';
-import { benchLayout } from './geometry-layout';
-
-const MODEL = {
-  name: 'viewer bench model (invented)',
-  version: 'bench-1',
-  openRateUmPerMin: 3,
-  reactionProbability: 0.2,
-  loading: { coefficient: 0.3, lengthUm: 800 },
-  etch: { timeMin: 10, targetDepthUm: 25, toleranceUm: 1.5, maxAspectRatio: 30 },
-  mode: 'continuous',
-};
-
-function layoutGds(): { bytes: Uint8Array; polygons: number } {
-  const set = benchLayout();
-  const w = new GdsiiWriter({ libraryName: 'VIEW1M', dbuUm: 0.001 });
-  w.beginCell('TOP');
-  w.rect(0, 0, 0, 0, 10_000_000, 10_000_000);
-  for (let p = 0; p < set.count; p++) {
-    const a = set.offsets[p] as number;
-    const b = set.offsets[p + 1] as number;
-    w.boundary(set.layer, set.datatype, set.coords.subarray(2 * a, 2 * b));
-  }
-  w.endCell();
-  return { bytes: w.finish(), polygons: set.count + 1 };
-}
+import { BENCH_MODEL, benchLayoutGds } from './geometry-layout';
 
 async function analyse(base: string, output: () => string): Promise<string> {
   const client = await signIn(base, 'designer@larkspur.example', DEMO_PASSWORD_DEFAULT);
-  const { bytes, polygons } = layoutGds();
+  const { bytes, polygons } = benchLayoutGds('VIEW1M');
   const form = new FormData();
   form.set('name', 'viewer bench 1M');
   form.set('file', new Blob([bytes as Uint8Array<ArrayBuffer>]), 'viewer-bench-1m.gds');
@@ -54,7 +29,7 @@ async function analyse(base: string, output: () => string): Promise<string> {
   const created = await client.post('/api/v1/projects/demo-kestrel/analyses', {
     revisionId: revision.id,
     settings: { etchLayers: [{ layer: 1, datatype: 0 }], densityWindows: [{ windowUm: 100, stepUm: 50 }, { windowUm: 700, stepUm: 70 }], limits: { minDensity: 0.05, maxDensity: 0.5, minWidthUm: 1 } },
-    model: MODEL,
+    model: BENCH_MODEL,
   });
   if (created.status !== 202) throw new Error(`create failed: ${created.status} ${await created.text()}`);
   const id = ((await created.json()) as { analysis: { id: string } }).analysis.id;

@@ -1,6 +1,7 @@
 import { getDb } from '@/db/client';
 import { idParam } from '@/lib/data/schemas';
 import { toErrorResponse } from '@/lib/http/errors';
+import { immutableBinaryResponse } from '@/lib/http/immutable-binary';
 import { requireAnalysisAccess } from '@/lib/jobs/access';
 import { readFeatureColumns } from '@/lib/jobs/feature-columns';
 import { encodeFeatures } from '@/lib/viewer/feature-wire';
@@ -16,11 +17,7 @@ export async function GET(request: Request, ctx: { params: Promise<{ analysisId:
     await requireAnalysisAccess(request, analysisId, 'project.read');
     const db = getDb();
     viewerInfo(db, analysisId); // 404 / 409 before reading
-    const etag = `"${analysisId}-features-1"`;
-    const headers = { 'cache-control': 'private, max-age=31536000, immutable', etag };
-    if (request.headers.get('if-none-match') === etag) return new Response(null, { status: 304, headers });
-    const body = encodeFeatures(readFeatureColumns(db, analysisId));
-    return new Response(body as unknown as BodyInit, { headers: { ...headers, 'content-type': 'application/vnd.trenchant.features', 'content-length': String(body.byteLength) } });
+    return immutableBinaryResponse(request, `"${analysisId}-features-1"`, 'application/vnd.trenchant.features', () => encodeFeatures(readFeatureColumns(db, analysisId)));
   } catch (error) {
     return toErrorResponse(error);
   }

@@ -1,6 +1,7 @@
 import { getDb } from '@/db/client';
 import { idParam } from '@/lib/data/schemas';
 import { toErrorResponse } from '@/lib/http/errors';
+import { immutableBinaryResponse } from '@/lib/http/immutable-binary';
 import { requireAnalysisAccess } from '@/lib/jobs/access';
 import { readFlagColumns } from '@/lib/viewer/flag-source';
 import { encodeFlags } from '@/lib/viewer/flag-wire';
@@ -17,11 +18,7 @@ export async function GET(request: Request, ctx: { params: Promise<{ analysisId:
     const db = getDb();
     viewerInfo(db, analysisId); // 404 / 409 before reading
     // A finished analysis's flags never change (reviews live in their own tables).
-    const etag = `"${analysisId}-flags-1"`;
-    const headers = { 'cache-control': 'private, max-age=31536000, immutable', etag };
-    if (request.headers.get('if-none-match') === etag) return new Response(null, { status: 304, headers });
-    const body = encodeFlags(readFlagColumns(db, analysisId));
-    return new Response(body as unknown as BodyInit, { headers: { ...headers, 'content-type': 'application/vnd.trenchant.flags', 'content-length': String(body.byteLength) } });
+    return immutableBinaryResponse(request, `"${analysisId}-flags-1"`, 'application/vnd.trenchant.flags', () => encodeFlags(readFlagColumns(db, analysisId)));
   } catch (error) {
     return toErrorResponse(error);
   }
