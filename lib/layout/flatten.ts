@@ -2,10 +2,10 @@
  * Flatten a GDSII hierarchy into one `PolygonSet` per layer/datatype, iteratively (explicit frame stack), writing
  * transformed coordinates straight into exactly-sized output typed arrays.
  *
- * - Output vertices are snapped to the integer dbu grid (Math.round) after transformation; Manhattan placements
- *   (angles multiple of 90°, integer magnification) are exact.
- * - Rings come out counter-clockwise (reflected placements are written in reverse order), so nonzero fill of a set
- *   equals the GDSII meaning "each boundary is filled on its own".
+ * - Vertices are placed by place.ts (shared with the tile reader): snapped to the integer dbu grid (Math.round)
+ *   after transformation, Manhattan placements (angles multiple of 90°, integer magnification) exact, rings
+ *   counter-clockwise (reflected placements written in reverse order), so nonzero fill of a set equals the GDSII
+ *   meaning "each boundary is filled on its own".
  * - Work and memory are bounded: the flattened polygon / point counts are computed bottom-up first and a layout
  *   beyond `maxPolygons` / `maxPoints` is refused before anything is allocated; instances of cells that flatten to
  *   nothing are never visited; at most `maxLabels` labels are kept (first in traversal order).
@@ -14,7 +14,7 @@ import { polygonSetsBbox } from './bbox';
 import { LayoutReadError } from './errors';
 import type { CellDef, GdsLibrary } from './library';
 import { bottomUpOrder, cellTotals, checkMissingCells, chooseTopCell } from './hierarchy';
-import { pathOutline } from './path-outline';
+import { placeAbsolutePath, placeShapes } from './place';
 import { compose, IDENTITY, placement, type Placement } from './transform';
 import type { FlatLayout, LayoutLabel, PolygonSet } from './types';
 
@@ -72,75 +72,22 @@ export function flattenLibrary(lib: GdsLibrary, opts: FlattenOptions = {}): Flat
   const emit = (ci: number, t: Placement) => {
     const cell = lib.cells[ci] as CellDef;
     const targets = outIndex[ci] as (Out | undefined)[];
-    const rev = t.reflect;
     const { a, b, c, d, tx, ty } = t;
     for (let si = 0; si < cell.shapes.length; si++) {
       const s = cell.shapes[si];
       const o = targets[si];
       if (!s || !o) continue;
-      const src = s.coords.data;
-      const starts = s.starts.data;
       const np = s.starts.length;
       const npts = s.coords.length >> 1;
-      const dst = o.set.coords;
-      const offs = o.set.offsets;
-      if (a === 1 && b === 0 && c === 0 && d === 1 && tx === 0 && ty === 0) {
-        // Identity (the top cell's own shapes): a straight copy.
-        const base = o.pt;
-        for (let k = 0; k < np; k++) offs[o.poly + k] = base + (starts[k] as number);
-        dst.set(src.subarray(0, 2 * npts), 2 * base);
-      } else if (!rev) {
-        const base = o.pt;
-        for (let k = 0; k < np; k++) offs[o.poly + k] = base + (starts[k] as number);
-        let w = 2 * o.pt;
-        for (let k = 0; k < 2 * npts; k += 2) {
-          const x = src[k] as number;
-          const y = src[k + 1] as number;
-          dst[w++] = Math.round(a * x + b * y + tx);
-          dst[w++] = Math.round(c * x + d * y + ty);
-        }
-      } else {
-        let w = 2 * o.pt;
-        for (let k = 0; k < np; k++) {
-          const from = starts[k] as number;
-          const to = k + 1 < np ? (starts[k + 1] as number) : npts;
-          offs[o.poly + k] = w >> 1;
-          for (let q = to - 1; q >= from; q--) {
-            const x = src[2 * q] as number;
-            const y = src[2 * q + 1] as number;
-            dst[w++] = Math.round(a * x + b * y + tx);
-            dst[w++] = Math.round(c * x + d * y + ty);
-          }
-        }
-      }
+      placeShapes(s.coords.data, s.starts.data, np, npts, t, o.set.coords, o.set.offsets, o.poly, o.pt);
       o.poly += np;
       o.pt += npts;
     }
     for (const p of cell.absPaths) {
       const o = outByKey.get(p.key);
       if (!o) continue;
-      const m = p.centre.length;
-      const centre = new Float64Array(m);
-      for (let k = 0; k < m; k += 2) {
-        const x = p.centre[k] as number;
-        const y = p.centre[k + 1] as number;
-        centre[k] = a * x + b * y + tx;
-        centre[k + 1] = c * x + d * y + ty;
-      }
-      scratch.length = 0;
-      const n = pathOutline(centre, m >> 1, p, scratch);
-      let area2 = 0;
-      for (let k = 0; k < n; k++) {
-        const j = (k + 1) % n;
-        area2 += (scratch[2 * k] as number) * (scratch[2 * j + 1] as number) - (scratch[2 * j] as number) * (scratch[2 * k + 1] as number);
-      }
       o.set.offsets[o.poly++] = o.pt;
-      for (let k = 0; k < n; k++) {
-        const q = area2 >= 0 ? k : n - 1 - k;
-        o.set.coords[2 * o.pt] = Math.round(scratch[2 * q] as number);
-        o.set.coords[2 * o.pt + 1] = Math.round(scratch[2 * q + 1] as number);
-        o.pt++;
-      }
+      o.pt += placeAbsolutePath(p, t, scratch, o.set.coords, o.pt);
     }
     for (const l of cell.labels) {
       if (labels.length >= maxLabels) break;

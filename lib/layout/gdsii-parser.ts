@@ -3,6 +3,10 @@
  * Records split across chunk boundaries are carried over (a record is at most 65 535 bytes), so memory holds the
  * parsed geometry, never the file. Every record type of the manual (0x00–0x3B) is either interpreted or skipped
  * by its length; anything else is an error naming the byte offset.
+ *
+ * Where polygons go is up to an `ElementSink`: by default they are kept in the cells (the whole-file reader); the
+ * GDSII index (gdsii-index.ts) keeps only each element's byte offset and bbox, and `elementDecoder` re-reads single
+ * elements for a tile, so every path shares one validation and one geometry construction.
  */
 import { LayoutReadError, pushWarning } from './errors';
 import { DataType, LAST_RECORD_TYPE, Rec, recordName } from './gdsii-records';
@@ -13,6 +17,31 @@ import { pathOutline } from './path-outline';
 
 /** Parser states (plain numbers; the style guide avoids TS enums). */
 const State = { Header: 0, BgnLib: 1, LibHead: 2, Body: 3, Struct: 4, Element: 5, Done: 6 } as const;
+
+/**
+ * Receives each polygon element once validated: `xy[0..n)` is the ring (interleaved, closing point dropped) of a
+ * BOUNDARY/BOX or the outline of a positive-width PATH, in the cell's frame; `offset` is the element's first byte.
+ */
+export interface ElementSink {
+  ring(cell: CellDef, layer: number, datatype: number, xy: ArrayLike<number>, n: number, offset: number): void;
+  /** Whether TEXT labels are kept in `cell.labels` (the index drops them: a tile has no labels). */
+  readonly keepLabels: boolean;
+}
+
+/** The default sink: polygons kept in the cell, counter-clockwise (see library.ts). */
+export class CellShapesSink implements ElementSink {
+  readonly keepLabels = true;
+  private lastShapes: CellShapes | null = null;
+  private lastCell: CellDef | null = null;
+
+  ring(cell: CellDef, layer: number, datatype: number, xy: ArrayLike<number>, n: number): void {
+    // Consecutive elements on one layer skip the map lookup.
+    const last = this.lastShapes;
+    const shapes = last && this.lastCell === cell && last.layer === layer && last.datatype === datatype ? last : (this.lastShapes = shapesFor(cell, layer, datatype));
+    this.lastCell = cell;
+    appendRing(shapes, xy, 0, n);
+  }
+}
 
 const ELEMENT_START = new Set<number>([Rec.BOUNDARY, Rec.PATH, Rec.SREF, Rec.AREF, Rec.TEXT, Rec.NODE, Rec.BOX]);
 
@@ -63,6 +92,19 @@ export class GdsiiParser {
     snameOffset: 0, strans: 0, mag: 1, angle: 0, cols: 0, rows: 0, text: '', xy: new GrowF64(256), hasXy: false,
   };
   private readonly scratch: number[] = [];
+
+  constructor(private readonly sink: ElementSink = new CellShapesSink()) {}
+
+  /**
+   * A parser that takes the records of single elements of `cell` (already validated by an earlier full pass) and
+   * hands their polygons to `sink`: the tile reader's way to decode elements read by position.
+   */
+  static elementDecoder(cell: CellDef, sink: ElementSink): GdsiiParser {
+    const p = new GdsiiParser(sink);
+    p.state = State.Struct;
+    p.cell = cell;
+    return p;
+  }
 
   /** Bytes consumed so far. */
   get bytesRead(): number {
@@ -288,17 +330,6 @@ export class GdsiiParser {
     }
   }
 
-  private lastShapes: CellShapes | null = null;
-  private lastCell: CellDef | null = null;
-
-  /** Shapes of `cell` on layer/datatype; consecutive elements on one layer skip the map lookup. */
-  private shapesOf(cell: CellDef, layer: number, datatype: number): CellShapes {
-    const last = this.lastShapes;
-    if (last && this.lastCell === cell && last.layer === layer && last.datatype === datatype) return last;
-    this.lastCell = cell;
-    return (this.lastShapes = shapesFor(cell, layer, datatype));
-  }
-
   private endElement(): void {
     const e = this.el;
     const cell = this.cell as CellDef;
@@ -324,7 +355,7 @@ export class GdsiiParser {
           });
         }
         if (m < 3) this.fail('bad-record', `${recordName(e.kind)} element at byte ${e.offset} has ${pts} points; a closed polygon needs at least 4`, e.offset);
-        appendRing(this.shapesOf(cell, e.layer, e.datatype), xy, 0, 2 * m);
+        this.sink.ring(cell, e.layer, e.datatype, xy, 2 * m, e.offset);
         return;
       }
       case Rec.PATH: {
@@ -340,11 +371,11 @@ export class GdsiiParser {
           cell.absPaths.push({ key: layerKey(e.layer, e.datatype), layer: e.layer, datatype: e.datatype, centre: xy.slice(0, 2 * pts), ...spec, points: outPts });
           return;
         }
-        appendRing(shapesFor(cell, e.layer, e.datatype), out, 0, out.length);
+        this.sink.ring(cell, e.layer, e.datatype, out, out.length, e.offset);
         return;
       }
       case Rec.TEXT:
-        cell.labels.push({ layer: e.layer, texttype: e.datatype, text: e.text, x: xy[0] as number, y: xy[1] as number });
+        if (this.sink.keepLabels) cell.labels.push({ layer: e.layer, texttype: e.datatype, text: e.text, x: xy[0] as number, y: xy[1] as number });
         return;
       case Rec.SREF:
       case Rec.AREF: {

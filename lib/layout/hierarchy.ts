@@ -67,7 +67,15 @@ export function bottomUpOrder(lib: GdsLibrary): number[] {
   return order;
 }
 
-export function cellTotals(lib: GdsLibrary, order: number[]): CellTotals {
+/** A cell's own polygons per layer key as [key, polygons, points] (absolute-width paths excluded). */
+export type OwnCounts = (cell: CellDef, index: number) => Iterable<readonly [number, number, number]>;
+
+function* shapesCounts(cell: CellDef): Iterable<readonly [number, number, number]> {
+  for (const s of cell.shapes) yield [s.key, s.starts.length, s.coords.length / 2];
+}
+
+/** `own` replaces the count of the cells' stored shapes (the GDSII index stores none, only counts). */
+export function cellTotals(lib: GdsLibrary, order: number[], own: OwnCounts = shapesCounts): CellTotals {
   const n = lib.cells.length;
   const t: CellTotals = { polygons: new Float64Array(n), points: new Float64Array(n), labels: new Float64Array(n), byLayer: [] };
   for (const c of order) {
@@ -77,7 +85,7 @@ export function cellTotals(lib: GdsLibrary, order: number[]): CellTotals {
       const e = m.get(key);
       if (e) { e[0] += polys; e[1] += pts; } else m.set(key, [polys, pts]);
     };
-    for (const s of cell.shapes) add(s.key, s.starts.length, s.coords.length / 2);
+    for (const [key, polys, pts] of own(cell, c)) add(key, polys, pts);
     for (const p of cell.absPaths) add(p.key, 1, p.points);
     let labels = cell.labels.length;
     for (const ref of cell.refs) {
