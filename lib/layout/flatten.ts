@@ -15,7 +15,7 @@ import { LayoutReadError } from './errors';
 import type { CellDef, GdsLibrary } from './library';
 import { bottomUpOrder, cellTotals, checkMissingCells, chooseTopCell } from './hierarchy';
 import { placeAbsolutePath, placeShapes } from './place';
-import { compose, IDENTITY, placement, type Placement } from './transform';
+import { compose, IDENTITY, placeInstance, placement, type Placement } from './transform';
 import type { FlatLayout, LayoutLabel, PolygonSet } from './types';
 
 export interface FlattenOptions {
@@ -135,12 +135,8 @@ export function flattenLibrary(lib: GdsLibrary, opts: FlattenOptions = {}): Flat
     do {
       const i = inst % ref.cols;
       const j = (inst - i) / ref.cols;
-      const ox = ref.x + i * ref.colDx + j * ref.rowDx;
-      const oy = ref.y + i * ref.colDy + j * ref.rowDy;
       // Leaf instances reuse one scratch placement; frames pushed on the stack need their own.
-      const t: Placement = leaf ? scratchT : { ...shape };
-      t.tx = p.a * ox + p.b * oy + p.tx;
-      t.ty = p.c * ox + p.d * oy + p.ty;
+      const t: Placement = placeInstance(p, shape, ref, i, j, leaf ? scratchT : { ...shape });
       inst++;
       emit(child, t);
       if (!leaf) {

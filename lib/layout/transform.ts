@@ -50,3 +50,22 @@ export function compose(
   const angle = ref.absAngle ? ref.angleDeg : p.angleDeg + (p.reflect ? -ref.angleDeg : ref.angleDeg);
   return placement(p.reflect !== ref.reflect, mag, angle, p.a * ox + p.b * oy + p.tx, p.c * ox + p.d * oy + p.ty);
 }
+
+/**
+ * Write into `out` the transform of instance (i, j) of a reference (lattice steps colDx… as in CellRef): the
+ * linear part of `shape` (= compose(p, ref, 0, 0)), the origin P1 + i·colStep + j·rowStep placed by `p`. The
+ * whole-file flatten and the tile reader both use it, so their vertices agree to the last bit.
+ */
+export function placeInstance(
+  p: Placement, shape: Placement,
+  ref: { x: number; y: number; colDx: number; colDy: number; rowDx: number; rowDy: number },
+  i: number, j: number, out: Placement,
+): Placement {
+  const ox = ref.x + i * ref.colDx + j * ref.rowDx;
+  const oy = ref.y + i * ref.colDy + j * ref.rowDy;
+  out.reflect = shape.reflect; out.mag = shape.mag; out.angleDeg = shape.angleDeg;
+  out.a = shape.a; out.b = shape.b; out.c = shape.c; out.d = shape.d;
+  out.tx = p.a * ox + p.b * oy + p.tx;
+  out.ty = p.c * ox + p.d * oy + p.ty;
+  return out;
+}

@@ -1,0 +1,377 @@
+/**
+ * A GDSII file read one tile at a time (TileSource, tile-source.ts), for layouts larger than memory.
+ *
+ * `openGdsiiTileSource` indexes the file once (gdsii-index.ts: bounded buffer, same checks and errors as the
+ * whole-file reader) and computes the header: units, top cell (same rule), flattened counts per layer (same
+ * bottom-up totals) and the bbox of everything flattened (cell-bounds.ts: exact without reading geometry when the
+ * placements allow it, otherwise by walking the hierarchy once).
+ *
+ * `readTile` walks the hierarchy from the top cell: instances whose placed subtree box misses the tile are skipped
+ * (AREF: only the lattice rows that can meet it, per column), elements of large cells are chosen through their
+ * bucket grid, read by position and decoded by the whole-file parser, placed by place.ts — the same vertices as
+ * the whole-file flatten — and kept when their flattened bbox meets the closed tile box. Small cells (vias,
+ * standard cells) are decoded once and kept in a bounded cache.
+ *
+ * Limits: one tile may hold at most `maxPolygons` polygons / `maxPoints` vertices (defaults as the whole-file
+ * reader's layout limits); beyond that it fails with "too-large" before memory grows further.
+ */
+import { closeSync, openSync } from 'node:fs';
+import { polygonSetsBbox, type BboxDbu } from './bbox';
+import { cellBounds, exactPlacement, growSnapped, type CellBounds } from './cell-bounds';
+import { ElementReader } from './element-reader';
+import { LayoutReadError } from './errors';
+import { elementsMeeting, indexGdsiiFile, type GdsiiIndex, type IndexOptions, type IndexedCell } from './gdsii-index';
+import { GrowF64, GrowU32 } from './grow-buffer';
+import { layerKey, type CellDef } from './library';
+import { placeAbsolutePath, placeShapes } from './place';
+import type { TileSource, TileSourceHeader } from './tile-source';
+import { compose, IDENTITY, placeInstance, type Placement } from './transform';
+import type { FlatLayout, PolygonSet } from './types';
+
+export interface GdsiiTileSourceOptions extends IndexOptions {
+  /** Most polygons one tile may return (default 25 000 000). */
+  maxPolygons?: number;
+  /** Most vertices one tile may return (default 100 000 000). */
+  maxPoints?: number;
+  /** Refuse layouts that flatten to more polygons / vertices than this (defaults 1e9 / 1e10). */
+  maxLayoutPolygons?: number;
+  maxLayoutPoints?: number;
+  /** Budget of the decoded small-cell cache, in vertices (default 4 000 000 ≈ 64 MB). */
+  cachePoints?: number;
+}
+
+/** Cells with at most this many elements and points are decoded whole and cached. */
+const SMALL_ELEMENTS = 1024;
+const SMALL_POINTS = 1 << 16;
+
+export interface GdsiiTileSource extends TileSource {
+  readonly index: GdsiiIndex;
+  /** Disk bytes read and elements decoded since opening (index pass excluded). */
+  stats(): { bytesRead: number; elementsDecoded: number };
+}
+
+/** Receives each placed polygon kept by a walk: points [from, to) of `coords`. */
+type Take = (key: number, coords: Float64Array, from: number, to: number) => void;
+
+export function openGdsiiTileSource(path: string, opts: GdsiiTileSourceOptions = {}): GdsiiTileSource {
+  const index = indexGdsiiFile(path, opts);
+  if (index.top >= 0) {
+    const tp = index.totals.polygons[index.top] as number;
+    const tq = index.totals.points[index.top] as number;
+    const maxP = opts.maxLayoutPolygons ?? 1e9;
+    const maxQ = opts.maxLayoutPoints ?? 1e10;
+    if (tp > maxP || tq > maxQ) {
+      const name = (index.lib.cells[index.top] as CellDef).name;
+      throw new LayoutReadError('too-large', `cell "${name}" flattens to ${tp} polygons with ${tq} vertices, above the limit of ${maxP} polygons / ${maxQ} vertices`);
+    }
+  }
+  const fd = openSync(path, 'r');
+  try {
+    return new Source(index, fd, opts);
+  } catch (err) {
+    closeSync(fd);
+    throw err;
+  }
+}
+
+class Source implements GdsiiTileSource {
+  readonly header: TileSourceHeader;
+  private readonly bounds: CellBounds;
+  private readonly reader: ElementReader;
+  private readonly cache = new Map<number, CellDef>();
+  private cachedPoints = 0;
+  private closed = false;
+  private dst = new Float64Array(1024);
+  private offs = new Uint32Array(64);
+  private readonly scratch: number[] = [];
+
+  constructor(readonly index: GdsiiIndex, private readonly fd: number, private readonly opts: GdsiiTileSourceOptions) {
+    this.reader = new ElementReader(fd, index.fileSize);
+    this.bounds = cellBounds(index);
+    const lib = index.lib;
+    const top = index.top;
+    const topMap = top >= 0 ? (index.totals.byLayer[top] ?? new Map()) : new Map<number, [number, number]>();
+    const layers = [...topMap.entries()].sort((a, b) => a[0] - b[0]).map(([key, [polygons, points]]) => ({ layer: Math.floor(key / 65536), datatype: key % 65536, polygons, points }));
+    this.header = {
+      format: 'gdsii', libraryName: lib.libraryName, dbuUm: lib.dbuUm, userUnitUm: lib.userUnitUm,
+      topCell: top >= 0 ? (lib.cells[top] as CellDef).name : '', cellCount: lib.cells.length,
+      layers, bboxDbu: top >= 0 ? this.wholeBbox() : null, warnings: lib.warnings,
+    };
+  }
+
+  stats() {
+    return { bytesRead: this.reader.bytesRead, elementsDecoded: this.reader.elementsDecoded };
+  }
+
+  close(): void {
+    if (this.closed) return;
+    this.closed = true;
+    this.cache.clear();
+    closeSync(this.fd);
+  }
+
+  readTile(box: BboxDbu, layers: { layer: number; datatype: number }[]): FlatLayout {
+    if (this.closed) throw new LayoutReadError('io', `tile source for ${this.index.path} is closed`);
+    const maxPolygons = this.opts.maxPolygons ?? 25_000_000;
+    const maxPoints = this.opts.maxPoints ?? 100_000_000;
+    const out = new Map<number, { coords: GrowF64; starts: GrowU32 }>();
+    let polygons = 0;
+    let points = 0;
+    const keys = new Set(layers.map((l) => layerKey(l.layer, l.datatype)));
+    this.walk(box, keys, (key, coords, from, to) => {
+      polygons++;
+      points += to - from;
+      if (polygons > maxPolygons || points > maxPoints) {
+        throw new LayoutReadError('too-large', `tile [${box.join(', ')}] holds more than ${maxPolygons} polygons or ${maxPoints} vertices; read it in smaller tiles`);
+      }
+      let o = out.get(key);
+      if (!o) out.set(key, (o = { coords: new GrowF64(256), starts: new GrowU32(16) }));
+      o.starts.push(o.coords.length >> 1);
+      const d = o.coords.reserve(2 * (to - from));
+      d.set(coords.subarray(2 * from, 2 * to), o.coords.length);
+      o.coords.length += 2 * (to - from);
+    });
+    const sets: PolygonSet[] = [...out.entries()].sort((a, b) => a[0] - b[0]).map(([key, o]) => {
+      const count = o.starts.length;
+      const offsets = new Uint32Array(count + 1);
+      offsets.set(o.starts.view());
+      offsets[count] = o.coords.length >> 1;
+      return { layer: Math.floor(key / 65536), datatype: key % 65536, coords: o.coords.data.slice(0, o.coords.length), offsets, count };
+    });
+    const h = this.header;
+    return {
+      format: 'gdsii', libraryName: h.libraryName, dbuUm: h.dbuUm, userUnitUm: h.userUnitUm, topCell: h.topCell, cellCount: h.cellCount,
+      layers: sets, labels: [], bboxDbu: polygonSetsBbox(sets), ...(h.warnings ? { warnings: h.warnings } : {}),
+    };
+  }
+
+  /** Bbox of everything flattened: exact subtrees from their boxes, the rest by walking. */
+  private wholeBbox(): BboxDbu | null {
+    const b = Float64Array.of(Infinity, Infinity, -Infinity, -Infinity);
+    const { exact, exactOk } = this.bounds;
+    const shortcut = (c: number, t: Placement) => {
+      if (!exactOk[c] || !exactPlacement(t, exact[c] ?? null)) return false;
+      const F = exact[c];
+      if (F) growSnapped(b, F, t);
+      return true;
+    };
+    this.walk(null, null, (_key, coords, from, to) => {
+      for (let k = 2 * from; k < 2 * to; k += 2) {
+        const x = coords[k] as number, y = coords[k + 1] as number;
+        if (x < (b[0] as number)) b[0] = x;
+        if (x > (b[2] as number)) b[2] = x;
+        if (y < (b[1] as number)) b[1] = y;
+        if (y > (b[3] as number)) b[3] = y;
+      }
+    }, shortcut);
+    return (b[0] as number) <= (b[2] as number) ? [b[0] as number, b[1] as number, b[2] as number, b[3] as number] : null;
+  }
+
+  /**
+   * Visit every flattened polygon of layers `keys` (null: all) whose bbox meets `box` (null: everywhere).
+   * `shortcut(c, t)` may claim an instance of cell c placed by t (its subtree is then not visited).
+   */
+  private walk(box: BboxDbu | null, keys: Set<number> | null, take: Take, shortcut?: (c: number, t: Placement) => boolean): void {
+    const { index, bounds } = this;
+    const cells = index.cells;
+    const m = box ? 2 + 1e-9 * Math.max(...box.map(Math.abs)) : 0;
+    const wide = box ? [box[0] - m, box[1] - m, box[2] + m, box[3] + m] : null;
+    // Per cell: whether its subtree has polygons on the asked layers, and its culling box over those layers.
+    const relevant = new Int8Array(cells.length).fill(-1);
+    const isRelevant = (c: number): boolean => {
+      if (relevant[c] === -1) {
+        const byLayer = index.totals.byLayer[c];
+        let any = false;
+        if (byLayer) for (const [key, [p]] of byLayer) if (p > 0 && (!keys || keys.has(key))) any = true;
+        relevant[c] = any ? 1 : 0;
+      }
+      return relevant[c] === 1;
+    };
+    const cullBoxes = new Map<number, Float64Array | null>();
+    const cullBox = (c: number): Float64Array | null => {
+      if (cullBoxes.has(c)) return cullBoxes.get(c) ?? null;
+      const sub = bounds.sub[c];
+      let u: Float64Array | null = null;
+      if (sub) {
+        u = Float64Array.of(Infinity, Infinity, -Infinity, -Infinity);
+        for (const [key, b] of sub) {
+          if (keys && !keys.has(key)) continue;
+          u[0] = Math.min(u[0] as number, b[0] as number); u[1] = Math.min(u[1] as number, b[1] as number);
+          u[2] = Math.max(u[2] as number, b[2] as number); u[3] = Math.max(u[3] as number, b[3] as number);
+        }
+      }
+      cullBoxes.set(c, u);
+      return u;
+    };
+    const wantTop = index.top;
+    if (wantTop < 0 || !isRelevant(wantTop)) return;
+    if (shortcut?.(wantTop, IDENTITY)) return;
+    this.emitOwn(wantTop, IDENTITY, box, wide, keys, take);
+
+    interface Frame { cell: number; t: Placement; r: number; shape: Placement | null; i: number; j: number; jEnd: number; cull: number[] | null }
+    const stack: Frame[] = [{ cell: wantTop, t: IDENTITY, r: 0, shape: null, i: 0, j: 0, jEnd: -1, cull: null }];
+    const leafT: Placement = { ...IDENTITY };
+    const signal = this.opts.signal;
+    let work = 0;
+    // Rows j of column i whose origin can meet the tile: cull = [Ox, Oy, Cx, Cy, Rx, Ry, lox, loy, hix, hiy].
+    const rowRange = (f: Frame, rows: number) => {
+      f.j = 0;
+      f.jEnd = rows - 1;
+      const q = f.cull;
+      if (!q) return;
+      const [Ox, Oy, Cx, Cy, Rx, Ry, lox, loy, hix, hiy] = q as [number, number, number, number, number, number, number, number, number, number];
+      const px = Ox + f.i * Cx, py = Oy + f.i * Cy;
+      let lo = 0, hi = rows - 1;
+      for (const [p, r, l, h] of [[px, Rx, lox, hix], [py, Ry, loy, hiy]] as [number, number, number, number][]) {
+        if (Math.abs(r) < 1e-12) {
+          if (p < l || p > h) { lo = 1; hi = 0; }
+          continue;
+        }
+        const a = (l - p) / r, b = (h - p) / r;
+        lo = Math.max(lo, Math.ceil(Math.min(a, b) - 1e-9));
+        hi = Math.min(hi, Math.floor(Math.max(a, b) + 1e-9));
+      }
+      f.j = lo;
+      f.jEnd = hi;
+    };
+    while (stack.length > 0) {
+      const f = stack[stack.length - 1] as Frame;
+      const def = (cells[f.cell] as IndexedCell).def;
+      const ref = def.refs[f.r];
+      if (!ref) {
+        stack.pop();
+        continue;
+      }
+      const child = ref.child;
+      if (!f.shape) {
+        if (!isRelevant(child)) {
+          f.r++;
+          continue;
+        }
+        const p = f.t;
+        f.shape = compose(p, ref, 0, 0);
+        f.cull = null;
+        const cb = wide ? cullBox(child) : null;
+        if (wide && cb) {
+          const s = f.shape;
+          const cx = ((cb[0] as number) + (cb[2] as number)) / 2, cy = ((cb[1] as number) + (cb[3] as number)) / 2;
+          const hx = ((cb[2] as number) - (cb[0] as number)) / 2, hy = ((cb[3] as number) - (cb[1] as number)) / 2;
+          const pad = bounds.pad[child] as number;
+          const scx = s.a * cx + s.b * cy, scy = s.c * cx + s.d * cy;
+          const ex = Math.abs(s.a) * hx + Math.abs(s.b) * hy + pad, ey = Math.abs(s.c) * hx + Math.abs(s.d) * hy + pad;
+          f.cull = [
+            p.a * ref.x + p.b * ref.y + p.tx, p.c * ref.x + p.d * ref.y + p.ty,
+            p.a * ref.colDx + p.b * ref.colDy, p.c * ref.colDx + p.d * ref.colDy,
+            p.a * ref.rowDx + p.b * ref.rowDy, p.c * ref.rowDx + p.d * ref.rowDy,
+            (wide[0] as number) - scx - ex, (wide[1] as number) - scy - ey, (wide[2] as number) - scx + ex, (wide[3] as number) - scy + ey,
+          ];
+        }
+        f.i = 0;
+        rowRange(f, ref.rows);
+      }
+      const leaf = (cells[child] as IndexedCell).def.refs.length === 0;
+      let pushed = false;
+      while (f.i < ref.cols) {
+        if (f.j > f.jEnd) {
+          f.i++;
+          if (f.i < ref.cols) rowRange(f, ref.rows);
+          continue;
+        }
+        if (((work += 1) & 0xfff) === 0 && signal?.aborted) throw new LayoutReadError('aborted', 'reading was cancelled');
+        const t = placeInstance(f.t, f.shape, ref, f.i, f.j, leaf ? leafT : { ...f.shape });
+        f.j++;
+        if (shortcut?.(child, t)) continue;
+        this.emitOwn(child, t, box, wide, keys, take);
+        if (!leaf) {
+          stack.push({ cell: child, t, r: 0, shape: null, i: 0, j: 0, jEnd: -1, cull: null });
+          pushed = true;
+          break;
+        }
+      }
+      if (!pushed) {
+        f.r++;
+        f.shape = null;
+      }
+    }
+  }
+
+  /** Place cell c's own polygons on `keys` by t and hand those whose bbox meets `box` to `take`. */
+  private emitOwn(c: number, t: Placement, box: BboxDbu | null, wide: number[] | null, keys: Set<number> | null, take: Take): void {
+    const cell = this.index.cells[c] as IndexedCell;
+    const lists = keys ? cell.lists.filter((l) => keys.has(l.key)) : cell.lists;
+    let decoded: CellDef | null = null;
+    if (lists.length > 0) {
+      const points = cell.lists.reduce((n, l) => n + l.points, 0);
+      if (cell.elements <= SMALL_ELEMENTS && points <= SMALL_POINTS) {
+        decoded = this.cache.get(c) ?? null;
+        if (!decoded) {
+          decoded = this.reader.decode(cell.def.name, sortedOffsets(cell.lists, null));
+          const budget = this.opts.cachePoints ?? 4_000_000;
+          if (this.cachedPoints + points > budget) {
+            this.cache.clear();
+            this.cachedPoints = 0;
+          }
+          this.cache.set(c, decoded);
+          this.cachedPoints += points;
+        }
+      } else {
+        const pick: number[][] = lists.map((l) => {
+          const idx: number[] = [];
+          if (wide) elementsMeeting(l, t, wide, idx);
+          else for (let i = 0; i < l.count; i++) idx.push(i);
+          return idx;
+        });
+        if (pick.some((p) => p.length > 0)) decoded = this.reader.decode(cell.def.name, sortedOffsets(lists, pick));
+      }
+    }
+    if (decoded) {
+      for (const s of decoded.shapes) {
+        if (keys && !keys.has(s.key)) continue;
+        const np = s.starts.length, npts = s.coords.length >> 1;
+        this.reserve(npts, np);
+        placeShapes(s.coords.data, s.starts.data, np, npts, t, this.dst, this.offs, 0, 0);
+        for (let k = 0; k < np; k++) this.keep(s.key, this.offs[k] as number, k + 1 < np ? (this.offs[k + 1] as number) : npts, box, take);
+      }
+    }
+    for (const p of cell.def.absPaths) {
+      if (keys && !keys.has(p.key)) continue;
+      this.reserve(p.points * 2 + 16, 1);
+      const n = placeAbsolutePath(p, t, this.scratch, this.dst, 0);
+      this.keep(p.key, 0, n, box, take);
+    }
+  }
+
+  private keep(key: number, from: number, to: number, box: BboxDbu | null, take: Take): void {
+    if (box) {
+      const d = this.dst;
+      let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
+      for (let k = 2 * from; k < 2 * to; k += 2) {
+        const x = d[k] as number, y = d[k + 1] as number;
+        if (x < x0) x0 = x;
+        if (x > x1) x1 = x;
+        if (y < y0) y0 = y;
+        if (y > y1) y1 = y;
+      }
+      if (!(x1 >= box[0] && x0 <= box[2] && y1 >= box[1] && y0 <= box[3])) return;
+    }
+    take(key, this.dst, from, to);
+  }
+
+  private reserve(points: number, polygons: number): void {
+    if (this.dst.length < 2 * points) this.dst = new Float64Array(Math.max(2 * points, 2 * this.dst.length));
+    if (this.offs.length < polygons + 1) this.offs = new Uint32Array(Math.max(polygons + 1, 2 * this.offs.length));
+  }
+}
+
+/** Start offsets of the chosen elements (`pick[i]`: indices into lists[i]; null: all), ascending. */
+function sortedOffsets(lists: IndexedCell['lists'], pick: number[][] | null): Float64Array {
+  let n = 0;
+  lists.forEach((l, i) => (n += pick ? (pick[i] as number[]).length : l.count));
+  const out = new Float64Array(n);
+  let w = 0;
+  lists.forEach((l, i) => {
+    if (pick) for (const k of pick[i] as number[]) out[w++] = l.offsets[k] as number;
+    else out.set(l.offsets, (w += l.count) - l.count);
+  });
+  return out.sort();
+}

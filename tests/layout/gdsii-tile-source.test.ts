@@ -1,0 +1,243 @@
+/**
+ * The on-disk GDSII tile source against the whole-file reader (readLayoutFile + flatten, itself checked against
+ * gdspy in gdspy-fixtures.test.ts) and the in-memory reference source (the TileSource contract): same header, same
+ * polygons per tile as multisets of canonical rings, the tiles together give back the whole layout, same errors.
+ * Outside reference: gdspy (Debian python3-gdspy) reads a generated hierarchical file; its polygon counts and summed
+ * polygon areas per layer must equal ours.
+ */
+import { execFileSync } from 'node:child_process';
+import { mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import fc from 'fast-check';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { LayoutReadError } from '@/lib/layout/errors';
+import { GdsiiWriter } from '@/lib/layout/gdsii-writer';
+import { openGdsiiTileSource } from '@/lib/layout/gdsii-tile-source';
+import { readLayoutFile } from '@/lib/layout/read';
+import { inMemoryTileSource } from '@/lib/layout/tile-source';
+import type { BboxDbu } from '@/lib/layout/bbox';
+import type { FlatLayout } from '@/lib/layout/types';
+import { summedArea } from './helpers';
+import { apply, mutation } from './mutations';
+import { allLayers, flatDie, hierarchicalDie, polygonsOf, rng, tileGrid } from './tile-fixtures';
+
+const root = fileURLToPath(new URL('../../', import.meta.url));
+const fixtures = join(root, 'tests/fixtures/gds');
+let dir = '';
+
+beforeAll(() => {
+  dir = mkdtempSync(join(tmpdir(), 'trenchant-tiles-'));
+  writeFileSync(join(dir, 'hier.gds'), hierarchicalDie());
+  writeFileSync(join(dir, 'flat.gds'), flatDie(6000));
+});
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+const files = () => [
+  join(dir, 'hier.gds'), join(dir, 'flat.gds'),
+  ...readdirSync(join(root, 'samples')).filter((f) => f.endsWith('.gds')).map((f) => join(root, 'samples', f)),
+  ...readdirSync(fixtures).filter((f) => f.endsWith('.gds')).map((f) => join(fixtures, f)),
+];
+
+/** Every tile equals the reference tile; owned polygons over the grid give back the whole layout exactly. */
+function checkTiles(whole: FlatLayout, file: string, nx: number, ny: number, grow = 0): void {
+  const src = openGdsiiTileSource(file);
+  const ref = inMemoryTileSource(whole);
+  try {
+    expect(src.header).toEqual(ref.header);
+    if (!whole.bboxDbu) return;
+    const [x0, y0, x1, y1] = whole.bboxDbu;
+    const layers = allLayers(src);
+    const union: string[] = [];
+    for (const t of tileGrid([x0 - grow, y0 - grow, x1 + grow, y1 + grow], nx, ny)) {
+      const got = src.readTile(t.box, layers);
+      expect(polygonsOf(got), `${file} tile ${t.box.join(',')}`).toEqual(polygonsOf(ref.readTile(t.box, layers)));
+      union.push(...polygonsOf(got, t));
+    }
+    expect(union.sort()).toEqual(polygonsOf(whole));
+  } finally {
+    src.close();
+  }
+}
+
+describe('openGdsiiTileSource', () => {
+  it('matches the whole-file reader on every sample, fixture and generated file (5×4 grid, header, union)', async () => {
+    for (const file of files()) checkTiles(await readLayoutFile(file), file, 5, 4);
+  });
+
+  it('matches on finer grids and on grids whose lines fall on polygon edges', async () => {
+    const file = join(dir, 'hier.gds');
+    const whole = await readLayoutFile(file);
+    checkTiles(whole, file, 13, 11);
+    checkTiles(whole, file, 1, 1, 10);
+    checkTiles(await readLayoutFile(join(dir, 'flat.gds')), join(dir, 'flat.gds'), 9, 7);
+  });
+
+  it('matches the reference for random boxes and layer subsets', async () => {
+    const file = join(dir, 'hier.gds');
+    const whole = await readLayoutFile(file);
+    const src = openGdsiiTileSource(file);
+    const ref = inMemoryTileSource(whole);
+    const r = rng(3);
+    const [x0, y0, x1, y1] = whole.bboxDbu as BboxDbu;
+    try {
+      for (let k = 0; k < 60; k++) {
+        const ax = x0 + r() * (x1 - x0), ay = y0 + r() * (y1 - y0);
+        const box: BboxDbu = [Math.floor(ax), Math.floor(ay), Math.floor(ax + r() * 80_000), Math.floor(ay + r() * 80_000)];
+        const layers = allLayers(src).filter(() => r() < 0.5);
+        expect(polygonsOf(src.readTile(box, layers)), box.join(',')).toEqual(polygonsOf(ref.readTile(box, layers)));
+      }
+      // A tile's bbox is that of what it returns.
+      const t = src.readTile([100_000, 100_000, 140_000, 140_000], allLayers(src));
+      expect(t.bboxDbu).toEqual(ref.readTile([100_000, 100_000, 140_000, 140_000], allLayers(src)).bboxDbu);
+    } finally {
+      src.close();
+    }
+  });
+
+  it('reads only the elements a tile needs from a large flat cell (bucket index)', async () => {
+    const src = openGdsiiTileSource(join(dir, 'flat.gds'));
+    try {
+      const before = src.stats().elementsDecoded;
+      src.readTile([0, 0, 50_000, 50_000], allLayers(src));
+      const used = src.stats().elementsDecoded - before;
+      // 6001 elements over 1e6 × 8e5 dbu: a 50 000² tile holds about 0.3 %; buckets may add neighbours, not the file.
+      expect(used).toBeGreaterThan(0);
+      expect(used).toBeLessThan(600);
+    } finally {
+      src.close();
+    }
+  });
+
+  it('refuses a tile above its polygon cap with "too-large" and stays usable', () => {
+    const src = openGdsiiTileSource(join(dir, 'flat.gds'), { maxPolygons: 100 });
+    try {
+      expect(() => src.readTile([0, 0, 1_000_000, 800_000], allLayers(src))).toThrow(/holds more than 100 polygons/);
+      expect(src.readTile([0, 0, 10_000, 10_000], allLayers(src)).layers.length).toBeGreaterThanOrEqual(0);
+    } finally {
+      src.close();
+    }
+  });
+});
+
+async function wholeOutcome(file: string): Promise<string> {
+  try {
+    await readLayoutFile(file, { maxPolygons: 200_000, maxPoints: 2_000_000 });
+    return 'ok';
+  } catch (e) {
+    if (e instanceof LayoutReadError) return `${e.code}@${e.offset}`;
+    throw e;
+  }
+}
+
+function tileOutcome(file: string): string {
+  try {
+    openGdsiiTileSource(file, { maxLayoutPolygons: 200_000, maxLayoutPoints: 2_000_000 }).close();
+    return 'ok';
+  } catch (e) {
+    if (e instanceof LayoutReadError) return `${e.code}@${e.offset}`;
+    throw e;
+  }
+}
+
+describe('bad input', () => {
+  it('gives the whole-file reader\'s error code and byte offset for hand-made faults', async () => {
+    const good = new GdsiiWriter().beginCell('TOP').rect(1, 0, 0, 0, 10, 10).sref('SUB', 0, 0).endCell().beginCell('SUB').rect(1, 0, 0, 0, 5, 5).endCell().finish();
+    const missing = new GdsiiWriter().beginCell('TOP').sref('NOWHERE', 0, 0).endCell().finish();
+    const cycle = new GdsiiWriter().beginCell('A').sref('B', 0, 0).endCell().beginCell('B').sref('A', 0, 0).endCell().finish();
+    const cases: [string, Uint8Array, string][] = [
+      ['empty', new Uint8Array(0), 'empty@0'],
+      ['png', Uint8Array.from([0x89, 0x50, 0x4e, 0x47, ...new Array(80).fill(7)]), 'not-gdsii@0'],
+      ['cut', good.subarray(0, good.length - 30), ''],
+      ['missing cell', missing, ''],
+      ['cycle', cycle, ''],
+    ];
+    for (const [name, bytes, want] of cases) {
+      const f = join(dir, `bad-${name.replace(/ /g, '-')}.gds`);
+      writeFileSync(f, bytes);
+      const whole = await wholeOutcome(f);
+      expect(whole).not.toBe('ok');
+      if (want) expect(whole).toBe(want);
+      expect(tileOutcome(f), name).toBe(whole);
+    }
+    expect(tileOutcome(join(dir, 'no-such-file.gds'))).toBe('io@undefined');
+  });
+
+  it('agrees with the whole-file reader on 300 mutated files (fast-check, fixed seed)', async () => {
+    const base = hierarchicalDie(5);
+    let n = 0;
+    await fc.assert(
+      fc.asyncProperty(fc.array(mutation, { minLength: 1, maxLength: 3 }), async (muts) => {
+        const f = join(dir, `mut-${n++ % 4}.gds`);
+        writeFileSync(f, apply(base, muts));
+        expect(tileOutcome(f)).toBe(await wholeOutcome(f));
+      }),
+      { seed: 20261203, numRuns: 300 },
+    );
+  });
+});
+
+describe('outside reference: gdspy', () => {
+  const py = '/usr/bin/python3';
+  const script = join(root, 'tests/layout/gdspy_count_area.py');
+  const haveGdspy = (() => {
+    try {
+      execFileSync(py, ['-c', 'import gdspy'], { stdio: 'ignore' });
+      return true;
+    } catch {
+      return false;
+    }
+  })();
+  if (!haveGdspy) console.warn('gdspy check skipped: /usr/bin/python3 cannot import gdspy (install Debian python3-gdspy)');
+
+  it.skipIf(!haveGdspy)('gdspy (python3-gdspy) counts the same polygons and summed area per layer as the tiles together', async () => {
+    // Manhattan paths only (type 0 and 2) and no BOX: gdspy's reader polygonises paths its own way and skips BOX.
+    const w = new GdsiiWriter({ libraryName: 'VIADUCT_TSV' });
+    w.beginCell('CHIP');
+    w.rect(1, 0, 0, 0, 90_000, 4_000);
+    w.sref('TSV', 10_000, 10_000, { angleDeg: 90 });
+    w.sref('TSV', 40_000, 10_000, { reflect: true, mag: 2 });
+    w.sref('TSV', 70_000, 30_000, { angleDeg: 30, mag: 1.5 });
+    w.aref('TSV', 8, 5, [0, 60_000], [8 * 11_000, 60_000], [0, 60_000 + 5 * 9_000]);
+    w.aref('TSV', 3, 3, [100_000, 0], [100_000 + 3 * 12_000, 3 * 4_000], [100_000 - 3 * 2_000, 3 * 12_000], { angleDeg: 180 });
+    w.path(2, 0, [0, -5_000, 50_000, -5_000, 50_000, -20_000], 600, { pathtype: 2 });
+    w.endCell();
+    w.beginCell('TSV').rect(3, 0, 0, 0, 5_000, 5_000).boundary(4, 0, [0, 0, 3000, 0, 3000, 3000, 1500, 1500, 0, 3000]).path(2, 0, [0, 6_000, 4_000, 6_000], 400).endCell();
+    const file = join(dir, 'gdspy.gds');
+    writeFileSync(file, w.finish());
+
+    const src = openGdsiiTileSource(file);
+    const tiles: FlatLayout[] = [];
+    const bb = src.header.bboxDbu as BboxDbu;
+    for (const t of tileGrid(bb, 4, 3)) {
+      const got = src.readTile(t.box, allLayers(src));
+      // Keep each polygon once: in the tile that owns the lower-left corner of its bbox.
+      const keep = new Set(polygonsOf(got, t));
+      tiles.push({ ...got, layers: got.layers.map((s) => filterSet(s, keep)) });
+    }
+    src.close();
+    const want = JSON.parse(execFileSync(py, [script, file], { encoding: 'utf8' })) as { layer: number; datatype: number; polygons: number; area: number }[];
+    for (const g of want) {
+      const count = tiles.reduce((n, t) => n + (t.layers.find((s) => s.layer === g.layer && s.datatype === g.datatype)?.count ?? 0), 0);
+      const area = tiles.reduce((a, t) => a + summedArea(t, g.layer, g.datatype), 0);
+      expect(count, `layer ${g.layer}/${g.datatype} polygon count (gdspy)`).toBe(g.polygons);
+      // gdspy keeps unsnapped float vertices of rotated instances; ours are snapped to the dbu grid (≤ 0.5 dbu per vertex).
+      expect(Math.abs(area - g.area) / g.area, `layer ${g.layer}/${g.datatype} area ${area} vs gdspy ${g.area}`).toBeLessThan(2e-4);
+    }
+    expect(want.length).toBe(src.header.layers.length);
+  });
+});
+
+function filterSet(s: FlatLayout['layers'][number], keep: Set<string>): FlatLayout['layers'][number] {
+  const coords: number[] = [];
+  const offsets = [0];
+  for (let p = 0; p < s.count; p++) {
+    const one = { ...s, coords: s.coords.slice(2 * (s.offsets[p] as number), 2 * (s.offsets[p + 1] as number)), offsets: Uint32Array.of(0, (s.offsets[p + 1] as number) - (s.offsets[p] as number)), count: 1 };
+    if (!keep.has(polygonsOf({ layers: [one] } as FlatLayout)[0] as string)) continue;
+    coords.push(...one.coords);
+    offsets.push(coords.length / 2);
+  }
+  return { ...s, coords: Float64Array.from(coords), offsets: Uint32Array.from(offsets), count: offsets.length - 1 };
+}
+
