@@ -8,6 +8,10 @@ import { CellShapesSink, GdsiiParser } from './gdsii-parser';
 import { Rec } from './gdsii-records';
 import { newCell, type CellDef } from './library';
 
+/** Bytes read ahead per element (most elements are shorter), and the largest gap read through rather than skipped. */
+const TYPICAL = 1024;
+const GAP = 8192;
+
 export class ElementReader {
   private readonly win: Uint8Array;
   private ws = 0;
@@ -24,13 +28,26 @@ export class ElementReader {
   decode(name: string, offsets: ArrayLike<number>): CellDef {
     const cell = newCell(name);
     const parser = GdsiiParser.elementDecoder(cell, new CellShapesSink());
-    for (let k = 0; k < offsets.length; k++) this.element(parser, offsets[k] as number);
+    for (let k = 0; k < offsets.length; k++) {
+      const at = offsets[k] as number;
+      if (at < this.ws || at + TYPICAL > this.we) {
+        // Read only the run of wanted elements that follow closely, not a whole window per jump.
+        let end = at + TYPICAL;
+        for (let q = k + 1; q < offsets.length; q++) {
+          const next = offsets[q] as number;
+          if (next > end + GAP || next + TYPICAL - at > this.win.length) break;
+          end = next + TYPICAL;
+        }
+        this.load(at, end - at);
+      }
+      this.element(parser, at);
+    }
     this.elementsDecoded += offsets.length;
     return cell;
   }
 
-  private load(at: number): void {
-    const n = readSync(this.fd, this.win, 0, Math.min(this.win.length, this.fileSize - at), at);
+  private load(at: number, len = this.win.length): void {
+    const n = readSync(this.fd, this.win, 0, Math.max(0, Math.min(len, this.win.length, this.fileSize - at)), at);
     this.ws = at;
     this.we = at + n;
     this.bytesRead += n;

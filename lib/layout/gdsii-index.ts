@@ -6,13 +6,14 @@
  *
  *   byte offset (float64, 8 bytes) + outward-rounded local bbox (4 × int32, 16 bytes) = 24 bytes per element,
  *
- * plus, for lists longer than GRID_MIN, a grid of buckets (element centres) with each bucket's bbox (≈ 1 byte per
- * element) so a tile tests buckets first and reads only the elements it needs. Geometry is read back by position.
+ * kept in the fixed-size chunks they were collected in (no copy when the pass ends, so the peak is the final
+ * size), plus, for lists longer than GRID_MIN, a grid of buckets (element centres): the element order by bucket
+ * (4 bytes per element) and each bucket's bbox (≈ 1 byte per element), so a tile tests buckets first and reads only
+ * the elements it needs. Geometry is read back by position.
  */
 import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import { LayoutReadError } from './errors';
 import { GdsiiParser, type ElementSink } from './gdsii-parser';
-import { GrowF64, GrowI32 } from './grow-buffer';
 import { bottomUpOrder, cellTotals, checkMissingCells, chooseTopCell, type CellTotals } from './hierarchy';
 import { layerKey, type CellDef, type GdsLibrary } from './library';
 
@@ -23,7 +24,12 @@ const PER_BUCKET = 32;
 const I32_MIN = -2147483648;
 const I32_MAX = 2147483647;
 
-/** One cell's own polygon elements (BOUNDARY, BOX, positive-width PATH) on one layer/datatype. */
+/** Elements per storage chunk: lists grow by whole chunks, never by copying, and stay in them. */
+const CHUNK_BITS = 15;
+const CHUNK = 1 << CHUNK_BITS;
+const MASK = CHUNK - 1;
+
+/** One cell's own polygon elements (BOUNDARY, BOX, positive-width PATH) on one layer/datatype, in file order. */
 export interface ElementList {
   key: number;
   layer: number;
@@ -31,15 +37,17 @@ export interface ElementList {
   count: number;
   /** Flattened point count of these elements (as the whole-file reader stores them). */
   points: number;
-  /** Element start bytes, grouped by bucket (file order inside a bucket). */
-  offsets: Float64Array;
-  /** Local bbox per element [x0, y0, x1, y1], rounded outward to int32 (int32 limits mean "unbounded"). */
-  boxes: Int32Array;
+  /** Element i: start byte offsetChunks[i >> 15][i & 32767]. */
+  offsetChunks: Float64Array[];
+  /** Element i: local bbox [x0, y0, x1, y1] at boxChunks[i >> 15][4·(i & 32767)…], rounded outward to int32 (int32 limits mean "unbounded"). */
+  boxChunks: Int32Array[];
   /** Exact (float) bbox of every vertex of the list. */
   exact: Float64Array;
-  /** Bucket grid: elements of bucket k are [starts[k], starts[k+1]); boxes[4k..4k+4) their union. */
-  grid: { starts: Uint32Array; boxes: Float64Array } | null;
+  /** Bucket grid: bucket k holds elements order[starts[k]..starts[k+1]) (file order), boxes[4k..4k+4) their union. */
+  grid: { starts: Uint32Array; order: Uint32Array; boxes: Float64Array } | null;
 }
+
+export const elementOffset = (l: ElementList, i: number): number => l.offsetChunks[i >> CHUNK_BITS]![i & MASK] as number;
 
 export interface IndexedCell {
   def: CellDef;
@@ -64,8 +72,9 @@ interface ListBuilder {
   layer: number;
   datatype: number;
   points: number;
-  offsets: GrowF64;
-  boxes: GrowI32;
+  count: number;
+  offsets: Float64Array[];
+  boxes: Int32Array[];
   exact: [number, number, number, number];
 }
 
@@ -83,7 +92,7 @@ class IndexSink implements ElementSink {
       if (!lists) this.byCell.set(cell, (lists = new Map()));
       const key = layerKey(layer, datatype);
       list = lists.get(key) ?? null;
-      if (!list) lists.set(key, (list = { key, layer, datatype, points: 0, offsets: new GrowF64(16), boxes: new GrowI32(64), exact: [Infinity, Infinity, -Infinity, -Infinity] }));
+      if (!list) lists.set(key, (list = { key, layer, datatype, points: 0, count: 0, offsets: [], boxes: [], exact: [Infinity, Infinity, -Infinity, -Infinity] }));
       this.lastCell = cell;
       this.lastList = list;
     }
@@ -101,22 +110,47 @@ class IndexSink implements ElementSink {
     if (x1 > e[2]) e[2] = x1;
     if (y1 > e[3]) e[3] = y1;
     list.points += n >> 1;
-    const offs = list.offsets.reserve(1);
-    offs[list.offsets.length++] = offset;
-    list.boxes.push4(lo(x0), lo(y0), hi(x1), hi(y1));
+    const i = list.count & (CHUNK - 1);
+    if (i === 0) {
+      // Small lists (most cells) start small; later chunks are full size.
+      const size = list.count === 0 ? 16 : CHUNK;
+      list.offsets.push(new Float64Array(size));
+      list.boxes.push(new Int32Array(4 * size));
+    } else if (i === list.offsets[list.offsets.length - 1]!.length) {
+      // First chunk outgrew its small start: widen it to a full chunk.
+      const o = new Float64Array(CHUNK);
+      o.set(list.offsets[0]!);
+      list.offsets[0] = o;
+      const b = new Int32Array(4 * CHUNK);
+      b.set(list.boxes[0]!);
+      list.boxes[0] = b;
+    }
+    const c = list.count >> CHUNK_BITS;
+    list.offsets[c]![i] = offset;
+    const bx = list.boxes[c]!;
+    bx[4 * i] = lo(x0);
+    bx[4 * i + 1] = lo(y0);
+    bx[4 * i + 2] = hi(x1);
+    bx[4 * i + 3] = hi(y1);
+    list.count++;
   }
 }
 
 const lo = (v: number) => (v > I32_MIN ? Math.max(I32_MIN, Math.floor(v)) : I32_MIN);
 const hi = (v: number) => (v < I32_MAX ? Math.min(I32_MAX, Math.ceil(v)) : I32_MAX);
 
-/** Group elements into a grid of buckets by bbox centre (counting sort, stable: file order kept per bucket). */
+/** Trim the last chunk and, for long lists, group the elements into a grid of buckets by bbox centre. */
 function buildList(b: ListBuilder): ElementList {
-  const count = b.offsets.length;
-  let offsets = b.offsets.data.slice(0, count);
-  let boxes = b.boxes.data.slice(0, 4 * count);
-  const base = { key: b.key, layer: b.layer, datatype: b.datatype, count, points: b.points, exact: Float64Array.from(b.exact) };
-  if (count <= GRID_MIN) return { ...base, offsets, boxes, grid: null };
+  const count = b.count;
+  const last = b.offsets.length - 1;
+  const used = count - (last << CHUNK_BITS);
+  if (last >= 0 && used < (b.offsets[last] as Float64Array).length) {
+    b.offsets[last] = (b.offsets[last] as Float64Array).slice(0, used);
+    b.boxes[last] = (b.boxes[last] as Int32Array).slice(0, 4 * used);
+  }
+  const list: ElementList = { key: b.key, layer: b.layer, datatype: b.datatype, count, points: b.points, offsetChunks: b.offsets, boxChunks: b.boxes, exact: Float64Array.from(b.exact), grid: null };
+  if (count <= GRID_MIN) return list;
+  const boxAt = (i: number, q: number) => b.boxes[i >> CHUNK_BITS]![4 * (i & MASK) + q] as number;
   const [ex0, ey0, ex1, ey1] = b.exact;
   const g = Math.max(1, Math.ceil(Math.sqrt(count / PER_BUCKET)));
   const sx = g / Math.max(1, ex1 - ex0);
@@ -124,33 +158,28 @@ function buildList(b: ListBuilder): ElementList {
   const bucket = new Uint32Array(count);
   const starts = new Uint32Array(g * g + 1);
   for (let i = 0; i < count; i++) {
-    const cx = ((boxes[4 * i] as number) + (boxes[4 * i + 2] as number)) / 2;
-    const cy = ((boxes[4 * i + 1] as number) + (boxes[4 * i + 3] as number)) / 2;
-    const bx = Math.min(g - 1, Math.max(0, Math.floor((cx - ex0) * sx)));
-    const by = Math.min(g - 1, Math.max(0, Math.floor((cy - ey0) * sy)));
+    const bx = Math.min(g - 1, Math.max(0, Math.floor(((boxAt(i, 0) + boxAt(i, 2)) / 2 - ex0) * sx)));
+    const by = Math.min(g - 1, Math.max(0, Math.floor(((boxAt(i, 1) + boxAt(i, 3)) / 2 - ey0) * sy)));
     const k = by * g + bx;
     bucket[i] = k;
     starts[k + 1]!++;
   }
   for (let k = 0; k < g * g; k++) starts[k + 1]! += starts[k] as number;
   const fill = starts.slice(0, g * g);
-  const o2 = new Float64Array(count);
-  const b2 = new Int32Array(4 * count);
   const bb = new Float64Array(4 * g * g);
   for (let k = 0; k < g * g; k++) bb.set([Infinity, Infinity, -Infinity, -Infinity], 4 * k);
+  const order = new Uint32Array(count); // counting sort by bucket, stable: file order inside a bucket
   for (let i = 0; i < count; i++) {
     const k = bucket[i] as number;
-    const j = fill[k]!++;
-    o2[j] = offsets[i] as number;
-    for (let q = 0; q < 4; q++) b2[4 * j + q] = boxes[4 * i + q] as number;
-    if ((boxes[4 * i] as number) < (bb[4 * k] as number)) bb[4 * k] = boxes[4 * i] as number;
-    if ((boxes[4 * i + 1] as number) < (bb[4 * k + 1] as number)) bb[4 * k + 1] = boxes[4 * i + 1] as number;
-    if ((boxes[4 * i + 2] as number) > (bb[4 * k + 2] as number)) bb[4 * k + 2] = boxes[4 * i + 2] as number;
-    if ((boxes[4 * i + 3] as number) > (bb[4 * k + 3] as number)) bb[4 * k + 3] = boxes[4 * i + 3] as number;
+    order[fill[k]!++] = i;
+    const x0 = boxAt(i, 0), y0 = boxAt(i, 1), x1 = boxAt(i, 2), y1 = boxAt(i, 3);
+    if (x0 < (bb[4 * k] as number)) bb[4 * k] = x0;
+    if (y0 < (bb[4 * k + 1] as number)) bb[4 * k + 1] = y0;
+    if (x1 > (bb[4 * k + 2] as number)) bb[4 * k + 2] = x1;
+    if (y1 > (bb[4 * k + 3] as number)) bb[4 * k + 3] = y1;
   }
-  offsets = o2;
-  boxes = b2;
-  return { ...base, offsets, boxes, grid: { starts, boxes: bb } };
+  list.grid = { starts, order, boxes: bb };
+  return list;
 }
 
 export interface IndexOptions {
@@ -191,6 +220,7 @@ export function indexGdsiiFile(path: string, opts: IndexOptions = {}): GdsiiInde
     const cells = lib.cells.map((def): IndexedCell => {
       const builders = sink.byCell.get(def);
       const lists = builders ? [...builders.values()].sort((a, b) => a.key - b.key).map(buildList) : [];
+      sink.byCell.delete(def); // let the chunks go before the next cell's lists are built
       return { def, lists, elements: lists.reduce((n, l) => n + l.count, 0) };
     });
     sink.byCell.clear();
@@ -211,25 +241,23 @@ export function indexGdsiiFile(path: string, opts: IndexOptions = {}): GdsiiInde
 export function elementsMeeting(
   list: ElementList, t: { a: number; b: number; c: number; d: number; tx: number; ty: number }, box: readonly number[], out: number[],
 ): void {
-  const scan = (from: number, to: number, boxes: ArrayLike<number>, push: boolean): boolean => {
-    for (let i = from; i < to; i++) {
-      if (placedBoxMeets(t, boxes[4 * i] as number, boxes[4 * i + 1] as number, boxes[4 * i + 2] as number, boxes[4 * i + 3] as number, box)) {
-        if (!push) return true;
-        out.push(i);
-      }
-    }
-    return false;
+  const chunks = list.boxChunks;
+  const test = (i: number) => {
+    const bc = chunks[i >> CHUNK_BITS] as Int32Array;
+    const q = 4 * (i & MASK);
+    if (placedBoxMeets(t, bc[q] as number, bc[q + 1] as number, bc[q + 2] as number, bc[q + 3] as number, box)) out.push(i);
   };
   const grid = list.grid;
   if (!grid) {
-    scan(0, list.count, list.boxes, true);
+    for (let i = 0; i < list.count; i++) test(i);
     return;
   }
   const nb = grid.starts.length - 1;
+  const bb = grid.boxes;
   for (let k = 0; k < nb; k++) {
     const s = grid.starts[k] as number, e = grid.starts[k + 1] as number;
-    if (s === e) continue;
-    if (scan(k, k + 1, grid.boxes, false)) scan(s, e, list.boxes, true);
+    if (s === e || !placedBoxMeets(t, bb[4 * k] as number, bb[4 * k + 1] as number, bb[4 * k + 2] as number, bb[4 * k + 3] as number, box)) continue;
+    for (let j = s; j < e; j++) test(grid.order[j] as number);
   }
 }
 
@@ -241,4 +269,19 @@ export function placedBoxMeets(
   const X = t.a * cx + t.b * cy + t.tx, Y = t.c * cx + t.d * cy + t.ty;
   const ex = Math.abs(t.a) * hx + Math.abs(t.b) * hy, ey = Math.abs(t.c) * hx + Math.abs(t.d) * hy;
   return X + ex >= (box[0] as number) && X - ex <= (box[2] as number) && Y + ey >= (box[1] as number) && Y - ey <= (box[3] as number);
+}
+
+/** Bytes held by the element lists of an index (offsets, boxes, buckets), for benchmarks and reports. */
+export function indexBytes(index: GdsiiIndex): { bytes: number; elements: number } {
+  let bytes = 0;
+  let elements = 0;
+  for (const c of index.cells) {
+    for (const l of c.lists) {
+      elements += l.count;
+      for (const c of l.offsetChunks) bytes += c.byteLength;
+      for (const c of l.boxChunks) bytes += c.byteLength;
+      bytes += l.exact.byteLength + (l.grid ? l.grid.starts.byteLength + l.grid.order.byteLength + l.grid.boxes.byteLength : 0);
+    }
+  }
+  return { bytes, elements };
 }

@@ -20,7 +20,7 @@ import { polygonSetsBbox, type BboxDbu } from './bbox';
 import { cellBounds, exactPlacement, growSnapped, type CellBounds } from './cell-bounds';
 import { ElementReader } from './element-reader';
 import { LayoutReadError } from './errors';
-import { elementsMeeting, indexGdsiiFile, type GdsiiIndex, type IndexOptions, type IndexedCell } from './gdsii-index';
+import { elementOffset, elementsMeeting, indexGdsiiFile, type GdsiiIndex, type IndexOptions, type IndexedCell } from './gdsii-index';
 import { GrowF64, GrowU32 } from './grow-buffer';
 import { layerKey, type CellDef } from './library';
 import { placeAbsolutePath, placeShapes } from './place';
@@ -370,8 +370,8 @@ function sortedOffsets(lists: IndexedCell['lists'], pick: number[][] | null): Fl
   const out = new Float64Array(n);
   let w = 0;
   lists.forEach((l, i) => {
-    if (pick) for (const k of pick[i] as number[]) out[w++] = l.offsets[k] as number;
-    else out.set(l.offsets, (w += l.count) - l.count);
+    if (pick) for (const k of pick[i] as number[]) out[w++] = elementOffset(l, k);
+    else for (let k = 0; k < l.count; k++) out[w++] = elementOffset(l, k);
   });
   return out.sort();
 }

@@ -167,6 +167,13 @@ export class GdsiiWriter {
     return this;
   }
 
+  /** Hand over the bytes written so far and start an empty buffer: lets a caller stream a large file to disk. */
+  drain(): Uint8Array {
+    const out = this.buf.slice(0, this.len);
+    this.len = 0;
+    return out;
+  }
+
   finish(): Uint8Array {
     this.record(Rec.ENDLIB, DataType.none);
     return this.buf.slice(0, this.len);

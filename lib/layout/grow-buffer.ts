@@ -46,23 +46,3 @@ export class GrowU32 {
     return this.data.subarray(0, this.length);
   }
 }
-
-export class GrowI32 {
-  data: Int32Array;
-  length = 0;
-  constructor(capacity = 16) {
-    this.data = new Int32Array(Math.max(4, capacity));
-  }
-  push4(a: number, b: number, c: number, d: number): void {
-    if (this.length + 4 > this.data.length) {
-      const next = new Int32Array(this.data.length * 2);
-      next.set(this.data);
-      this.data = next;
-    }
-    const d0 = this.data;
-    d0[this.length++] = a;
-    d0[this.length++] = b;
-    d0[this.length++] = c;
-    d0[this.length++] = d;
-  }
-}
