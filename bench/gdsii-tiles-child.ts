@@ -28,11 +28,13 @@ for (let j = 0; j < n; j++) {
     polygons += tile.layers.reduce((s, l) => s + l.count, 0);
   }
 }
+const abBeforeGc = process.memoryUsage().arrayBuffers;
+(globalThis as { gc?: () => void }).gc?.();
 src.close();
 times.sort((a, b) => a - b);
 console.log(JSON.stringify({
   fileBytes: size, elements, headerPolygons: src.header.layers.reduce((s, l) => s + l.polygons, 0),
   indexS, indexBytes: bytes, rssBefore: rss0, peakRssAfterIndex: rssIndex, peakRssAfterTiles: process.resourceUsage().maxRSS * 1024,
   tiles: n * n, tilePolygons: polygons, tileMsMedian: times[times.length >> 1], tileMsMax: times[times.length - 1], tilesS: times.reduce((a, b) => a + b, 0) / 1000,
-  stats: src.stats(), heapAfterTiles: process.memoryUsage().heapUsed, arrayBuffersAfterTiles: process.memoryUsage().arrayBuffers,
+  stats: src.stats(), heapAfterTiles: process.memoryUsage().heapUsed, arrayBuffersAfterTiles: abBeforeGc, arrayBuffersAfterGc: process.memoryUsage().arrayBuffers,
 }));

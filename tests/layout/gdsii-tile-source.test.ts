@@ -16,7 +16,7 @@ import { LayoutReadError } from '@/lib/layout/errors';
 import { GdsiiWriter } from '@/lib/layout/gdsii-writer';
 import { openGdsiiTileSource } from '@/lib/layout/gdsii-tile-source';
 import { readLayoutFile } from '@/lib/layout/read';
-import { inMemoryTileSource } from '@/lib/layout/tile-source';
+import { inMemoryTileSource, type TileSourceHeader } from '@/lib/layout/tile-source';
 import type { BboxDbu } from '@/lib/layout/bbox';
 import type { FlatLayout } from '@/lib/layout/types';
 import { summedArea } from './helpers';
@@ -121,9 +121,14 @@ describe('openGdsiiTileSource', () => {
   });
 });
 
+const limits = { maxPolygons: 200_000, maxPoints: 2_000_000 };
+let lastWhole: FlatLayout | null = null;
+let lastHeader: TileSourceHeader | null = null;
+
 async function wholeOutcome(file: string): Promise<string> {
+  lastWhole = null;
   try {
-    await readLayoutFile(file, { maxPolygons: 200_000, maxPoints: 2_000_000 });
+    lastWhole = await readLayoutFile(file, limits);
     return 'ok';
   } catch (e) {
     if (e instanceof LayoutReadError) return `${e.code}@${e.offset}`;
@@ -132,8 +137,11 @@ async function wholeOutcome(file: string): Promise<string> {
 }
 
 function tileOutcome(file: string): string {
+  lastHeader = null;
   try {
-    openGdsiiTileSource(file, { maxLayoutPolygons: 200_000, maxLayoutPoints: 2_000_000 }).close();
+    const src = openGdsiiTileSource(file, { maxLayoutPolygons: limits.maxPolygons, maxLayoutPoints: limits.maxPoints });
+    lastHeader = src.header;
+    src.close();
     return 'ok';
   } catch (e) {
     if (e instanceof LayoutReadError) return `${e.code}@${e.offset}`;
@@ -167,14 +175,21 @@ describe('bad input', () => {
   it('agrees with the whole-file reader on 300 mutated files (fast-check, fixed seed)', async () => {
     const base = hierarchicalDie(5);
     let n = 0;
+    const seen = new Set<string>();
     await fc.assert(
       fc.asyncProperty(fc.array(mutation, { minLength: 1, maxLength: 3 }), async (muts) => {
         const f = join(dir, `mut-${n++ % 4}.gds`);
         writeFileSync(f, apply(base, muts));
-        expect(tileOutcome(f)).toBe(await wholeOutcome(f));
+        const whole = await wholeOutcome(f);
+        expect(tileOutcome(f)).toBe(whole);
+        if (lastWhole) expect(lastHeader).toEqual(inMemoryTileSource(lastWhole).header);
+        seen.add(whole.replace(/@.*/, ''));
       }),
       { seed: 20261203, numRuns: 300 },
     );
+    // The mutations reach both readable files and several kinds of error.
+    expect(seen.has('ok')).toBe(true);
+    expect(seen.size).toBeGreaterThanOrEqual(4);
   });
 });
 
