@@ -14,6 +14,7 @@ import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { LayoutReadError } from '@/lib/layout/errors';
 import { GdsiiWriter } from '@/lib/layout/gdsii-writer';
+import { cellBounds } from '@/lib/layout/cell-bounds';
 import { openGdsiiTileSource } from '@/lib/layout/gdsii-tile-source';
 import { readLayoutFile } from '@/lib/layout/read';
 import { inMemoryTileSource, type TileSourceHeader } from '@/lib/layout/tile-source';
@@ -94,6 +95,34 @@ describe('openGdsiiTileSource', () => {
     } finally {
       src.close();
     }
+  });
+
+  it('computes the header bbox without geometry when placements are exact, equal to the flatten at .5 outlines', async () => {
+    // Odd path widths put outline vertices on half dbu: snapping after reflection / rotation / magnification must
+    // come out as in the whole-file flatten (Math.round of the placed value, not a placed rounded value).
+    for (const [k, t] of [{}, { reflect: true }, { angleDeg: 90 }, { angleDeg: 180, reflect: true }, { mag: 2 }, { mag: 3, angleDeg: 270 }, { mag: 0.5 }].entries()) {
+      const w = new GdsiiWriter();
+      w.beginCell('TOP').sref('P', -7, 3, t).aref('P', 3, 2, [1000, 1000], [1000 + 3 * 555, 1000], [1000, 1000 + 2 * 333], t).endCell();
+      w.beginCell('P').path(1, 0, [0, 0, 101, 0, 101, 77], 5, { pathtype: 2 }).path(2, 0, [3, 3, 3, 40], 7).endCell();
+      const file = join(dir, `exact-${k}.gds`);
+      writeFileSync(file, w.finish());
+      const src = openGdsiiTileSource(file);
+      const whole = await readLayoutFile(file);
+      expect(src.header.bboxDbu, JSON.stringify(t)).toEqual(whole.bboxDbu);
+      // Unit magnification keeps half-dbu outlines exact; other magnifications are walked.
+      expect(cellBounds(src.index).exactOk[src.index.top], JSON.stringify(t)).toBe((t.mag ?? 1) === 1 ? 1 : 0);
+      src.close();
+    }
+    // Integer magnification over integer geometry stays exact.
+    const w = new GdsiiWriter();
+    w.beginCell('TOP').sref('R', 5, 5, { mag: 3, angleDeg: 90 }).aref('R', 4, 4, [0, 0], [400, 0], [0, 400], { mag: 2, reflect: true }).endCell();
+    w.beginCell('R').rect(1, 0, -3, -4, 17, 9).endCell();
+    const file = join(dir, 'exact-int.gds');
+    writeFileSync(file, w.finish());
+    const src = openGdsiiTileSource(file);
+    expect(src.header.bboxDbu).toEqual((await readLayoutFile(file)).bboxDbu);
+    expect(cellBounds(src.index).exactOk[src.index.top]).toBe(1);
+    src.close();
   });
 
   it('reads only the elements a tile needs from a large flat cell (bucket index)', async () => {
