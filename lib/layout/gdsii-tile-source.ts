@@ -43,6 +43,13 @@ export interface GdsiiTileSourceOptions extends IndexOptions {
 /** Cells with at most this many elements and points are decoded whole and cached. */
 const SMALL_ELEMENTS = 1024;
 const SMALL_POINTS = 1 << 16;
+/** Elements of a large cell decoded at once. */
+const BATCH = 16_384;
+
+interface WalkHooks {
+  subtree?: (c: number, t: Placement) => boolean;
+  ownLists?: (c: number, t: Placement) => boolean;
+}
 
 export interface GdsiiTileSource extends TileSource {
   readonly index: GdsiiIndex;
@@ -145,14 +152,23 @@ class Source implements GdsiiTileSource {
     };
   }
 
-  /** Bbox of everything flattened: exact subtrees from their boxes, the rest by walking. */
+  /**
+   * Bbox of everything flattened: exact subtrees from their boxes; elsewhere, own polygons under a Manhattan
+   * placement from their lists' exact boxes (snapping a Manhattan placement is monotone per coordinate, so the
+   * extreme vertices give the extremes), and only the rest (non-Manhattan placements) by reading geometry.
+   */
   private wholeBbox(): BboxDbu | null {
     const b = Float64Array.of(Infinity, Infinity, -Infinity, -Infinity);
     const { exact, exactOk } = this.bounds;
-    const shortcut = (c: number, t: Placement) => {
+    const subtree = (c: number, t: Placement) => {
       if (!exactOk[c] || !exactPlacement(t, exact[c] ?? null)) return false;
       const F = exact[c];
       if (F) growSnapped(b, F, t);
+      return true;
+    };
+    const ownLists = (c: number, t: Placement) => {
+      if (t.angleDeg % 90 !== 0) return false;
+      for (const l of (this.index.cells[c] as IndexedCell).lists) growSnapped(b, l.exact, t);
       return true;
     };
     this.walk(null, null, (_key, coords, from, to) => {
@@ -163,15 +179,16 @@ class Source implements GdsiiTileSource {
         if (y < (b[1] as number)) b[1] = y;
         if (y > (b[3] as number)) b[3] = y;
       }
-    }, shortcut);
+    }, { subtree, ownLists });
     return (b[0] as number) <= (b[2] as number) ? [b[0] as number, b[1] as number, b[2] as number, b[3] as number] : null;
   }
 
   /**
    * Visit every flattened polygon of layers `keys` (null: all) whose bbox meets `box` (null: everywhere).
-   * `shortcut(c, t)` may claim an instance of cell c placed by t (its subtree is then not visited).
+   * `hooks.subtree(c, t)` may claim an instance of cell c placed by t (its subtree is then not visited);
+   * `hooks.ownLists(c, t)` may claim the cell's own element lists (they are then not read; absolute paths still are).
    */
-  private walk(box: BboxDbu | null, keys: Set<number> | null, take: Take, shortcut?: (c: number, t: Placement) => boolean): void {
+  private walk(box: BboxDbu | null, keys: Set<number> | null, take: Take, hooks: WalkHooks = {}): void {
     const { index, bounds } = this;
     const cells = index.cells;
     const m = box ? 2 + 1e-9 * Math.max(...box.map(Math.abs)) : 0;
@@ -205,8 +222,8 @@ class Source implements GdsiiTileSource {
     };
     const wantTop = index.top;
     if (wantTop < 0 || !isRelevant(wantTop)) return;
-    if (shortcut?.(wantTop, IDENTITY)) return;
-    this.emitOwn(wantTop, IDENTITY, box, wide, keys, take);
+    if (hooks.subtree?.(wantTop, IDENTITY)) return;
+    this.emitOwn(wantTop, IDENTITY, box, wide, keys, take, hooks.ownLists);
 
     interface Frame { cell: number; t: Placement; r: number; shape: Placement | null; i: number; j: number; jEnd: number; cull: number[] | null }
     const stack: Frame[] = [{ cell: wantTop, t: IDENTITY, r: 0, shape: null, i: 0, j: 0, jEnd: -1, cull: null }];
@@ -280,8 +297,8 @@ class Source implements GdsiiTileSource {
         if (((work += 1) & 0xfff) === 0 && signal?.aborted) throw new LayoutReadError('aborted', 'reading was cancelled');
         const t = placeInstance(f.t, f.shape, ref, f.i, f.j, leaf ? leafT : { ...f.shape });
         f.j++;
-        if (shortcut?.(child, t)) continue;
-        this.emitOwn(child, t, box, wide, keys, take);
+        if (hooks.subtree?.(child, t)) continue;
+        this.emitOwn(child, t, box, wide, keys, take, hooks.ownLists);
         if (!leaf) {
           stack.push({ cell: child, t, r: 0, shape: null, i: 0, j: 0, jEnd: -1, cull: null });
           pushed = true;
@@ -296,14 +313,16 @@ class Source implements GdsiiTileSource {
   }
 
   /** Place cell c's own polygons on `keys` by t and hand those whose bbox meets `box` to `take`. */
-  private emitOwn(c: number, t: Placement, box: BboxDbu | null, wide: number[] | null, keys: Set<number> | null, take: Take): void {
+  private emitOwn(
+    c: number, t: Placement, box: BboxDbu | null, wide: number[] | null, keys: Set<number> | null, take: Take,
+    ownLists?: (c: number, t: Placement) => boolean,
+  ): void {
     const cell = this.index.cells[c] as IndexedCell;
     const lists = keys ? cell.lists.filter((l) => keys.has(l.key)) : cell.lists;
-    let decoded: CellDef | null = null;
-    if (lists.length > 0) {
+    if (lists.length > 0 && !ownLists?.(c, t)) {
       const points = cell.lists.reduce((n, l) => n + l.points, 0);
       if (cell.elements <= SMALL_ELEMENTS && points <= SMALL_POINTS) {
-        decoded = this.cache.get(c) ?? null;
+        let decoded = this.cache.get(c);
         if (!decoded) {
           decoded = this.reader.decode(cell.def.name, sortedOffsets(cell.lists, null));
           const budget = this.opts.cachePoints ?? 4_000_000;
@@ -314,23 +333,31 @@ class Source implements GdsiiTileSource {
           this.cache.set(c, decoded);
           this.cachedPoints += points;
         }
+        this.placeDecoded(decoded, t, box, keys, take);
       } else {
-        const pick: number[][] = lists.map((l) => {
-          const idx: number[] = [];
-          if (wide) elementsMeeting(l, t, wide, idx);
-          else for (let i = 0; i < l.count; i++) idx.push(i);
-          return idx;
-        });
-        if (pick.some((p) => p.length > 0)) decoded = this.reader.decode(cell.def.name, sortedOffsets(lists, pick));
-      }
-    }
-    if (decoded) {
-      for (const s of decoded.shapes) {
-        if (keys && !keys.has(s.key)) continue;
-        const np = s.starts.length, npts = s.coords.length >> 1;
-        this.reserve(npts, np);
-        placeShapes(s.coords.data, s.starts.data, np, npts, t, this.dst, this.offs, 0, 0);
-        for (let k = 0; k < np; k++) this.keep(s.key, this.offs[k] as number, k + 1 < np ? (this.offs[k + 1] as number) : npts, box, take);
+        // In batches, so a huge cell never has all its geometry in memory (and a tile's cap trips early).
+        const run = (offsets: Float64Array) => {
+          for (let k = 0; k < offsets.length; k += BATCH) {
+            this.placeDecoded(this.reader.decode(cell.def.name, offsets.subarray(k, k + BATCH)), t, box, keys, take);
+          }
+        };
+        if (wide) {
+          run(sortedOffsets(lists, lists.map((l) => {
+            const idx: number[] = [];
+            elementsMeeting(l, t, wide, idx);
+            return idx;
+          })));
+        } else {
+          // Everything (a walk without a box): list by list, each already in file order.
+          const batch = new Float64Array(BATCH);
+          for (const l of lists) {
+            for (let k = 0; k < l.count; k += BATCH) {
+              const n = Math.min(BATCH, l.count - k);
+              for (let q = 0; q < n; q++) batch[q] = elementOffset(l, k + q);
+              run(batch.subarray(0, n));
+            }
+          }
+        }
       }
     }
     for (const p of cell.def.absPaths) {
@@ -338,6 +365,16 @@ class Source implements GdsiiTileSource {
       this.reserve(p.points * 2 + 16, 1);
       const n = placeAbsolutePath(p, t, this.scratch, this.dst, 0);
       this.keep(p.key, 0, n, box, take);
+    }
+  }
+
+  private placeDecoded(decoded: CellDef, t: Placement, box: BboxDbu | null, keys: Set<number> | null, take: Take): void {
+    for (const s of decoded.shapes) {
+      if (keys && !keys.has(s.key)) continue;
+      const np = s.starts.length, npts = s.coords.length >> 1;
+      this.reserve(npts, np);
+      placeShapes(s.coords.data, s.starts.data, np, npts, t, this.dst, this.offs, 0, 0);
+      for (let k = 0; k < np; k++) this.keep(s.key, this.offs[k] as number, k + 1 < np ? (this.offs[k + 1] as number) : npts, box, take);
     }
   }
 
