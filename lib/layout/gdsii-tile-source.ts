@@ -15,7 +15,7 @@
  * Limits: one tile may hold at most `maxPolygons` polygons / `maxPoints` vertices (defaults as the whole-file
  * reader's layout limits); beyond that it fails with "too-large" before memory grows further.
  */
-import { closeSync, openSync } from 'node:fs';
+import { closeSync, fstatSync, openSync, statSync } from 'node:fs';
 import { polygonSetsBbox, type BboxDbu } from './bbox';
 import { cellBounds, exactPlacement, growSnapped, type CellBounds } from './cell-bounds';
 import { ElementReader } from './element-reader';
@@ -61,6 +61,7 @@ export interface GdsiiTileSource extends TileSource {
 type Take = (key: number, coords: Float64Array, from: number, to: number) => void;
 
 export function openGdsiiTileSource(path: string, opts: GdsiiTileSourceOptions = {}): GdsiiTileSource {
+  const before = statSync(path, { throwIfNoEntry: false });
   const index = indexGdsiiFile(path, opts);
   if (index.top >= 0) {
     const tp = index.totals.polygons[index.top] as number;
@@ -74,7 +75,9 @@ export function openGdsiiTileSource(path: string, opts: GdsiiTileSourceOptions =
   }
   const fd = openSync(path, 'r');
   try {
-    return new Source(index, fd, opts);
+    const now = fstatSync(fd);
+    if (!before || now.size !== before.size || now.mtimeMs !== before.mtimeMs) throw changed(path);
+    return new Source(index, fd, opts, now.mtimeMs);
   } catch (err) {
     closeSync(fd);
     throw err;
@@ -92,7 +95,7 @@ class Source implements GdsiiTileSource {
   private offs = new Uint32Array(64);
   private readonly scratch: number[] = [];
 
-  constructor(readonly index: GdsiiIndex, private readonly fd: number, private readonly opts: GdsiiTileSourceOptions) {
+  constructor(readonly index: GdsiiIndex, private readonly fd: number, private readonly opts: GdsiiTileSourceOptions, private readonly mtimeMs: number) {
     this.reader = new ElementReader(fd, index.fileSize);
     this.bounds = cellBounds(index);
     const lib = index.lib;
@@ -119,6 +122,9 @@ class Source implements GdsiiTileSource {
 
   readTile(box: BboxDbu, layers: { layer: number; datatype: number }[]): FlatLayout {
     if (this.closed) throw new LayoutReadError('io', `tile source for ${this.index.path} is closed`);
+    // Offsets are only valid for the bytes that were indexed.
+    const st = fstatSync(this.fd);
+    if (st.size !== this.index.fileSize || st.mtimeMs !== this.mtimeMs) throw changed(this.index.path);
     const maxPolygons = this.opts.maxPolygons ?? 25_000_000;
     const maxPoints = this.opts.maxPoints ?? 100_000_000;
     const out = new Map<number, { coords: GrowF64; starts: GrowU32 }>();
@@ -399,6 +405,8 @@ class Source implements GdsiiTileSource {
     if (this.offs.length < polygons + 1) this.offs = new Uint32Array(Math.max(polygons + 1, 2 * this.offs.length));
   }
 }
+
+const changed = (path: string) => new LayoutReadError('io', `${path} changed while it was being read tile by tile; open it again`);
 
 /** Start offsets of the chosen elements (`pick[i]`: indices into lists[i]; null: all), ascending. */
 function sortedOffsets(lists: IndexedCell['lists'], pick: number[][] | null): Float64Array {

@@ -17,6 +17,7 @@ import { GdsiiWriter } from '@/lib/layout/gdsii-writer';
 import { cellBounds } from '@/lib/layout/cell-bounds';
 import { openGdsiiTileSource } from '@/lib/layout/gdsii-tile-source';
 import { readLayoutFile } from '@/lib/layout/read';
+import { openLayoutTileSource } from '@/lib/layout/open-tile-source';
 import { inMemoryTileSource, type TileSourceHeader } from '@/lib/layout/tile-source';
 import type { BboxDbu } from '@/lib/layout/bbox';
 import type { FlatLayout } from '@/lib/layout/types';
@@ -179,6 +180,31 @@ function tileOutcome(file: string): string {
     throw e;
   }
 }
+
+describe('openLayoutTileSource', () => {
+  it('indexes GDSII on disk and serves a polygon CSV from memory, with the whole-file header either way', async () => {
+    const gds = await openLayoutTileSource(join(dir, 'hier.gds'));
+    expect('index' in gds).toBe(true);
+    expect(gds.header).toEqual(inMemoryTileSource(await readLayoutFile(join(dir, 'hier.gds'))).header);
+    gds.close();
+    const csvFile = join(root, 'samples/mems-die-excerpt.csv');
+    const csv = await openLayoutTileSource(csvFile);
+    expect('index' in csv).toBe(false);
+    expect(csv.header).toEqual(inMemoryTileSource(await readLayoutFile(csvFile)).header);
+    const png = join(dir, 'image.gds');
+    writeFileSync(png, Uint8Array.from([0x89, 0x50, 0x4e, 0x47, ...new Array(80).fill(7)]));
+    await expect(openLayoutTileSource(png)).rejects.toMatchObject({ code: 'not-gdsii', offset: 0 });
+  });
+
+  it('refuses to read tiles once the file has changed after indexing', () => {
+    const file = join(dir, 'changing.gds');
+    writeFileSync(file, flatDie(300));
+    const src = openGdsiiTileSource(file);
+    writeFileSync(file, flatDie(400));
+    expect(() => src.readTile([0, 0, 1000, 1000], allLayers(src))).toThrow(/changed while it was being read/);
+    src.close();
+  });
+});
 
 describe('bad input', () => {
   it('gives the whole-file reader\'s error code and byte offset for hand-made faults', async () => {
