@@ -76,7 +76,8 @@ export class ElementReader {
           return;
         }
       }
-      if (attempt === 0 && at !== this.ws) this.load(at);
+      // Not complete: read a whole window from the element's start (the run read ahead only ~1 kB per element).
+      if (attempt === 0 && (at !== this.ws || this.we - this.ws < this.win.length)) this.load(at);
       else break;
     }
     // Longer than the window: record by record.

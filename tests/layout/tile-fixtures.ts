@@ -36,6 +36,12 @@ export function hierarchicalDie(seed = 7): Uint8Array {
   w.path(3, 1, [10_000, 10_000, 60_000, 43_333], 777, { pathtype: 0 }); // diagonal
   w.box(4, 0, 5_000, 5_000, 9_000, 8_000);
   w.text(9, 0, 100, 100, 'KESTREL-3');
+  // Large polygons: XY over two records (10 000 points) and an element longer than the reader's window (40 000).
+  for (const [n, cx, cy, rad] of [[10_000, 330_000, 120_000, 9_000], [40_000, 60_000, 250_000, 30_000]] as const) {
+    const ring: number[] = [];
+    for (let k = 0; k < n; k++) ring.push(Math.round(cx + rad * Math.cos((2 * Math.PI * k) / n)), Math.round(cy + rad * Math.sin((2 * Math.PI * k) / n)));
+    w.boundary(11, 0, ring);
+  }
   w.sref('GYRO', 50_000, 50_000);
   w.sref('GYRO', 200_000, 60_000, { angleDeg: 30 });
   w.sref('GYRO', 300_000, 200_000, { angleDeg: 90, reflect: true });
