@@ -4,12 +4,13 @@
  * LayoutReadError (code, byte offset). What stays in memory per cell: its references and absolute-width paths (as
  * the whole-file reader keeps them), and per layer/datatype a list of its polygon elements, each as
  *
- *   byte offset (float64, 8 bytes) + outward-rounded local bbox (4 × int32, 16 bytes) = 24 bytes per element,
+ *   byte offset (uint32 half-offset below 8 GiB, else float64: 4 or 8 bytes)
+ *   + outward-rounded local bbox (4 × int32, 16 bytes)                        = 20 (24) bytes per element,
  *
- * kept in the fixed-size chunks they were collected in (no copy when the pass ends, so the peak is the final
- * size), plus, for lists longer than GRID_MIN, a grid of buckets (element centres): the element order by bucket
- * (4 bytes per element) and each bucket's bbox (≈ 1 byte per element), so a tile tests buckets first and reads only
- * the elements it needs. Geometry is read back by position.
+ * kept in the fixed-size chunks they were collected in (no second copy when the pass ends), plus, for lists
+ * longer than GRID_MIN, a grid of buckets by element centre — elements are reordered by bucket in place, and each
+ * bucket keeps its bbox (≈ 1 byte per element) — so a tile tests buckets first and reads only the elements it
+ * needs. Geometry is read back by position.
  */
 import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import { LayoutReadError } from './errors';
@@ -29,7 +30,7 @@ const CHUNK_BITS = 15;
 const CHUNK = 1 << CHUNK_BITS;
 const MASK = CHUNK - 1;
 
-/** One cell's own polygon elements (BOUNDARY, BOX, positive-width PATH) on one layer/datatype, in file order. */
+/** One cell's own polygon elements (BOUNDARY, BOX, positive-width PATH) on one layer/datatype (file order; long lists grouped by bucket). */
 export interface ElementList {
   key: number;
   layer: number;
@@ -37,17 +38,21 @@ export interface ElementList {
   count: number;
   /** Flattened point count of these elements (as the whole-file reader stores them). */
   points: number;
-  /** Element i: start byte offsetChunks[i >> 15][i & 32767]. */
-  offsetChunks: Float64Array[];
+  /**
+   * Element i starts at byte offsetChunks[i >> 15][i & 32767] × offsetScale. GDSII records have even lengths, so
+   * every element starts at an even byte: files below 8 GiB store half the offset in a uint32 (scale 2).
+   */
+  offsetChunks: (Uint32Array | Float64Array)[];
+  offsetScale: number;
   /** Element i: local bbox [x0, y0, x1, y1] at boxChunks[i >> 15][4·(i & 32767)…], rounded outward to int32 (int32 limits mean "unbounded"). */
   boxChunks: Int32Array[];
   /** Exact (float) bbox of every vertex of the list. */
   exact: Float64Array;
-  /** Bucket grid: bucket k holds elements order[starts[k]..starts[k+1]) (file order), boxes[4k..4k+4) their union. */
-  grid: { starts: Uint32Array; order: Uint32Array; boxes: Float64Array } | null;
+  /** Bucket grid: bucket k holds elements starts[k]..starts[k+1] (file order inside), boxes[4k..4k+4) their union. */
+  grid: { starts: Uint32Array; boxes: Float64Array } | null;
 }
 
-export const elementOffset = (l: ElementList, i: number): number => l.offsetChunks[i >> CHUNK_BITS]![i & MASK] as number;
+export const elementOffset = (l: ElementList, i: number): number => (l.offsetChunks[i >> CHUNK_BITS]![i & MASK] as number) * l.offsetScale;
 
 export interface IndexedCell {
   def: CellDef;
@@ -139,8 +144,20 @@ class IndexSink implements ElementSink {
 const lo = (v: number) => (v > I32_MIN ? Math.max(I32_MIN, Math.floor(v)) : I32_MIN);
 const hi = (v: number) => (v < I32_MAX ? Math.min(I32_MAX, Math.ceil(v)) : I32_MAX);
 
-/** Trim the last chunk and, for long lists, group the elements into a grid of buckets by bbox centre. */
-function buildList(b: ListBuilder): ElementList {
+const DONE = 0xffffffff;
+
+/** Uint32 copy of a chunk of even offsets, halved. */
+function halve(c: Float64Array): Uint32Array {
+  const out = new Uint32Array(c.length);
+  for (let i = 0; i < c.length; i++) out[i] = (c[i] as number) / 2;
+  return out;
+}
+
+/**
+ * Trim the last chunk, narrow the offsets when the file allows, and for long lists sort the elements into a grid
+ * of buckets by bbox centre — in place (cycle-following permutation), so no second copy of the list exists.
+ */
+function buildList(b: ListBuilder, halfOffsets: boolean): ElementList {
   const count = b.count;
   const last = b.offsets.length - 1;
   const used = count - (last << CHUNK_BITS);
@@ -148,37 +165,64 @@ function buildList(b: ListBuilder): ElementList {
     b.offsets[last] = (b.offsets[last] as Float64Array).slice(0, used);
     b.boxes[last] = (b.boxes[last] as Int32Array).slice(0, 4 * used);
   }
-  const list: ElementList = { key: b.key, layer: b.layer, datatype: b.datatype, count, points: b.points, offsetChunks: b.offsets, boxChunks: b.boxes, exact: Float64Array.from(b.exact), grid: null };
+  const offsets: (Uint32Array | Float64Array)[] = halfOffsets ? b.offsets.map(halve) : b.offsets;
+  b.offsets = [];
+  const boxes = b.boxes;
+  const list: ElementList = {
+    key: b.key, layer: b.layer, datatype: b.datatype, count, points: b.points,
+    offsetChunks: offsets, offsetScale: halfOffsets ? 2 : 1, boxChunks: boxes, exact: Float64Array.from(b.exact), grid: null,
+  };
   if (count <= GRID_MIN) return list;
-  const boxAt = (i: number, q: number) => b.boxes[i >> CHUNK_BITS]![4 * (i & MASK) + q] as number;
+  const boxAt = (i: number, q: number) => boxes[i >> CHUNK_BITS]![4 * (i & MASK) + q] as number;
   const [ex0, ey0, ex1, ey1] = b.exact;
   const g = Math.max(1, Math.ceil(Math.sqrt(count / PER_BUCKET)));
   const sx = g / Math.max(1, ex1 - ex0);
   const sy = g / Math.max(1, ey1 - ey0);
-  const bucket = new Uint32Array(count);
+  // dest[i]: first the bucket of element i, then (counting sort, stable) its position in bucket order.
+  const dest = new Uint32Array(count);
   const starts = new Uint32Array(g * g + 1);
   for (let i = 0; i < count; i++) {
     const bx = Math.min(g - 1, Math.max(0, Math.floor(((boxAt(i, 0) + boxAt(i, 2)) / 2 - ex0) * sx)));
     const by = Math.min(g - 1, Math.max(0, Math.floor(((boxAt(i, 1) + boxAt(i, 3)) / 2 - ey0) * sy)));
     const k = by * g + bx;
-    bucket[i] = k;
+    dest[i] = k;
     starts[k + 1]!++;
   }
   for (let k = 0; k < g * g; k++) starts[k + 1]! += starts[k] as number;
   const fill = starts.slice(0, g * g);
   const bb = new Float64Array(4 * g * g);
   for (let k = 0; k < g * g; k++) bb.set([Infinity, Infinity, -Infinity, -Infinity], 4 * k);
-  const order = new Uint32Array(count); // counting sort by bucket, stable: file order inside a bucket
   for (let i = 0; i < count; i++) {
-    const k = bucket[i] as number;
-    order[fill[k]!++] = i;
+    const k = dest[i] as number;
+    dest[i] = fill[k]!++;
     const x0 = boxAt(i, 0), y0 = boxAt(i, 1), x1 = boxAt(i, 2), y1 = boxAt(i, 3);
     if (x0 < (bb[4 * k] as number)) bb[4 * k] = x0;
     if (y0 < (bb[4 * k + 1] as number)) bb[4 * k + 1] = y0;
     if (x1 > (bb[4 * k + 2] as number)) bb[4 * k + 2] = x1;
     if (y1 > (bb[4 * k + 3] as number)) bb[4 * k + 3] = y1;
   }
-  list.grid = { starts, order, boxes: bb };
+  // Move every element to dest[i], one cycle at a time, carrying one element (offset + box) along.
+  for (let s = 0; s < count; s++) {
+    let j = dest[s] as number;
+    if (j === DONE) continue;
+    dest[s] = DONE;
+    if (j === s) continue;
+    const sc = boxes[s >> CHUNK_BITS]!, sq = 4 * (s & MASK);
+    let co = offsets[s >> CHUNK_BITS]![s & MASK] as number;
+    let c0 = sc[sq] as number, c1 = sc[sq + 1] as number, c2 = sc[sq + 2] as number, c3 = sc[sq + 3] as number;
+    for (;;) {
+      const oc = offsets[j >> CHUNK_BITS]!, bc = boxes[j >> CHUNK_BITS]!, q = j & MASK, q4 = 4 * q;
+      const no = oc[q] as number, n0 = bc[q4] as number, n1 = bc[q4 + 1] as number, n2 = bc[q4 + 2] as number, n3 = bc[q4 + 3] as number;
+      oc[q] = co;
+      bc[q4] = c0; bc[q4 + 1] = c1; bc[q4 + 2] = c2; bc[q4 + 3] = c3;
+      co = no; c0 = n0; c1 = n1; c2 = n2; c3 = n3;
+      const nj = dest[j] as number;
+      dest[j] = DONE;
+      if (nj === DONE) break;
+      j = nj;
+    }
+  }
+  list.grid = { starts, boxes: bb };
   return list;
 }
 
@@ -219,7 +263,7 @@ export function indexGdsiiFile(path: string, opts: IndexOptions = {}): GdsiiInde
     const lib = parser.finish();
     const cells = lib.cells.map((def): IndexedCell => {
       const builders = sink.byCell.get(def);
-      const lists = builders ? [...builders.values()].sort((a, b) => a.key - b.key).map(buildList) : [];
+      const lists = builders ? [...builders.values()].sort((a, b) => a.key - b.key).map((b) => buildList(b, fileSize < 2 ** 33)) : [];
       sink.byCell.delete(def); // let the chunks go before the next cell's lists are built
       return { def, lists, elements: lists.reduce((n, l) => n + l.count, 0) };
     });
@@ -257,7 +301,7 @@ export function elementsMeeting(
   for (let k = 0; k < nb; k++) {
     const s = grid.starts[k] as number, e = grid.starts[k + 1] as number;
     if (s === e || !placedBoxMeets(t, bb[4 * k] as number, bb[4 * k + 1] as number, bb[4 * k + 2] as number, bb[4 * k + 3] as number, box)) continue;
-    for (let j = s; j < e; j++) test(grid.order[j] as number);
+    for (let j = s; j < e; j++) test(j);
   }
 }
 
@@ -280,7 +324,7 @@ export function indexBytes(index: GdsiiIndex): { bytes: number; elements: number
       elements += l.count;
       for (const c of l.offsetChunks) bytes += c.byteLength;
       for (const c of l.boxChunks) bytes += c.byteLength;
-      bytes += l.exact.byteLength + (l.grid ? l.grid.starts.byteLength + l.grid.order.byteLength + l.grid.boxes.byteLength : 0);
+      bytes += l.exact.byteLength + (l.grid ? l.grid.starts.byteLength + l.grid.boxes.byteLength : 0);
     }
   }
   return { bytes, elements };

@@ -354,13 +354,13 @@ class Source implements GdsiiTileSource {
             return idx;
           })));
         } else {
-          // Everything (a walk without a box): list by list, each already in file order.
+          // Everything (a walk without a box): list by list, in batches.
           const batch = new Float64Array(BATCH);
           for (const l of lists) {
             for (let k = 0; k < l.count; k += BATCH) {
               const n = Math.min(BATCH, l.count - k);
               for (let q = 0; q < n; q++) batch[q] = elementOffset(l, k + q);
-              run(batch.subarray(0, n));
+              run(batch.subarray(0, n).sort()); // bucket order → file order for the reads
             }
           }
         }
