@@ -78,7 +78,7 @@ interface ListBuilder {
   datatype: number;
   points: number;
   count: number;
-  offsets: Float64Array[];
+  offsets: (Uint32Array | Float64Array)[];
   boxes: Int32Array[];
   exact: [number, number, number, number];
 }
@@ -86,6 +86,8 @@ interface ListBuilder {
 /** Collects offsets and boxes instead of geometry. */
 class IndexSink implements ElementSink {
   readonly keepLabels = false;
+  /** Store offset / 2 in uint32 (files below 8 GiB; element offsets are even). */
+  constructor(readonly half: boolean) {}
   readonly byCell = new Map<CellDef, Map<number, ListBuilder>>();
   private lastCell: CellDef | null = null;
   private lastList: ListBuilder | null = null;
@@ -119,11 +121,11 @@ class IndexSink implements ElementSink {
     if (i === 0) {
       // Small lists (most cells) start small; later chunks are full size.
       const size = list.count === 0 ? 16 : CHUNK;
-      list.offsets.push(new Float64Array(size));
+      list.offsets.push(this.half ? new Uint32Array(size) : new Float64Array(size));
       list.boxes.push(new Int32Array(4 * size));
     } else if (i === list.offsets[list.offsets.length - 1]!.length) {
       // First chunk outgrew its small start: widen it to a full chunk.
-      const o = new Float64Array(CHUNK);
+      const o = this.half ? new Uint32Array(CHUNK) : new Float64Array(CHUNK);
       o.set(list.offsets[0]!);
       list.offsets[0] = o;
       const b = new Int32Array(4 * CHUNK);
@@ -131,7 +133,7 @@ class IndexSink implements ElementSink {
       list.boxes[0] = b;
     }
     const c = list.count >> CHUNK_BITS;
-    list.offsets[c]![i] = offset;
+    list.offsets[c]![i] = this.half ? offset / 2 : offset;
     const bx = list.boxes[c]!;
     bx[4 * i] = lo(x0);
     bx[4 * i + 1] = lo(y0);
@@ -146,27 +148,19 @@ const hi = (v: number) => (v < I32_MAX ? Math.min(I32_MAX, Math.ceil(v)) : I32_M
 
 const DONE = 0xffffffff;
 
-/** Uint32 copy of a chunk of even offsets, halved. */
-function halve(c: Float64Array): Uint32Array {
-  const out = new Uint32Array(c.length);
-  for (let i = 0; i < c.length; i++) out[i] = (c[i] as number) / 2;
-  return out;
-}
-
 /**
- * Trim the last chunk, narrow the offsets when the file allows, and for long lists sort the elements into a grid
+ * Trim the last chunk and, for long lists sort the elements into a grid
  * of buckets by bbox centre — in place (cycle-following permutation), so no second copy of the list exists.
  */
 function buildList(b: ListBuilder, halfOffsets: boolean): ElementList {
   const count = b.count;
   const last = b.offsets.length - 1;
   const used = count - (last << CHUNK_BITS);
-  if (last >= 0 && used < (b.offsets[last] as Float64Array).length) {
-    b.offsets[last] = (b.offsets[last] as Float64Array).slice(0, used);
+  if (last >= 0 && used < b.offsets[last]!.length) {
+    b.offsets[last] = b.offsets[last]!.slice(0, used);
     b.boxes[last] = (b.boxes[last] as Int32Array).slice(0, 4 * used);
   }
-  const offsets: (Uint32Array | Float64Array)[] = halfOffsets ? b.offsets.map(halve) : b.offsets;
-  b.offsets = [];
+  const offsets = b.offsets;
   const boxes = b.boxes;
   const list: ElementList = {
     key: b.key, layer: b.layer, datatype: b.datatype, count, points: b.points,
@@ -228,6 +222,8 @@ function buildList(b: ListBuilder, halfOffsets: boolean): ElementList {
 
 export interface IndexOptions {
   topCell?: string;
+  /** Keep byte offsets as float64 even below 8 GiB (the large-file layout, for tests). */
+  float64Offsets?: boolean;
   /** Read buffer size (default 1 MiB). */
   chunkBytes?: number;
   signal?: AbortSignal;
@@ -244,7 +240,7 @@ export function indexGdsiiFile(path: string, opts: IndexOptions = {}): GdsiiInde
   }
   try {
     const fileSize = fstatSync(fd).size;
-    const sink = new IndexSink();
+    const sink = new IndexSink(fileSize < 2 ** 33 && !opts.float64Offsets);
     const parser = new GdsiiParser(sink);
     const buf = new Uint8Array(opts.chunkBytes ?? 1 << 20);
     for (let pos = 0; ;) {
@@ -263,7 +259,7 @@ export function indexGdsiiFile(path: string, opts: IndexOptions = {}): GdsiiInde
     const lib = parser.finish();
     const cells = lib.cells.map((def): IndexedCell => {
       const builders = sink.byCell.get(def);
-      const lists = builders ? [...builders.values()].sort((a, b) => a.key - b.key).map((b) => buildList(b, fileSize < 2 ** 33)) : [];
+      const lists = builders ? [...builders.values()].sort((a, b) => a.key - b.key).map((b) => buildList(b, sink.half)) : [];
       sink.byCell.delete(def); // let the chunks go before the next cell's lists are built
       return { def, lists, elements: lists.reduce((n, l) => n + l.count, 0) };
     });

@@ -15,7 +15,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { LayoutReadError } from '@/lib/layout/errors';
 import { GdsiiWriter } from '@/lib/layout/gdsii-writer';
 import { cellBounds } from '@/lib/layout/cell-bounds';
-import { openGdsiiTileSource } from '@/lib/layout/gdsii-tile-source';
+import { openGdsiiTileSource, type GdsiiTileSourceOptions } from '@/lib/layout/gdsii-tile-source';
 import { readLayoutFile } from '@/lib/layout/read';
 import { openLayoutTileSource } from '@/lib/layout/open-tile-source';
 import { inMemoryTileSource, type TileSourceHeader } from '@/lib/layout/tile-source';
@@ -43,8 +43,8 @@ const files = () => [
 ];
 
 /** Every tile equals the reference tile; owned polygons over the grid give back the whole layout exactly. */
-function checkTiles(whole: FlatLayout, file: string, nx: number, ny: number, grow = 0): void {
-  const src = openGdsiiTileSource(file);
+function checkTiles(whole: FlatLayout, file: string, nx: number, ny: number, grow = 0, opts: GdsiiTileSourceOptions = {}): void {
+  const src = openGdsiiTileSource(file, opts);
   const ref = inMemoryTileSource(whole);
   try {
     expect(src.header).toEqual(ref.header);
@@ -76,6 +76,8 @@ describe('openGdsiiTileSource', () => {
     const flat = await readLayoutFile(join(dir, 'flat.gds'));
     checkTiles(flat, join(dir, 'flat.gds'), 9, 7);
     checkTiles(flat, join(dir, 'flat.gds'), 1, 1, 10);
+    // Byte offsets as float64, as for files of 8 GiB and more.
+    checkTiles(whole, file, 7, 5, 0, { float64Offsets: true });
   });
 
   it('matches the reference for random boxes and layer subsets', async () => {
