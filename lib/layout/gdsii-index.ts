@@ -325,3 +325,16 @@ export function indexBytes(index: GdsiiIndex): { bytes: number; elements: number
   }
   return { bytes, elements };
 }
+
+/** Start offsets of the chosen elements (`pick[i]`: indices into lists[i]; null: all), ascending. */
+export function sortedOffsets(lists: ElementList[], pick: number[][] | null): Float64Array {
+  let n = 0;
+  lists.forEach((l, i) => (n += pick ? (pick[i] as number[]).length : l.count));
+  const out = new Float64Array(n);
+  let w = 0;
+  lists.forEach((l, i) => {
+    if (pick) for (const k of pick[i] as number[]) out[w++] = elementOffset(l, k);
+    else for (let k = 0; k < l.count; k++) out[w++] = elementOffset(l, k);
+  });
+  return out.sort();
+}

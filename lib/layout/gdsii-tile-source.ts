@@ -20,7 +20,7 @@ import { polygonSetsBbox, type BboxDbu } from './bbox';
 import { cellBounds, exactPlacement, growSnapped, type CellBounds } from './cell-bounds';
 import { ElementReader } from './element-reader';
 import { LayoutReadError } from './errors';
-import { elementOffset, elementsMeeting, indexGdsiiFile, type GdsiiIndex, type IndexOptions, type IndexedCell } from './gdsii-index';
+import { elementOffset, elementsMeeting, indexGdsiiFile, sortedOffsets, type GdsiiIndex, type IndexOptions, type IndexedCell } from './gdsii-index';
 import { GrowF64, GrowU32 } from './grow-buffer';
 import { layerKey, type CellDef } from './library';
 import { placeAbsolutePath, placeShapes } from './place';
@@ -407,16 +407,3 @@ class Source implements GdsiiTileSource {
 }
 
 const changed = (path: string) => new LayoutReadError('io', `${path} changed while it was being read tile by tile; open it again`);
-
-/** Start offsets of the chosen elements (`pick[i]`: indices into lists[i]; null: all), ascending. */
-function sortedOffsets(lists: IndexedCell['lists'], pick: number[][] | null): Float64Array {
-  let n = 0;
-  lists.forEach((l, i) => (n += pick ? (pick[i] as number[]).length : l.count));
-  const out = new Float64Array(n);
-  let w = 0;
-  lists.forEach((l, i) => {
-    if (pick) for (const k of pick[i] as number[]) out[w++] = elementOffset(l, k);
-    else for (let k = 0; k < l.count; k++) out[w++] = elementOffset(l, k);
-  });
-  return out.sort();
-}
