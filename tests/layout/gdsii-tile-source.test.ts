@@ -15,6 +15,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { LayoutReadError } from '@/lib/layout/errors';
 import { GdsiiWriter } from '@/lib/layout/gdsii-writer';
 import { cellBounds } from '@/lib/layout/cell-bounds';
+import { indexBytes } from '@/lib/layout/gdsii-index';
 import { openGdsiiTileSource, type GdsiiTileSourceOptions } from '@/lib/layout/gdsii-tile-source';
 import { readLayoutFile } from '@/lib/layout/read';
 import { openLayoutTileSource } from '@/lib/layout/open-tile-source';
@@ -139,6 +140,10 @@ describe('openGdsiiTileSource', () => {
       // 20 001 elements over 1e6 × 8e5 dbu: a 50 000² tile holds about 0.3 %; buckets may add neighbours, not the file.
       expect(used).toBeGreaterThan(0);
       expect(used).toBeLessThan(1000);
+      // What the index keeps per element: 4-byte half offset + 16-byte bbox, plus the bucket grid (our design target).
+      const { bytes, elements } = indexBytes(src.index);
+      expect(elements).toBe(20_001);
+      expect(bytes / elements).toBeLessThan(22);
     } finally {
       src.close();
     }
