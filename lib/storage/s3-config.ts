@@ -24,7 +24,7 @@ export type S3Config = {
   };
 };
 
-export function s3ConfigFromEnv(env: NodeJS.ProcessEnv = process.env): S3Config | null {
+export function s3ConfigFromEnv(env: Record<string, string | undefined> = process.env): S3Config | null {
   const bucket = env.TRENCHANT_S3_BUCKET?.trim();
   if (!bucket) return null;
   const endpoint = env.TRENCHANT_S3_ENDPOINT?.trim() || undefined;
