@@ -1,8 +1,8 @@
 /**
  * A BullMQ worker process (`npm run worker`): takes analysis jobs from Redis and runs each in the same piscina
  * pool and with the same steps as the embedded backend (lib/jobs/runner.ts, started per job with runById). It
- * needs the server's database file and data folder (same TRENCHANT_DB / TRENCHANT_DATA_DIR, e.g. on a shared
- * disk) and TRENCHANT_REDIS_URL.
+ * needs the server's database file (same TRENCHANT_DB, e.g. on a shared disk), TRENCHANT_REDIS_URL, and the data
+ * folder (TRENCHANT_DATA_DIR) unless layouts and results are on S3 (the same TRENCHANT_S3_*; lib/storage).
  *
  * Failure handling:
  *   - the worker process dies mid-job (kill -9, out of memory, power loss): its lock on the job lapses, BullMQ's
