@@ -7,7 +7,7 @@
 import { rm } from 'node:fs/promises';
 import { getDb } from '@/db/client';
 import { storage } from '@/lib/storage';
-import { S3ObjectStore } from '@/lib/storage/s3-store';
+import { asS3Store } from '@/lib/storage/s3-store';
 import { uploadTmpDir } from './paths';
 import { jobQueue } from './queue';
 import { seedDemoAnalysis } from './seed-demo-analysis';
@@ -37,8 +37,8 @@ export async function startJobs(log: (line: string) => void = (l) => console.log
 
 /** Says where files go, and whether the bucket answers (a wrong bucket or endpoint is named at start-up, not at the first upload). */
 async function checkStorage(log: (line: string) => void): Promise<void> {
-  const store = storage();
-  if (!(store instanceof S3ObjectStore)) return;
+  const store = asS3Store(storage());
+  if (!store) return;
   try {
     await store.checkBucket();
     log(`[trenchant] layouts and results are stored in ${store.where}`);

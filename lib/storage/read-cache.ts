@@ -13,7 +13,7 @@ import { copyFile, mkdir, readdir, rename, rm, stat, unlink, utimes } from 'node
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { checkKey } from './keys';
-import { S3ObjectStore } from './s3-store';
+import { asS3Store } from './s3-store';
 import { downloadSync } from './sync-fetch';
 import type { ObjectStore } from './types';
 
@@ -70,9 +70,10 @@ export function readablePathSync(store: ObjectStore, key: string): string {
     }
     return dest;
   }
-  if (!(store instanceof S3ObjectStore)) throw new Error(`no synchronous read for ${store.kind} storage`);
+  const s3 = asS3Store(store);
+  if (!s3) throw new Error(`no synchronous read for ${store.kind} storage`);
   mkdirSync(path.dirname(dest), { recursive: true });
-  downloadSync(store.config, checkKey(key), dest);
+  downloadSync(s3.config, checkKey(key), dest);
   void prune(store, dest).catch(() => undefined);
   return dest;
 }

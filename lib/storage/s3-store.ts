@@ -164,3 +164,11 @@ async function* sliceBytes(source: AsyncIterable<Uint8Array>, start: number, end
     if (end !== undefined && at >= end) break;
   }
 }
+
+/**
+ * The store as an S3 store, or null. By shape rather than instanceof: Next may load this module in several bundles,
+ * and the process-wide store (lib/storage/index.ts) may have been made by another bundle's copy of the class.
+ */
+export function asS3Store(store: ObjectStore): S3ObjectStore | null {
+  return store.kind === 's3' && 'config' in store && 'checkBucket' in store ? (store as S3ObjectStore) : null;
+}
