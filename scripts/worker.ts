@@ -1,7 +1,7 @@
 // `npm run worker`: a BullMQ worker process for analysis jobs (lib/jobs/queue-worker.ts). Needs
-// TRENCHANT_REDIS_URL, the server's database file (TRENCHANT_DB) and either its data folder (TRENCHANT_DATA_DIR) or,
-// with layouts and results on S3, the same TRENCHANT_S3_* settings — on another machine, a shared disk for what is
-// shared. TRENCHANT_JOB_CONCURRENCY sets how many analyses it
+// TRENCHANT_REDIS_URL and the server's files: its data folder (TRENCHANT_DATA_DIR) or, with layouts and results on
+// S3, the same TRENCHANT_S3_* settings; and its database file (TRENCHANT_DB) unless TRENCHANT_WORKER_DB=none, when
+// the server records what the worker reports (lib/jobs/remote-results.ts). TRENCHANT_JOB_CONCURRENCY sets how many analyses it
 // runs at once. SIGTERM / Ctrl-C: finish the running analyses, then exit; a second signal exits at once (the jobs
 // then go to another worker after the lock lapses).
 import { startQueueWorker } from '../lib/jobs/queue-worker';

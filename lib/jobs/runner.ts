@@ -303,21 +303,8 @@ export class JobRunner implements JobQueue {
    * What this job may write: the team's per-analysis limit, or what is left of its stored-results quota when
    * that is less. A team already at its quota gets a message instead.
    */
-  private resultBudget(row: ClaimedRow): { ok: true; maxBytes: number; label: string } | { ok: false; message: string } {
-    if (!row.team_id) return { ok: true, maxBytes: Number.MAX_SAFE_INTEGER, label: 'no limit' };
-    const db = getDb();
-    const limits = getTeamLimits(db, row.team_id);
-    const stored = teamStoredResultBytes(db, row.team_id);
-    const left = limits.maxStoredBytes - stored;
-    const mib = (n: number) => `${Math.round(n / MiB).toLocaleString('en-US')} MiB`;
-    if (left <= 0) {
-      return {
-        ok: false,
-        message: `This team's stored results take ${mib(stored)}, at its quota of ${mib(limits.maxStoredBytes)}; delete old analyses or ask a team admin to raise the quota on the team page.`,
-      };
-    }
-    if (left < limits.maxAnalysisBytes) return { ok: true, maxBytes: left, label: `the ${mib(left)} left of this team's quota of ${mib(limits.maxStoredBytes)} for stored results` };
-    return { ok: true, maxBytes: limits.maxAnalysisBytes, label: `this team's limit of ${mib(limits.maxAnalysisBytes)} per analysis` };
+  private resultBudget(row: ClaimedRow): ResultBudget {
+    return resultBudgetOf(row.team_id);
   }
 
   /** Writes a terminal state (only over queued/running, so a late result never overwrites a cancel). */
@@ -377,6 +364,29 @@ export class JobRunner implements JobQueue {
     await this.pool?.destroy();
     this.pool = null;
   }
+}
+
+export type ResultBudget = { ok: true; maxBytes: number; label: string } | { ok: false; message: string };
+
+/**
+ * What a job of this team may write: the team's per-analysis limit, or what is left of its stored-results quota
+ * when that is less. A team already at its quota gets a message instead.
+ */
+export function resultBudgetOf(teamId: string): ResultBudget {
+  if (!teamId) return { ok: true, maxBytes: Number.MAX_SAFE_INTEGER, label: 'no limit' };
+  const db = getDb();
+  const limits = getTeamLimits(db, teamId);
+  const stored = teamStoredResultBytes(db, teamId);
+  const left = limits.maxStoredBytes - stored;
+  const mib = (n: number) => `${Math.round(n / MiB).toLocaleString('en-US')} MiB`;
+  if (left <= 0) {
+    return {
+      ok: false,
+      message: `This team's stored results take ${mib(stored)}, at its quota of ${mib(limits.maxStoredBytes)}; delete old analyses or ask a team admin to raise the quota on the team page.`,
+    };
+  }
+  if (left < limits.maxAnalysisBytes) return { ok: true, maxBytes: left, label: `the ${mib(left)} left of this team's quota of ${mib(limits.maxStoredBytes)} for stored results` };
+  return { ok: true, maxBytes: limits.maxAnalysisBytes, label: `this team's limit of ${mib(limits.maxAnalysisBytes)} per analysis` };
 }
 
 function oneLine(s: string): string {
