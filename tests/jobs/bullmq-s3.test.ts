@@ -30,6 +30,8 @@ describe('a BullMQ worker without the database or a shared folder (storage on S3
   let s3: TestS3 | undefined;
   let server: TestServer | undefined;
   let worker: TestWorker | undefined;
+  let second: TestWorker | undefined;
+  let workerEnv: Record<string, string> = {};
   let designer: TestClient;
   const workerHome = mkdtempSync(path.join(tmpdir(), 'trenchant-worker-home-'));
   const workerData = path.join(workerHome, 'data');
@@ -40,7 +42,7 @@ describe('a BullMQ worker without the database or a shared folder (storage on S3
   beforeAll(async () => {
     redis = await startTestRedis();
     s3 = await startTestS3();
-    const queueEnv = { TRENCHANT_REDIS_URL: redis.url, TRENCHANT_REDIS_PREFIX: 'trenchant-s3-test', TRENCHANT_JOB_CONCURRENCY: '1' };
+    const queueEnv = { TRENCHANT_REDIS_URL: redis.url, TRENCHANT_REDIS_PREFIX: 'trenchant-s3-test', TRENCHANT_JOB_CONCURRENCY: '1', TRENCHANT_QUEUE_LOCK_MS: '2000' };
     server = await startTestServer({ env: { ...queueEnv, ...s3.env } });
     designer = await signInAs(server.baseUrl, 'designer');
     // The seeded demo analysis would keep the only worker busy first; cancel it while it is only queued.
@@ -50,7 +52,7 @@ describe('a BullMQ worker without the database or a shared folder (storage on S3
     for (const d of [workerData, workerTmp, workerCache]) rmSync(d, { recursive: true, force: true });
     const { mkdirSync } = await import('node:fs');
     for (const d of [workerData, workerTmp, workerCache]) mkdirSync(d, { recursive: true });
-    worker = await startWorker('s3-worker', {
+    workerEnv = {
       ...queueEnv,
       ...s3.env,
       TRENCHANT_WORKER_DB: 'none',
@@ -58,10 +60,12 @@ describe('a BullMQ worker without the database or a shared folder (storage on S3
       TRENCHANT_DATA_DIR: workerData,
       TRENCHANT_CACHE_DIR: workerCache,
       TMPDIR: workerTmp,
-    });
+    };
+    worker = await startWorker('s3-worker', workerEnv);
   });
   afterAll(async () => {
     await worker?.stop();
+    await second?.stop();
     await server?.stop();
     await s3?.stop();
     await redis?.stop();
@@ -117,4 +121,28 @@ describe('a BullMQ worker without the database or a shared folder (storage on S3
     expect((await designer.get(`/api/v1/analyses/${id}/results`)).status).toBe(409);
     expect(existsSync(workerDb)).toBe(false);
   }, 240_000);
+
+  it('a worker killed mid-job loses it to another, which finishes it; the server counts both pick-ups', async () => {
+    second = await startWorker('s3-worker-2', workerEnv);
+    const revisionId = (await uploadRevision(designer, slowLayoutGds(), 'S3 queue holes again')).id;
+    const id = await startAnalysis(designer, { revisionId, settings: { etchLayers: [{ layer: 5, datatype: 0 }], densityWindows: [{ windowUm: 100, stepUm: 50 }] }, model: TEST_MODEL });
+    const deadline = Date.now() + 120_000;
+    for (;;) {
+      const st = await analysisState(designer, id);
+      if (st.status === 'running' && st.progress > 0.05) break;
+      if (Date.now() > deadline || st.status !== 'queued' && st.status !== 'running') throw new Error(`the job did not get going: ${JSON.stringify(st)}`);
+      await new Promise((r) => setTimeout(r, 50));
+    }
+    const victim = [worker!, second].find((w) => w.output().includes(`analysis ${id} started`))!;
+    expect(victim).toBeDefined();
+    const survivor = victim === worker ? second : worker!;
+    victim.child.kill('SIGKILL');
+    await new Promise((r) => victim.child.once('exit', r));
+    const s = await waitFor(designer, id, ['done', 'failed', 'cancelled'], 180_000);
+    expect(s, survivor.output().slice(-2000)).toMatchObject({ status: 'done', attempts: 2 });
+    expect(survivor.output()).toContain(`analysis ${id} started`);
+    const r = await json<{ features: { total: number } }>(await designer.get(`/api/v1/analyses/${id}/results?limit=1`));
+    expect(r.features.total).toBe(3600); // the 60 × 60 hole array
+    expect(existsSync(workerDb)).toBe(false);
+  }, 300_000);
 });
