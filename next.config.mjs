@@ -15,7 +15,7 @@ const apiCsp = { key: 'Content-Security-Policy', value: "default-src 'none'; fra
 /** @type {import('next').NextConfig} */
 const nextConfig = {
   // Native and worker-thread packages stay outside the server bundle; they are loaded from node_modules at run time.
-  serverExternalPackages: ['better-sqlite3', '@node-rs/argon2', 'piscina', 'smtp-server', 'nodemailer', 'clipper-lib', 'bullmq', 'ioredis'],
+  serverExternalPackages: ['better-sqlite3', '@node-rs/argon2', 'piscina', 'smtp-server', 'nodemailer', 'clipper-lib', 'bullmq', 'ioredis', '@aws-sdk/client-s3', '@aws-sdk/lib-storage'],
   poweredByHeader: false,
   async headers() {
     return [

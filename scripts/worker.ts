@@ -1,6 +1,7 @@
 // `npm run worker`: a BullMQ worker process for analysis jobs (lib/jobs/queue-worker.ts). Needs
-// TRENCHANT_REDIS_URL and the server's database file and data folder (TRENCHANT_DB, TRENCHANT_DATA_DIR) — on
-// another machine, a shared disk mounted at the same paths. TRENCHANT_JOB_CONCURRENCY sets how many analyses it
+// TRENCHANT_REDIS_URL and the server's files: its data folder (TRENCHANT_DATA_DIR) or, with layouts and results on
+// S3, the same TRENCHANT_S3_* settings; and its database file (TRENCHANT_DB) unless TRENCHANT_WORKER_DB=none, when
+// the server records what the worker reports (lib/jobs/remote-results.ts). TRENCHANT_JOB_CONCURRENCY sets how many analyses it
 // runs at once. SIGTERM / Ctrl-C: finish the running analyses, then exit; a second signal exits at once (the jobs
 // then go to another worker after the lock lapses).
 import { startQueueWorker } from '../lib/jobs/queue-worker';

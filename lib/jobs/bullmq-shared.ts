@@ -5,6 +5,7 @@
  */
 import { Redis } from 'ioredis';
 import type { JobsOptions } from 'bullmq';
+import type { RemoteTask } from './remote-task';
 import { jobMaxAttempts } from './runner';
 
 export const QUEUE_NAME = 'analyses';
@@ -48,7 +49,8 @@ export function analysisJobOptions(analysisId: string): JobsOptions {
   };
 }
 
-export type AnalysisJobData = { analysisId: string };
+/** `task`: what a worker without the database needs (lib/jobs/remote-task.ts); database workers read the row. */
+export type AnalysisJobData = { analysisId: string; task?: RemoteTask };
 
 /** A connection as BullMQ workers need it (commands wait for a reconnect instead of failing). */
 export function openRedis(url: string, role: string): Redis {

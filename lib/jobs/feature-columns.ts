@@ -4,10 +4,11 @@
  * so the storage can change without touching the readers. Today: the worker's column file (feature-file.ts,
  * indexed in analysis_feature_files) for new analyses, the analysis_features table for ones saved before it.
  */
-import path from 'node:path';
 import type { Db } from '@/db/client';
+import { storage } from '@/lib/storage';
+import { readablePath, readablePathSync } from '@/lib/storage/read-cache';
 import { readFeatureRange } from './feature-file';
-import { analysisRelDir, resolveData } from './paths';
+import { analysisRelDir } from './paths';
 
 export const MODEL_KIND_CODE = { trench: 0, hole: 1 } as const;
 
@@ -134,8 +135,23 @@ export function readFeatureColumns(db: Db, analysisId: string): FeatureColumns {
   return c;
 }
 
-/** Absolute path of the analysis's per-opening column file, or null when its rows are in the table (or absent). */
-export function featureFileOf(db: Db, analysisId: string): string | null {
+function featureFileKey(db: Db, analysisId: string): string | null {
   const row = db.$client.prepare('SELECT file FROM analysis_feature_files WHERE analysis_id = ?').get(analysisId) as { file: string } | undefined;
-  return row ? resolveData(path.join(analysisRelDir(analysisId), row.file)) : null;
+  return row ? `${analysisRelDir(analysisId)}/${row.file}` : null;
+}
+
+/**
+ * Local path of the analysis's per-opening column file, or null when its rows are in the table (or absent). With
+ * results on S3 this is a cached copy; a cold cache blocks while it downloads, so async callers should await
+ * prepareFeatureFile() first.
+ */
+export function featureFileOf(db: Db, analysisId: string): string | null {
+  const key = featureFileKey(db, analysisId);
+  return key ? readablePathSync(storage(), key) : null;
+}
+
+/** Fetches the column file into the local cache without blocking (no-op on the local backend or without one). */
+export async function prepareFeatureFile(db: Db, analysisId: string): Promise<void> {
+  const key = featureFileKey(db, analysisId);
+  if (key) await readablePath(storage(), key);
 }

@@ -1,8 +1,8 @@
 /**
  * A BullMQ worker process (`npm run worker`): takes analysis jobs from Redis and runs each in the same piscina
  * pool and with the same steps as the embedded backend (lib/jobs/runner.ts, started per job with runById). It
- * needs the server's database file and data folder (same TRENCHANT_DB / TRENCHANT_DATA_DIR, e.g. on a shared
- * disk) and TRENCHANT_REDIS_URL.
+ * needs the server's database file (same TRENCHANT_DB, e.g. on a shared disk), TRENCHANT_REDIS_URL, and the data
+ * folder (TRENCHANT_DATA_DIR) unless layouts and results are on S3 (the same TRENCHANT_S3_*; lib/storage).
  *
  * Failure handling:
  *   - the worker process dies mid-job (kill -9, out of memory, power loss): its lock on the job lapses, BullMQ's
@@ -14,14 +14,23 @@
  *     period as the embedded pool). A cancel key in Redis covers a job that is picked up after the message.
  * Progress and final states go to Redis pub/sub, where the server hands them to its SSE subscribers.
  */
-import { Worker, type Job } from 'bullmq';
+import { UnrecoverableError, Worker, type Job } from 'bullmq';
+import { storage } from '@/lib/storage';
 import { cancelChannel, cancelKey, eventsChannel, lockMs, openRedis, QUEUE_NAME, redisPrefix, safeUrl, type AnalysisJobData } from './bullmq-shared';
-import { setJobEventRelay } from './events';
+import { setJobEventRelay, type JobEvent } from './events';
+import { RemoteTaskRunner } from './remote-runner';
+import type { RemoteJobResult } from './remote-task';
 import { jobMaxAttempts, JobRunner } from './runner';
 
 export type QueueWorker = { close: () => Promise<void>; concurrency: number };
 
+/** TRENCHANT_WORKER_DB=none: this worker opens no database (lib/jobs/remote-runner.ts); the server records. */
+export function workerWithoutDatabase(): boolean {
+  return process.env.TRENCHANT_WORKER_DB?.trim().toLowerCase() === 'none';
+}
+
 export async function startQueueWorker(url: string, log: (line: string) => void = (l) => console.log(l)): Promise<QueueWorker> {
+  if (workerWithoutDatabase()) return startRemoteWorker(url, log);
   const runner = new JobRunner({ autoPump: false });
   const pub = openRedis(url, 'worker');
   const sub = openRedis(url, 'worker-cancel');
@@ -81,6 +90,65 @@ export async function startQueueWorker(url: string, log: (line: string) => void 
     close: async () => {
       await worker.close();
       setJobEventRelay(null);
+      await runner.close();
+      sub.disconnect();
+      pub.disconnect();
+      connection.disconnect();
+    },
+  };
+}
+
+/**
+ * A worker without the database: the job's data carries the task, pick-ups and progress go to the server over
+ * Redis pub/sub (it writes the row), and the result is the job's return value, which the server records when
+ * BullMQ reports the completion (lib/jobs/remote-results.ts). Files go through lib/storage, so with storage on S3
+ * this worker shares nothing with the server but Redis and the bucket.
+ */
+async function startRemoteWorker(url: string, log: (line: string) => void): Promise<QueueWorker> {
+  const runner = new RemoteTaskRunner();
+  const pub = openRedis(url, 'worker');
+  const sub = openRedis(url, 'worker-cancel');
+  const connection = openRedis(url, 'worker-jobs');
+  const send = (event: JobEvent, mark: { pickup?: true } = {}) => void pub.publish(eventsChannel(), JSON.stringify({ ...event, remote: true, ...mark })).catch(() => undefined);
+  await sub.subscribe(cancelChannel());
+  sub.on('message', (channel: string, analysisId: string) => {
+    if (channel === cancelChannel()) runner.cancel(analysisId);
+  });
+
+  const processor = async (job: Job<AnalysisJobData>): Promise<RemoteJobResult> => {
+    const { analysisId, task } = job.data;
+    // A job added by a server that does not send tasks cannot run here; retrying would not help.
+    if (!task) throw new UnrecoverableError('the job carries no task (the server is older than this worker); run a worker with the database');
+    if (await pub.get(cancelKey(analysisId))) return { remote: true, ok: false, code: 'cancelled', message: 'Cancelled before it started.' };
+    send({ analysisId, status: 'running', stage: 'starting', progress: 0, errorMessage: null }, { pickup: true });
+    log(`[trenchant] worker ${process.pid}: analysis ${analysisId} started (pick-up ${job.attemptsStarted}, stalled ${job.stalledCounter})`);
+    const running = runner.run(analysisId, task, (stage, progress) => send({ analysisId, status: 'running', stage, progress, errorMessage: null }));
+    // The cancel may have been sent between the check above and now.
+    if (await pub.get(cancelKey(analysisId)).catch(() => null)) runner.cancel(analysisId);
+    const result = await running;
+    log(`[trenchant] worker ${process.pid}: analysis ${analysisId} ended (${result.ok ? 'results stored' : result.code})`);
+    return result;
+  };
+
+  const lock = lockMs();
+  const worker = new Worker<AnalysisJobData, RemoteJobResult>(QUEUE_NAME, processor, {
+    connection,
+    prefix: redisPrefix(),
+    concurrency: runner.concurrency,
+    lockDuration: lock,
+    stalledInterval: Math.max(1_000, Math.floor(lock / 2)),
+    maxStalledCount: jobMaxAttempts(),
+  });
+  worker.on('error', (err) => console.error('[trenchant] worker:', err.message));
+  worker.on('failed', (job, err) => {
+    if (job) log(`[trenchant] worker ${process.pid}: analysis ${job.data.analysisId} failed in the worker (${err.message}); the queue retries it or the server marks it failed`);
+  });
+  await worker.waitUntilReady();
+  log(`[trenchant] queue worker ${process.pid} on ${safeUrl(url)} without a database (files: ${storage().where}): up to ${runner.concurrency} analyses at a time`);
+  return {
+    concurrency: runner.concurrency,
+    close: async () => {
+      await worker.close();
       await runner.close();
       sub.disconnect();
       pub.disconnect();

@@ -4,7 +4,8 @@
  *     (lib/jobs/runner.ts);
  *   - bullmq: when TRENCHANT_REDIS_URL is set, the server only enqueues on Redis (lib/jobs/bullmq-queue.ts) and
  *     worker processes started with `npm run worker` run the jobs (lib/jobs/queue-worker.ts), on this machine or
- *     others that share the database file and the data folder.
+ *     others that share the database file and the data folder — or, with TRENCHANT_WORKER_DB=none and files on
+ *     S3, nothing but Redis and the bucket (lib/jobs/remote-runner.ts, lib/jobs/remote-results.ts).
  * Either way the analyses table holds the job state the pages and API read, and progress reaches the browser
  * through lib/jobs/events.ts (relayed over Redis pub/sub from worker processes).
  */

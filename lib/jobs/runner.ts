@@ -14,17 +14,19 @@
  * and starts the jobs Redis hands it with runById().
  */
 import { existsSync } from 'node:fs';
-import { rm } from 'node:fs/promises';
 import { availableParallelism } from 'node:os';
 import { MessageChannel } from 'node:worker_threads';
 import Piscina from 'piscina';
 import { getDb } from '@/db/client';
 import type { AnalysisStatus } from '@/db/schema';
 import type { AnalysisTask, AnalysisTaskResult, WorkerMessage } from '@/lib/pipeline/worker';
+import { isStorageNotFound, storage } from '@/lib/storage';
+import { localInput, resultStaging, type LocalInput, type ResultStaging } from '@/lib/storage/job-files';
+import { FEATURE_FILE_NAME } from './feature-file';
 import { isTerminal, publishJobEvent } from './events';
 import { finishJob } from './finish-job';
 import type { JobQueue } from './queue';
-import { analysisRelDir, resolveData } from './paths';
+import { analysisRelDir } from './paths';
 import { saveResultRows } from './save-results';
 import { getTeamLimits, teamStoredResultBytes } from './team-limits';
 import { forgetWorkerFile, workerFile } from './worker-file';
@@ -209,7 +211,13 @@ export class JobRunner implements JobQueue {
   }
 
   private async run(job: RunningJob, row: ClaimedRow): Promise<void> {
-    const outDir = resolveData(analysisRelDir(row.id));
+    // Results are written to a local folder and stored under analyses/<id>/ (on S3: uploaded when the worker is
+    // done); the layout is read from a local file (on S3: downloaded for this job and removed after it).
+    const store = storage();
+    const resultKey = analysisRelDir(row.id);
+    let staging: ResultStaging | null = null;
+    let layout: LocalInput | null = null;
+    const discard = () => (staging ? staging.discard() : store.deletePrefix(`${resultKey}/`).then(() => undefined));
     let lastWrite = 0;
     let lastStage = '';
     const progress = (stage: string, fraction: number) => {
@@ -222,12 +230,14 @@ export class JobRunner implements JobQueue {
       }
     };
     try {
-      await rm(outDir, { recursive: true, force: true }); // leftovers of an interrupted attempt
+      await store.deletePrefix(`${resultKey}/`); // leftovers of an interrupted attempt
       const budget = this.resultBudget(row);
       if (!budget.ok) {
         this.finish(row.id, 'failed', { code: 'over-quota', message: budget.message });
         return;
       }
+      staging = await resultStaging(store, resultKey);
+      layout = await localInput(store, row.stored_path);
       const pool = await this.getPool();
       const channel = new MessageChannel();
       job.port = channel.port1;
@@ -238,10 +248,10 @@ export class JobRunner implements JobQueue {
       });
       if (job.cancelRequested) channel.port1.postMessage({ type: 'cancel' });
       const task: AnalysisTask = {
-        layoutPath: resolveData(row.stored_path),
+        layoutPath: layout.path,
         settings: JSON.parse(row.settings),
         model: JSON.parse(row.model),
-        outDir,
+        outDir: staging.dir,
         port: channel.port2,
         cancelFlag: job.flag,
         maxResultBytes: budget.maxBytes,
@@ -256,23 +266,27 @@ export class JobRunner implements JobQueue {
         job.port = null;
       }
       if (!result.ok) {
-        await rm(outDir, { recursive: true, force: true });
+        await discard();
         if (result.code === 'cancelled') this.finish(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled.' });
         else this.finish(row.id, 'failed', { code: result.code, message: result.message });
         return;
       }
       progress('saving', 0.95);
+      // The server reads the column file synchronously (feature-columns.ts): keep a local copy of it at hand.
+      await staging.commit({ cache: (file) => file === FEATURE_FILE_NAME });
       await saveResultRows(getDb(), row.id, result, (f) => progress('saving', 0.95 + 0.049 * f));
       if (job.cancelRequested) {
-        await rm(outDir, { recursive: true, force: true });
+        await discard();
         this.finish(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled.' });
         return;
       }
       this.finish(row.id, 'done', null, { summary: result.summary, resultDir: analysisRelDir(row.id) });
     } catch (err) {
-      await rm(outDir, { recursive: true, force: true }).catch(() => undefined);
+      await discard().catch(() => undefined);
       if (job.crash) {
         this.finish(row.id, 'failed', { code: 'worker-crash', message: job.crash });
+      } else if (isStorageNotFound(err)) {
+        this.finish(row.id, 'failed', { code: 'missing-revision', message: `The layout file of this revision is missing from storage (${err.key}); upload the layout again.` });
       } else if (job.cancelRequested || job.controller.signal.aborted) {
         this.finish(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled (the worker was stopped).' });
       } else {
@@ -280,6 +294,8 @@ export class JobRunner implements JobQueue {
         console.error(`[trenchant] analysis ${row.id} failed in its worker:`, err);
         this.finish(row.id, 'failed', { code: 'worker-crash', message: `The analysis stopped with an internal error: ${oneLine(message)}` });
       }
+    } finally {
+      await layout?.release().catch(() => undefined);
     }
   }
 
@@ -287,21 +303,8 @@ export class JobRunner implements JobQueue {
    * What this job may write: the team's per-analysis limit, or what is left of its stored-results quota when
    * that is less. A team already at its quota gets a message instead.
    */
-  private resultBudget(row: ClaimedRow): { ok: true; maxBytes: number; label: string } | { ok: false; message: string } {
-    if (!row.team_id) return { ok: true, maxBytes: Number.MAX_SAFE_INTEGER, label: 'no limit' };
-    const db = getDb();
-    const limits = getTeamLimits(db, row.team_id);
-    const stored = teamStoredResultBytes(db, row.team_id);
-    const left = limits.maxStoredBytes - stored;
-    const mib = (n: number) => `${Math.round(n / MiB).toLocaleString('en-US')} MiB`;
-    if (left <= 0) {
-      return {
-        ok: false,
-        message: `This team's stored results take ${mib(stored)}, at its quota of ${mib(limits.maxStoredBytes)}; delete old analyses or ask a team admin to raise the quota on the team page.`,
-      };
-    }
-    if (left < limits.maxAnalysisBytes) return { ok: true, maxBytes: left, label: `the ${mib(left)} left of this team's quota of ${mib(limits.maxStoredBytes)} for stored results` };
-    return { ok: true, maxBytes: limits.maxAnalysisBytes, label: `this team's limit of ${mib(limits.maxAnalysisBytes)} per analysis` };
+  private resultBudget(row: ClaimedRow): ResultBudget {
+    return resultBudgetOf(row.team_id);
   }
 
   /** Writes a terminal state (only over queued/running, so a late result never overwrites a cancel). */
@@ -361,6 +364,29 @@ export class JobRunner implements JobQueue {
     await this.pool?.destroy();
     this.pool = null;
   }
+}
+
+export type ResultBudget = { ok: true; maxBytes: number; label: string } | { ok: false; message: string };
+
+/**
+ * What a job of this team may write: the team's per-analysis limit, or what is left of its stored-results quota
+ * when that is less. A team already at its quota gets a message instead.
+ */
+export function resultBudgetOf(teamId: string): ResultBudget {
+  if (!teamId) return { ok: true, maxBytes: Number.MAX_SAFE_INTEGER, label: 'no limit' };
+  const db = getDb();
+  const limits = getTeamLimits(db, teamId);
+  const stored = teamStoredResultBytes(db, teamId);
+  const left = limits.maxStoredBytes - stored;
+  const mib = (n: number) => `${Math.round(n / MiB).toLocaleString('en-US')} MiB`;
+  if (left <= 0) {
+    return {
+      ok: false,
+      message: `This team's stored results take ${mib(stored)}, at its quota of ${mib(limits.maxStoredBytes)}; delete old analyses or ask a team admin to raise the quota on the team page.`,
+    };
+  }
+  if (left < limits.maxAnalysisBytes) return { ok: true, maxBytes: left, label: `the ${mib(left)} left of this team's quota of ${mib(limits.maxStoredBytes)} for stored results` };
+  return { ok: true, maxBytes: limits.maxAnalysisBytes, label: `this team's limit of ${mib(limits.maxAnalysisBytes)} per analysis` };
 }
 
 function oneLine(s: string): string {

@@ -4,17 +4,16 @@
  * it takes a second or two). Runs only when the demo project exists and has no layout yet.
  */
 import { createHash, randomUUID } from 'node:crypto';
-import { mkdir, writeFile } from 'node:fs/promises';
-import path from 'node:path';
 import { count, eq } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { analyses, layoutRevisions, layouts, projects } from '@/db/schema';
 import { DEMO_PROJECTS, DEMO_USERS } from '@/lib/data/demo';
 import { readLayoutBytes } from '@/lib/layout/read';
+import { storage } from '@/lib/storage';
 import { layerTableOf } from '@/lib/uploads/layouts';
 import { createAnalysis } from './analyses';
 import { DEMO_ETCH_LAYER, DEMO_LAYOUT_FILE_NAME, demoLayoutGdsii } from './demo-layout';
-import { revisionRelPath, resolveData } from './paths';
+import { revisionRelPath } from './paths';
 
 const DEMO_MODEL_ID = 'deep-trench-continuous';
 
@@ -41,9 +40,7 @@ export async function seedDemoAnalysis(db: Db): Promise<{ seeded: boolean; analy
   const layout = await readLayoutBytes(bytes);
   const revisionId = randomUUID();
   const rel = revisionRelPath(demo.id, revisionId, 'gdsii');
-  const abs = resolveData(rel);
-  await mkdir(path.dirname(abs), { recursive: true });
-  await writeFile(abs, bytes);
+  await storage().putBytes(rel, bytes);
   const now = new Date();
   const layoutId = randomUUID();
   db.transaction((tx) => {

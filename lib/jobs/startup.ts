@@ -6,6 +6,8 @@
  */
 import { rm } from 'node:fs/promises';
 import { getDb } from '@/db/client';
+import { storage } from '@/lib/storage';
+import { asS3Store } from '@/lib/storage/s3-store';
 import { uploadTmpDir } from './paths';
 import { jobQueue } from './queue';
 import { seedDemoAnalysis } from './seed-demo-analysis';
@@ -13,6 +15,7 @@ import { seedDemoAnalysis } from './seed-demo-analysis';
 export async function startJobs(log: (line: string) => void = (l) => console.log(l)): Promise<void> {
   try {
     await rm(uploadTmpDir(), { recursive: true, force: true });
+    await checkStorage(log);
     const runner = jobQueue();
     const requeued = await runner.requeueInterrupted();
     if (requeued > 0) log(`[trenchant] ${requeued} analysis job(s) interrupted by the last shutdown are queued again`);
@@ -29,5 +32,17 @@ export async function startJobs(log: (line: string) => void = (l) => console.log
     );
   } catch (err) {
     console.error('[trenchant] could not start the analysis job system:', err);
+  }
+}
+
+/** Says where files go, and whether the bucket answers (a wrong bucket or endpoint is named at start-up, not at the first upload). */
+async function checkStorage(log: (line: string) => void): Promise<void> {
+  const store = asS3Store(storage());
+  if (!store) return;
+  try {
+    await store.checkBucket();
+    log(`[trenchant] layouts and results are stored in ${store.where}`);
+  } catch (err) {
+    console.error(`[trenchant] object storage ${store.where} does not answer (${err instanceof Error ? `${err.name}: ${err.message}` : String(err)}); uploads and analyses will fail until it does`);
   }
 }

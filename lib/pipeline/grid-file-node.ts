@@ -21,11 +21,15 @@ export async function writeGridFile(path: string, map: GridMap): Promise<number>
 
 /** Read and decode a map; decoding problems throw GridFileError whose message also names the file. */
 export async function readGridFile(path: string): Promise<GridMap> {
-  const bytes = await readFile(path);
+  return decodeGridBytes(await readFile(path), path);
+}
+
+/** Decode a map read from storage; decoding problems throw GridFileError naming `name` (its key or path). */
+export function decodeGridBytes(bytes: Uint8Array, name: string): GridMap {
   try {
     return decodeGrid(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength));
   } catch (err) {
-    if (err instanceof GridFileError) throw new GridFileError(err.code, `${path}: ${err.message}`, err.offset);
+    if (err instanceof GridFileError) throw new GridFileError(err.code, `${name}: ${err.message}`, err.offset);
     throw err;
   }
 }

@@ -1,19 +1,19 @@
 /**
  * Layouts and revisions as data. `storeLayoutUpload` turns a received upload into a new revision: recognise the
- * format from the first bytes, read the whole file once with the layout reader (validation + layer table), move
- * it into place and insert the rows. Any failure removes the file and writes no row.
+ * format from the first bytes, read the whole file once with the layout reader (validation + layer table), put
+ * it in storage (lib/storage: the data folder or S3) and insert the rows. Any failure removes the file and writes no
+ * row.
  */
 import { randomUUID } from 'node:crypto';
-import { mkdir, rename } from 'node:fs/promises';
-import path from 'node:path';
 import { and, asc, desc, eq, max } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { analyses, layoutRevisions, layouts, users, type LayerTableRow, type LayoutFormat, type LayoutRevisionRow } from '@/db/schema';
 import { ApiError } from '@/lib/http/errors';
-import { revisionRelPath, resolveData } from '@/lib/jobs/paths';
+import { revisionRelPath } from '@/lib/jobs/paths';
 import { getTeamLimits, teamOfProject } from '@/lib/jobs/team-limits';
 import type { FlatLayout } from '@/lib/layout/types';
+import { storage } from '@/lib/storage';
 import type { UploadCheckResult } from './check-layout';
 import { checkUploadInWorker } from './check-pool';
 import { receiveUpload, removeQuietly, type ReceivedFile } from './receive';
@@ -119,7 +119,7 @@ async function validateLayoutFile(file: ReceivedFile, limits: { maxPolygons: num
 /** Receives an upload and stores it as the next revision of a layout in `projectId`. */
 export async function storeLayoutUpload(db: Db, input: { projectId: string; userId: string; request: Request; layoutId?: string }): Promise<RevisionView> {
   const { file, fields } = await receiveUpload(input.request);
-  let finalPath: string | null = null;
+  let storedKey: string | null = null;
   try {
     const parsed = uploadFields.safeParse({ name: fields.name || undefined, layoutId: input.layoutId ?? (fields.layoutId || undefined), note: fields.note || undefined });
     if (!parsed.success) throw parsed.error;
@@ -134,9 +134,8 @@ export async function storeLayoutUpload(db: Db, input: { projectId: string; user
 
     const revisionId = randomUUID();
     const rel = revisionRelPath(input.projectId, revisionId, format);
-    finalPath = resolveData(rel);
-    await mkdir(path.dirname(finalPath), { recursive: true });
-    await rename(file.tmpPath, finalPath);
+    await storage().putFile(rel, file.tmpPath, { move: true });
+    storedKey = rel;
 
     const now = new Date();
     const row = db.transaction((tx) => {
@@ -172,7 +171,7 @@ export async function storeLayoutUpload(db: Db, input: { projectId: string; user
     return toRevisionView(row, existing!, user?.name ?? null);
   } catch (err) {
     await removeQuietly(file.tmpPath);
-    await removeQuietly(finalPath);
+    if (storedKey) await storage().delete(storedKey).catch(() => undefined);
     throw err;
   }
 }

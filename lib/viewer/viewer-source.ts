@@ -7,8 +7,9 @@ import { eq } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { analyses, layoutRevisions } from '@/db/schema';
 import { ApiError } from '@/lib/http/errors';
-import { resolveData } from '@/lib/jobs/paths';
 import type { AnalysisSummary } from '@/lib/pipeline/summary';
+import { storage } from '@/lib/storage';
+import { readablePath } from '@/lib/storage/read-cache';
 
 export type ViewerInfo = {
   analysisId: string;
@@ -49,8 +50,11 @@ export function viewerInfo(db: Db, analysisId: string): ViewerInfo {
   };
 }
 
-/** Where the analysis's layout revision is, for the polygon-index worker (lib/viewer/index-host.ts). */
-export function layoutSourceFor(db: Db, analysisId: string): { revisionId: string; path: string; topCell: string | null } {
+/**
+ * Where the analysis's layout revision is, for the polygon-index worker (lib/viewer/index-host.ts): its file in the
+ * data folder, or a local copy of it when layouts are on S3 (lib/storage/read-cache.ts).
+ */
+export async function layoutSourceFor(db: Db, analysisId: string): Promise<{ revisionId: string; path: string; topCell: string | null }> {
   const { rev } = finished(db, analysisId);
-  return { revisionId: rev.id, path: resolveData(rev.storedPath), topCell: rev.topCell ?? null };
+  return { revisionId: rev.id, path: await readablePath(storage(), rev.storedPath), topCell: rev.topCell ?? null };
 }

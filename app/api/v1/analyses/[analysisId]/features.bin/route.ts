@@ -3,7 +3,7 @@ import { idParam } from '@/lib/data/schemas';
 import { toErrorResponse } from '@/lib/http/errors';
 import { immutableBinaryResponse } from '@/lib/http/immutable-binary';
 import { requireAnalysisAccess } from '@/lib/jobs/access';
-import { readFeatureColumns } from '@/lib/jobs/feature-columns';
+import { prepareFeatureFile, readFeatureColumns } from '@/lib/jobs/feature-columns';
 import { encodeFeatures } from '@/lib/viewer/feature-wire';
 import { viewerInfo } from '@/lib/viewer/viewer-source';
 
@@ -17,7 +17,10 @@ export async function GET(request: Request, ctx: { params: Promise<{ analysisId:
     await requireAnalysisAccess(request, analysisId, 'project.read');
     const db = getDb();
     viewerInfo(db, analysisId); // 404 / 409 before reading
-    return immutableBinaryResponse(request, `"${analysisId}-features-1"`, 'application/vnd.trenchant.features', () => encodeFeatures(readFeatureColumns(db, analysisId)));
+    const etag = `"${analysisId}-features-1"`;
+    // Results on S3: fetch the column file into the local cache without blocking the server.
+    if (request.headers.get('if-none-match') !== etag) await prepareFeatureFile(db, analysisId);
+    return immutableBinaryResponse(request, etag, 'application/vnd.trenchant.features', () => encodeFeatures(readFeatureColumns(db, analysisId)));
   } catch (error) {
     return toErrorResponse(error);
   }

@@ -27,7 +27,7 @@ export async function GET(request: Request, ctx: { params: Promise<{ analysisId:
     const q = query.parse(Object.fromEntries(new URL(request.url).searchParams));
     await requireAnalysisAccess(request, analysisId, 'project.read');
     // The index is built and queried on a worker thread; this request waits without blocking others.
-    const { polygons } = await queryPolygonsOffThread({ ...layoutSourceFor(getDb(), analysisId), box: q.box, max: q.max });
+    const { polygons } = await queryPolygonsOffThread({ ...(await layoutSourceFor(getDb(), analysisId)), box: q.box, max: q.max });
     const body = encodePolygons(polygons);
     return new Response(body as unknown as BodyInit, { headers: { 'content-type': 'application/vnd.trenchant.polygons', 'cache-control': 'private, max-age=3600', 'content-length': String(body.byteLength) } });
   } catch (error) {

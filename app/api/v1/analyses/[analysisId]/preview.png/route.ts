@@ -1,13 +1,12 @@
-import path from 'node:path';
 import { z } from 'zod';
 import { getDb } from '@/db/client';
 import { idParam } from '@/lib/data/schemas';
 import { toErrorResponse } from '@/lib/http/errors';
 import { requireAnalysisAccess } from '@/lib/jobs/access';
-import { resolveData } from '@/lib/jobs/paths';
 import { renderMapPng } from '@/lib/jobs/preview-png';
 import { findMap, mapNameParam } from '@/lib/jobs/results';
-import { readGridFile } from '@/lib/pipeline/grid-file-node';
+import { decodeGridBytes } from '@/lib/pipeline/grid-file-node';
+import { storage } from '@/lib/storage';
 
 export const runtime = 'nodejs';
 export const dynamic = 'force-dynamic';
@@ -24,7 +23,8 @@ export async function GET(request: Request, ctx: { params: Promise<{ analysisId:
     const etag = `"${analysisId}-${map.name}-${q.size}-png"`;
     const headers = { 'cache-control': 'private, max-age=31536000, immutable', etag };
     if (request.headers.get('if-none-match') === etag) return new Response(null, { status: 304, headers });
-    const grid = await readGridFile(resolveData(path.join(analysis.resultDir ?? '', map.file)));
+    const key = `${analysis.resultDir ?? ''}/${map.file}`;
+    const grid = decodeGridBytes(await storage().getBytes(key), key);
     const png = renderMapPng(grid, q.size);
     return new Response(png as unknown as BodyInit, { headers: { ...headers, 'content-type': 'image/png' } });
   } catch (error) {

@@ -1,13 +1,10 @@
-import { createReadStream } from 'node:fs';
-import { stat } from 'node:fs/promises';
-import path from 'node:path';
 import { Readable } from 'node:stream';
 import { getDb } from '@/db/client';
 import { idParam } from '@/lib/data/schemas';
-import { toErrorResponse } from '@/lib/http/errors';
+import { ApiError, toErrorResponse } from '@/lib/http/errors';
 import { requireAnalysisAccess } from '@/lib/jobs/access';
-import { resolveData } from '@/lib/jobs/paths';
 import { findMap, mapNameParam } from '@/lib/jobs/results';
+import { storage } from '@/lib/storage';
 
 export const runtime = 'nodejs';
 export const dynamic = 'force-dynamic';
@@ -24,8 +21,10 @@ export async function GET(request: Request, ctx: { params: Promise<{ analysisId:
     const name = mapNameParam.parse(p.kind);
     await requireAnalysisAccess(request, analysisId, 'project.read');
     const { analysis, map } = findMap(getDb(), analysisId, name);
-    const file = resolveData(path.join(analysis.resultDir ?? '', map.file));
-    const st = await stat(file);
+    const store = storage();
+    const key = `${analysis.resultDir ?? ''}/${map.file}`;
+    const st = await store.stat(key);
+    if (!st) throw new ApiError('not_found', `The file of map "${map.name}" is missing from storage; run the analysis again.`);
     const etag = `"${analysisId}-${map.name}-${st.size}"`;
     const headers: Record<string, string> = {
       'cache-control': 'private, max-age=31536000, immutable',
@@ -36,7 +35,7 @@ export async function GET(request: Request, ctx: { params: Promise<{ analysisId:
       'x-trenchant-grid-units': 'um',
     };
     if (request.headers.get('if-none-match') === etag) return new Response(null, { status: 304, headers });
-    const body = Readable.toWeb(createReadStream(file)) as unknown as ReadableStream<Uint8Array>;
+    const body = Readable.toWeb(await store.getStream(key)) as unknown as ReadableStream<Uint8Array>;
     return new Response(body, {
       headers: { ...headers, 'content-type': 'application/vnd.trenchant.grid', 'content-length': String(st.size), 'content-disposition': `inline; filename="${map.name}.trgrid"` },
     });

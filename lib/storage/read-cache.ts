@@ -1,0 +1,131 @@
+/**
+ * Local copies of stored objects for readers that need a file path (the layout reader of the canvas viewer's
+ * polygon index, the positional reads of the per-opening column file). On the local backend that is the object's
+ * own path; on S3 a copy in the cache folder, fetched once and kept while there is room:
+ *   TRENCHANT_CACHE_DIR   default <os temp>/trenchant-cache/<bucket hash>; never the data folder
+ *   TRENCHANT_CACHE_MB    default 4096; the least recently used copies go first when it is exceeded
+ * Stored objects never change under their key (revisions and results are written once), so a copy never goes stale;
+ * forgetCached() drops copies when objects are deleted.
+ */
+import { createHash, randomUUID } from 'node:crypto';
+import { existsSync, mkdirSync, utimesSync } from 'node:fs';
+import { copyFile, mkdir, readdir, rename, rm, stat, unlink, utimes } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { checkKey } from './keys';
+import { asS3Store } from './s3-store';
+import { downloadSync } from './sync-fetch';
+import type { ObjectStore } from './types';
+
+/** A copy used within this long is never evicted (it may be open right now). */
+const IN_USE_MS = 60_000;
+
+export function cacheDir(store: ObjectStore): string {
+  const configured = process.env.TRENCHANT_CACHE_DIR?.trim();
+  if (configured) return path.resolve(configured);
+  return path.join(tmpdir(), 'trenchant-cache', createHash('sha256').update(store.where).digest('hex').slice(0, 12));
+}
+
+function cacheLimitBytes(): number {
+  const mb = Number(process.env.TRENCHANT_CACHE_MB);
+  return (Number.isFinite(mb) && mb > 0 ? mb : 4096) * 1024 * 1024;
+}
+
+const cachedPath = (store: ObjectStore, key: string) => path.join(cacheDir(store), ...checkKey(key).split('/'));
+const inFlight = new Map<string, Promise<string>>();
+
+/** A local file holding the object (the object's own path on the local backend). */
+export async function readablePath(store: ObjectStore, key: string): Promise<string> {
+  const local = store.localPath(key);
+  if (local) return local;
+  const dest = cachedPath(store, key);
+  if (existsSync(dest)) {
+    await utimes(dest, new Date(), new Date()).catch(() => undefined);
+    return dest;
+  }
+  let p = inFlight.get(dest);
+  if (!p) {
+    p = store
+      .downloadTo(key, dest)
+      .then(async () => {
+        await prune(store, dest);
+        return dest;
+      })
+      .finally(() => inFlight.delete(dest));
+    inFlight.set(dest, p);
+  }
+  return p;
+}
+
+/** The same, for synchronous callers: a cold S3 copy blocks this thread while it downloads (sync-fetch.ts). */
+export function readablePathSync(store: ObjectStore, key: string): string {
+  const local = store.localPath(key);
+  if (local) return local;
+  const dest = cachedPath(store, key);
+  if (existsSync(dest)) {
+    try {
+      utimesSync(dest, new Date(), new Date());
+    } catch {
+      // evicted just now by another process: fetched again below on the next read
+    }
+    return dest;
+  }
+  const s3 = asS3Store(store);
+  if (!s3) throw new Error(`no synchronous read for ${store.kind} storage`);
+  mkdirSync(path.dirname(dest), { recursive: true });
+  downloadSync(s3.config, checkKey(key), dest);
+  void prune(store, dest).catch(() => undefined);
+  return dest;
+}
+
+/** Keeps a copy of a file just stored under `key` (S3 only), so the first read needs no download. */
+export async function keepInCache(store: ObjectStore, key: string, srcPath: string): Promise<void> {
+  if (store.localPath(key)) return;
+  const dest = cachedPath(store, key);
+  await mkdir(path.dirname(dest), { recursive: true });
+  const tmp = `${dest}.tmp-${process.pid}-${randomUUID().slice(0, 8)}`;
+  try {
+    await copyFile(srcPath, tmp);
+    await rename(tmp, dest);
+  } catch (err) {
+    await unlink(tmp).catch(() => undefined);
+    throw err;
+  }
+  await prune(store, dest);
+}
+
+/** Drops cached copies of keys starting with `prefix` (call after deleting the objects). */
+export async function forgetCached(store: ObjectStore, prefix: string): Promise<void> {
+  if (store.kind === 'local') return;
+  const base = cacheDir(store);
+  const target = path.join(base, ...prefix.replace(/\/$/, '').split('/'));
+  if (!target.startsWith(base + path.sep)) return;
+  if (prefix.endsWith('/')) await rm(target, { recursive: true, force: true });
+  else await unlink(target).catch(() => undefined);
+}
+
+/** Least recently used copies go until the cache fits its limit; `keep` and copies in use stay. */
+async function prune(store: ObjectStore, keep: string): Promise<void> {
+  const base = cacheDir(store);
+  const limit = cacheLimitBytes();
+  const entries = await readdir(base, { recursive: true, withFileTypes: true }).catch(() => []);
+  const files: { file: string; size: number; used: number }[] = [];
+  let total = 0;
+  for (const e of entries) {
+    if (!e.isFile() || e.name.includes('.tmp-')) continue;
+    const file = path.join(e.parentPath, e.name);
+    const st = await stat(file).catch(() => null);
+    if (!st) continue;
+    files.push({ file, size: st.size, used: st.mtimeMs });
+    total += st.size;
+  }
+  if (total <= limit) return;
+  const now = Date.now();
+  files.sort((a, b) => a.used - b.used);
+  for (const f of files) {
+    if (total <= limit) break;
+    if (f.file === keep || now - f.used < IN_USE_MS) continue;
+    await unlink(f.file).catch(() => undefined);
+    total -= f.size;
+  }
+}
