@@ -1,0 +1,276 @@
+/**
+ * Features as columns (one typed array per field, row k = one opening) instead of one object per opening: a
+ * million `Feature` objects with their bbox/centroid arrays live through a whole analysis and the garbage collector
+ * copies and marks them again and again; a dozen typed arrays cost it nothing. `featureAt` gives one row as a
+ * `Feature` for code that wants an object (tests, CLI JSON, small layouts).
+ *
+ * Build with `FeatureTableBuilder` (grows by doubling) and join parts with `concatFeatureTables` (shards of the
+ * two-thread path, later tiles); `numberFeatureTable` puts a table in id order. Columns may be views into a larger
+ * buffer: read `count` rows, never `column.length`.
+ */
+import type { Box, Feature, FeatureKind } from './types';
+
+/** Kind codes of the `kind` column (index into this list). */
+export const FEATURE_KINDS: readonly FeatureKind[] = ['round-hole', 'square-hole', 'trench', 'open-field', 'irregular'];
+const KIND_CODE = new Map<FeatureKind, number>(FEATURE_KINDS.map((k, i) => [k, i]));
+
+export function featureKindCode(kind: FeatureKind): number {
+  const c = KIND_CODE.get(kind);
+  if (c === undefined) throw new RangeError(`unknown feature kind ${String(kind)}`);
+  return c;
+}
+
+/** The float columns, in µm (µm² for area), named like the `Feature` fields they hold. */
+export const FEATURE_F64_COLUMNS = ['centroidXUm', 'centroidYUm', 'x0Um', 'y0Um', 'x1Um', 'y1Um', 'areaUm2', 'perimeterUm', 'minWidthUm', 'maxWidthUm', 'lengthUm', 'widthStepUm'] as const;
+export type FeatureF64Column = (typeof FEATURE_F64_COLUMNS)[number];
+
+export interface FeatureTable extends Record<FeatureF64Column, Float64Array> {
+  count: number;
+  /** Feature id (1-based reading order once numbered; 0 before). */
+  id: Uint32Array;
+  /** Index into FEATURE_KINDS. */
+  kind: Uint8Array;
+  /** 1 = widths exact. */
+  widthExact: Uint8Array;
+  /** Number of tile pieces the feature was stitched from. */
+  pieces: Uint32Array;
+}
+
+/** One row as plain numbers (what the builder takes). */
+export interface FeatureRow {
+  kind: number;
+  centroidXUm: number;
+  centroidYUm: number;
+  x0Um: number;
+  y0Um: number;
+  x1Um: number;
+  y1Um: number;
+  areaUm2: number;
+  perimeterUm: number;
+  minWidthUm: number;
+  maxWidthUm: number;
+  lengthUm: number;
+  widthStepUm: number;
+  widthExact: boolean;
+  pieces: number;
+}
+
+export function emptyFeatureTable(capacity = 0): FeatureTable {
+  const t = { count: 0, id: new Uint32Array(capacity), kind: new Uint8Array(capacity), widthExact: new Uint8Array(capacity), pieces: new Uint32Array(capacity) } as FeatureTable;
+  for (const c of FEATURE_F64_COLUMNS) t[c] = new Float64Array(capacity);
+  return t;
+}
+
+/** Every column of a table, for code that copies or transfers all of them. */
+export function featureColumns(t: FeatureTable): (Float64Array | Uint32Array | Uint8Array)[] {
+  return [t.id, t.kind, t.widthExact, t.pieces, ...FEATURE_F64_COLUMNS.map((c) => t[c])];
+}
+
+/** Rows [0, count) copied into tight new arrays (drops a builder's spare capacity; transferable on their own). */
+export function trimFeatureTable(t: FeatureTable): FeatureTable {
+  const n = t.count;
+  const out = { count: n, id: t.id.slice(0, n), kind: t.kind.slice(0, n), widthExact: t.widthExact.slice(0, n), pieces: t.pieces.slice(0, n) } as FeatureTable;
+  for (const c of FEATURE_F64_COLUMNS) out[c] = t[c].slice(0, n);
+  return out;
+}
+
+/** Appends rows; `finish()` returns a tight table. */
+export class FeatureTableBuilder {
+  private t: FeatureTable;
+  constructor(capacity = 1024) {
+    this.t = emptyFeatureTable(Math.max(16, capacity));
+  }
+
+  get count(): number {
+    return this.t.count;
+  }
+
+  private grow(): void {
+    const old = this.t;
+    const next = emptyFeatureTable(old.id.length * 2);
+    next.count = old.count;
+    next.id.set(old.id);
+    next.kind.set(old.kind);
+    next.widthExact.set(old.widthExact);
+    next.pieces.set(old.pieces);
+    for (const c of FEATURE_F64_COLUMNS) next[c].set(old[c]);
+    this.t = next;
+  }
+
+  /** Adds one row (id 0 unless given); returns its row index. */
+  push(r: FeatureRow, id = 0): number {
+    if (this.t.count === this.t.id.length) this.grow();
+    const t = this.t;
+    const k = t.count++;
+    t.id[k] = id;
+    t.kind[k] = r.kind;
+    t.centroidXUm[k] = r.centroidXUm;
+    t.centroidYUm[k] = r.centroidYUm;
+    t.x0Um[k] = r.x0Um;
+    t.y0Um[k] = r.y0Um;
+    t.x1Um[k] = r.x1Um;
+    t.y1Um[k] = r.y1Um;
+    t.areaUm2[k] = r.areaUm2;
+    t.perimeterUm[k] = r.perimeterUm;
+    t.minWidthUm[k] = r.minWidthUm;
+    t.maxWidthUm[k] = r.maxWidthUm;
+    t.lengthUm[k] = r.lengthUm;
+    t.widthStepUm[k] = r.widthStepUm;
+    t.widthExact[k] = r.widthExact ? 1 : 0;
+    t.pieces[k] = r.pieces;
+    return k;
+  }
+
+  /** Appends every row of a table (ids kept). */
+  append(src: FeatureTable): void {
+    while (this.t.id.length < this.t.count + src.count) this.grow();
+    const t = this.t, at = t.count, n = src.count;
+    t.id.set(src.id.subarray(0, n), at);
+    t.kind.set(src.kind.subarray(0, n), at);
+    t.widthExact.set(src.widthExact.subarray(0, n), at);
+    t.pieces.set(src.pieces.subarray(0, n), at);
+    for (const c of FEATURE_F64_COLUMNS) t[c].set(src[c].subarray(0, n), at);
+    t.count += n;
+  }
+
+  finish(): FeatureTable {
+    return trimFeatureTable(this.t);
+  }
+}
+
+/** The rows of several tables one after the other (ids kept; renumber with numberFeatureTable). */
+export function concatFeatureTables(parts: readonly FeatureTable[]): FeatureTable {
+  const b = new FeatureTableBuilder(parts.reduce((s, p) => s + p.count, 0));
+  for (const p of parts) b.append(p);
+  return b.finish();
+}
+
+/** Rows in the given order: out row k = row order[k] of t. */
+export function permuteFeatureTable(t: FeatureTable, order: Uint32Array): FeatureTable {
+  const n = order.length;
+  const out = emptyFeatureTable(n);
+  out.count = n;
+  const gather = <A extends Float64Array | Uint32Array | Uint8Array>(src: A, dst: A) => {
+    for (let k = 0; k < n; k++) dst[k] = src[order[k] as number] as number;
+  };
+  gather(t.id, out.id);
+  gather(t.kind, out.kind);
+  gather(t.widthExact, out.widthExact);
+  gather(t.pieces, out.pieces);
+  for (const c of FEATURE_F64_COLUMNS) gather(t[c], out[c]);
+  return out;
+}
+
+/**
+ * Dense ranks of the values (equal values share a rank; -0 equals 0), from one native numeric sort: lets the id
+ * order below run as counting sorts instead of a comparator sort over a million indices.
+ */
+function ranks(v: Float64Array, n: number): { rank: Uint32Array; distinct: number } {
+  const sorted = new Float64Array(n);
+  for (let k = 0; k < n; k++) sorted[k] = (v[k] as number) + 0;
+  sorted.sort();
+  let m = 0;
+  for (let k = 0; k < n; k++) if (m === 0 || sorted[k] !== sorted[m - 1]) sorted[m++] = sorted[k] as number;
+  const rank = new Uint32Array(n);
+  for (let k = 0; k < n; k++) {
+    const x = (v[k] as number) + 0;
+    let lo = 0, hi = m - 1;
+    while (lo < hi) {
+      const mid = (lo + hi) >>> 1;
+      if ((sorted[mid] as number) < x) lo = mid + 1;
+      else hi = mid;
+    }
+    rank[k] = lo;
+  }
+  return { rank, distinct: m };
+}
+
+/** Stable counting sort of `order` by key[order[k]]. */
+function countingSortBy(order: Uint32Array, key: Uint32Array, buckets: number): Uint32Array {
+  const count = new Uint32Array(buckets + 1);
+  for (let k = 0; k < order.length; k++) count[(key[order[k] as number] as number) + 1]!++;
+  for (let b = 0; b < buckets; b++) count[b + 1]! += count[b] as number;
+  const out = new Uint32Array(order.length);
+  for (let k = 0; k < order.length; k++) {
+    const o = order[k] as number;
+    out[count[key[o] as number]!++] = o;
+  }
+  return out;
+}
+
+/**
+ * Id order (see numberFeatures in features.ts): by bbox lower edge, then left edge, then centroid x, ties in row
+ * order. Row order[k] of t gets id k + 1.
+ */
+export function featureIdOrder(t: FeatureTable): Uint32Array {
+  const n = t.count;
+  let order: Uint32Array = new Uint32Array(n);
+  for (let k = 0; k < n; k++) order[k] = k;
+  // Least significant key first; each pass is stable, so earlier keys break ties of later ones.
+  for (const col of [t.centroidXUm, t.x0Um, t.y0Um]) {
+    const { rank, distinct } = ranks(col, n);
+    order = countingSortBy(order, rank, distinct);
+  }
+  return order;
+}
+
+/** The table in id order with ids 1..n (see featureIdOrder). */
+export function numberFeatureTable(t: FeatureTable): FeatureTable {
+  const n = t.count;
+  const out = permuteFeatureTable(t, featureIdOrder(t));
+  for (let k = 0; k < n; k++) out.id[k] = k + 1;
+  return out;
+}
+
+/** Row k as a `Feature` object (fresh arrays each call). */
+export function featureAt(t: FeatureTable, k: number): Feature {
+  return {
+    id: t.id[k] as number,
+    kind: FEATURE_KINDS[t.kind[k] as number] as FeatureKind,
+    centroidUm: [t.centroidXUm[k] as number, t.centroidYUm[k] as number],
+    bboxUm: [t.x0Um[k] as number, t.y0Um[k] as number, t.x1Um[k] as number, t.y1Um[k] as number] as Box,
+    areaUm2: t.areaUm2[k] as number,
+    perimeterUm: t.perimeterUm[k] as number,
+    minWidthUm: t.minWidthUm[k] as number,
+    maxWidthUm: t.maxWidthUm[k] as number,
+    lengthUm: t.lengthUm[k] as number,
+    widthStepUm: t.widthStepUm[k] as number,
+    widthExact: t.widthExact[k] === 1,
+    pieces: t.pieces[k] as number,
+  };
+}
+
+/** Every row as a `Feature` (one object per opening: for tests and small layouts). */
+export function featureList(t: FeatureTable): Feature[] {
+  const out = new Array<Feature>(t.count);
+  for (let k = 0; k < t.count; k++) out[k] = featureAt(t, k);
+  return out;
+}
+
+/** A table from `Feature` objects (ids kept). */
+export function featureTableOf(fs: readonly Feature[]): FeatureTable {
+  const b = new FeatureTableBuilder(fs.length);
+  for (const f of fs) {
+    b.push(
+      {
+        kind: featureKindCode(f.kind),
+        centroidXUm: f.centroidUm[0],
+        centroidYUm: f.centroidUm[1],
+        x0Um: f.bboxUm[0],
+        y0Um: f.bboxUm[1],
+        x1Um: f.bboxUm[2],
+        y1Um: f.bboxUm[3],
+        areaUm2: f.areaUm2,
+        perimeterUm: f.perimeterUm,
+        minWidthUm: f.minWidthUm,
+        maxWidthUm: f.maxWidthUm,
+        lengthUm: f.lengthUm,
+        widthStepUm: f.widthStepUm,
+        widthExact: f.widthExact,
+        pieces: f.pieces,
+      },
+      f.id,
+    );
+  }
+  return b.finish();
+}
