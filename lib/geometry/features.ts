@@ -39,6 +39,23 @@ export interface FeatureOptions extends WidthOptions {
   shard?: { index: number; count: number };
 }
 
+/** Roots are handed out in chunks of this many piece indices when threads share the work (`FeatureClaim`). */
+export const FEATURE_CHUNK = 4096;
+
+/**
+ * Work shared between threads: each takes the next chunk of FEATURE_CHUNK piece indices from the shared counter
+ * `next` (Atomics.add) and records itself in `owner` (one byte per chunk) before measuring it, so a fast thread
+ * takes more chunks than a slow or descheduled one, and a caller can redo the chunks of a thread that failed
+ * (`only`: measure just the listed chunks instead). `chunk` overrides FEATURE_CHUNK (all sharers must agree).
+ */
+export type FeatureClaim = ({ next: Int32Array; owner: Uint8Array; me: number } | { only: Uint32Array }) & { chunk?: number };
+
+/** Unnumbered rows with the root piece of each row (unique per feature): `numberFeatureTable(t, roots)` numbers them. */
+export interface MeasuredFeatures {
+  table: FeatureTable;
+  roots: Float64Array;
+}
+
 function find(parent: Uint32Array, a: number): number {
   while (parent[a] !== a) {
     parent[a] = parent[parent[a] as number] as number;
@@ -65,8 +82,36 @@ export function featuresFromRegions(regions: OpenRegions, opts: FeatureOptions =
   return featureList(featureTableFromRegions(regions, opts));
 }
 
-/** Features from precomputed open regions as a numbered column table (see feature-table.ts). */
+/**
+ * Features from precomputed open regions as a numbered column table (see feature-table.ts). With `shard` the rows
+ * are left unnumbered (ids 0) in root order: merge shards with numberFeatureTable(concatFeatureTables(parts)).
+ */
 export function featureTableFromRegions(regions: OpenRegions, opts: FeatureOptions = {}): FeatureTable {
+  const m = measureFeatures(regions, opts);
+  return opts.shard ? m.table : numberFeatureTable(m.table, m.roots);
+}
+
+/** Chunk indices 0, 1, … handed out by `claim` (all chunks without one). */
+function chunkSource(n: number, claim: FeatureClaim | undefined): () => number {
+  const chunks = Math.ceil(n / (claim?.chunk ?? FEATURE_CHUNK));
+  if (!claim) {
+    let c = 0;
+    return () => (c < chunks ? c++ : -1);
+  }
+  if ('only' in claim) {
+    let k = 0;
+    return () => (k < claim.only.length ? (claim.only[k++] as number) : -1);
+  }
+  return () => {
+    const c = Atomics.add(claim.next, 0, 1);
+    if (c >= chunks) return -1;
+    Atomics.store(claim.owner, c, claim.me);
+    return c;
+  };
+}
+
+/** The measuring loop behind featureTableFromRegions: unnumbered rows in the order their chunks were taken. */
+export function measureFeatures(regions: OpenRegions, opts: FeatureOptions = {}, claim?: FeatureClaim): MeasuredFeatures {
   const n = regions.pieceCount;
   const parent = new Uint32Array(n);
   for (let p = 0; p < n; p++) parent[p] = p;
@@ -86,14 +131,17 @@ export function featureTableFromRegions(regions: OpenRegions, opts: FeatureOptio
   const u = regions.dbuUm;
   const c = regions.coords;
   const shardCount = opts.shard?.count ?? 1, shardIndex = opts.shard?.index ?? 0;
-  const out = new FeatureTableBuilder(Math.ceil(n / shardCount) + 16);
+  const out = new FeatureTableBuilder(Math.ceil(n / shardCount / (claim ? 2 : 1)) + 16);
+  let roots = new Float64Array(out.capacity);
   const cache: WidthCache = new Map();
   // One row object refilled per feature: the builder copies it into its columns.
   const row: FeatureRow = { kind: 0, centroidXUm: 0, centroidYUm: 0, x0Um: 0, y0Um: 0, x1Um: 0, y1Um: 0, areaUm2: 0, perimeterUm: 0, minWidthUm: 0, maxWidthUm: 0, lengthUm: 0, widthStepUm: 0, widthExact: false, pieces: 0 };
   const kindOpts = { openFieldWidthUm: opts.openFieldWidthUm, trenchAspect: opts.trenchAspect };
   const rings: [number, number][] = [];
-  // Roots in increasing piece order (a root is the smallest piece index of its group).
-  for (let root = 0; root < n; root++) {
+  // Roots in increasing piece order within a chunk (a root is the smallest piece index of its group).
+  const nextChunk = chunkSource(n, claim);
+  const chunkSize = claim?.chunk ?? FEATURE_CHUNK;
+  for (let chunk = nextChunk(); chunk >= 0; chunk = nextChunk()) for (let root = chunk * chunkSize, rootEnd = Math.min(n, root + chunkSize); root < rootEnd; root++) {
     const g0 = start[root] as number, g1 = start[root + 1] as number;
     if (g1 === g0 || root % shardCount !== shardIndex) continue;
     let area = 0, perim = 0, mx = 0, my = 0;
@@ -141,9 +189,15 @@ export function featureTableFromRegions(regions: OpenRegions, opts: FeatureOptio
     row.widthExact = w.exact;
     row.pieces = pieceCount;
     row.kind = featureKindCode(classifyFeature(row, kindOpts));
-    out.push(row);
+    const k = out.push(row);
+    if (k >= roots.length) {
+      const grown = new Float64Array(out.capacity);
+      grown.set(roots);
+      roots = grown;
+    }
+    roots[k] = root;
   }
-  return numberFeatureTable(out.finish());
+  return { table: out.finish(), roots: roots.slice(0, out.count) };
 }
 
 /**
