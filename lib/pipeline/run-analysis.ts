@@ -9,16 +9,17 @@
  * never decreases. `signal` and `isCancelled` are checked between stages and every few thousand features; an abort
  * throws AnalysisAbortedError (name 'AbortError').
  */
-import { effectiveDensity, FEATURE_KINDS, localWidthFromCoverage, openRegions, rasterizeOpenRegions, windowDensity, type Grid, type WindowDensity } from '../geometry';
+import { effectiveDensity, localWidthFromCoverage, openRegions, rasterizeOpenRegions, windowDensity, type Grid, type WindowDensity } from '../geometry';
 import { featureTableInThreads } from '../geometry/parallel-features';
 import type { ProcessModel } from '../etch';
 import type { FlatLayout } from '../layout/types';
 import { AnalysisAbortedError } from './errors';
 import { dieFrame, layerName, selectEtchLayers } from './etch-layers';
-import { densityGradientFlags, FlagCollector, featureFlagsInto, windowDensityFlags, type FeatureCheckInput, type Flag, type WindowSetInput } from './flags';
+import { densityGradientFlags, FlagCollector, windowDensityFlags, type Flag, type WindowSetInput } from './flags';
+import { offerTableFlags } from './table-flags';
 import type { GridMap } from './grid-file';
-import { featureResultList, MODEL_KINDS, NULL_DEPTH_SIGMA, type FeatureResultTable } from './feature-results';
-import { excursionsOf, predictFeatureTable, type FeatureResult } from './predict-features';
+import { featureResultList, type FeatureResultTable } from './feature-results';
+import { predictFeatureTable, type FeatureResult } from './predict-features';
 import { featureRisk, paintColumnsOf, paintFeatureColumns, type FeatureMaps } from './result-maps';
 import { resolveKernel, resolveLimits, type AnalysisSettings } from './settings';
 import { buildSummary, type AnalysisSummary } from './summary';
@@ -170,30 +171,8 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
     collector.add(windowDensityFlags(input, limits, sev));
     collector.add(densityGradientFlags(input, limits.maxGradient, sev));
   }
-  // One input object refilled per opening: the collector builds a kept flag (copying what it needs) inside offer(),
-  // so nothing holds on to it, and a million openings do not cost a million short-lived objects.
-  const input: FeatureCheckInput = { featureId: 0, shape: '', modelKind: 'trench', bboxUm: [0, 0, 0, 0], centroidUm: [0, 0], widthUm: 0, depthUm: 0, overEtchUm: 0, excursions: [], depthSigmaUm: null };
-  const ft = results.features;
-  const noExcursions = excursionsOf(null, 0, 0, 0);
-  for (let k = 0; k < n; k++) {
-    if (k % 4096 === 0) clock.within(k / Math.max(1, n));
-    input.featureId = ft.id[k] as number;
-    input.shape = FEATURE_KINDS[ft.kind[k] as number] as string;
-    input.modelKind = MODEL_KINDS[results.modelKind[k] as number] as 'trench' | 'hole';
-    input.bboxUm[0] = ft.x0Um[k] as number;
-    input.bboxUm[1] = ft.y0Um[k] as number;
-    input.bboxUm[2] = ft.x1Um[k] as number;
-    input.bboxUm[3] = ft.y1Um[k] as number;
-    input.centroidUm[0] = ft.centroidXUm[k] as number;
-    input.centroidUm[1] = ft.centroidYUm[k] as number;
-    input.widthUm = results.widthUm[k] as number;
-    input.depthUm = results.depthUm[k] as number;
-    input.overEtchUm = results.overEtchUm[k] as number;
-    input.excursions = results.excursions[k] === 0 ? noExcursions : excursionsOf(results.range, input.widthUm, results.aspectRatio[k] as number, results.effectiveDensity[k] as number);
-    input.depthSigmaUm = (results.nulls[k] as number) & NULL_DEPTH_SIGMA ? null : (results.depthSigmaUm[k] as number);
-    featureFlagsInto(collector, input, limits, sev);
-  }
-  const flags = collector.list();
+  const resolve = offerTableFlags(collector, results, limits, sev, (k) => clock.within(k / Math.max(1, n)));
+  const flags = collector.list(resolve);
 
   clock.begin('summary');
   const maps = buildMaps(grid, coverage, windows, effective, localWidth, painted, { kernelLengthUm: kernel.lengthUm, kernel: kernel.kind, modelName: model.name, modelVersion: model.version });
