@@ -154,6 +154,7 @@ export function predictFeatureTable(features: FeatureTable, effective: Float32Ar
   // Distinct note lists by their raw warnings (and whether the mean width was used): index into t.noteLists.
   const lists: (readonly string[])[] = [t.noteLists[0] as readonly string[]];
   const listOf = new Map<string, number>();
+  const byContent = new Map<string, number>();
   const f = features;
   const [from, to] = opts.rows ?? [0, f.count];
   const total = to - from;
@@ -218,7 +219,10 @@ export function predictFeatureTable(features: FeatureTable, effective: Float32Ar
       let li = listOf.get(key);
       if (li === undefined) {
         const notes = measurable ? notesOf(p.warnings, noteCache) : [...notesOf(p.warnings, noteCache), meanWidthNote];
-        li = notes.length === 0 ? 0 : lists.push(Object.freeze(notes)) - 1;
+        // Raw warnings differ in their numbers; the notes do not: one list per distinct content.
+        const content = notes.join('\u0000');
+        li = notes.length === 0 ? 0 : byContent.get(content);
+        if (li === undefined) byContent.set(content, (li = lists.push(Object.freeze(notes)) - 1));
         listOf.set(key, li);
       }
       t.notes[n] = li;
