@@ -168,35 +168,52 @@ export function permuteFeatureTable(t: FeatureTable, order: Uint32Array): Featur
 
 /**
  * `order` stably sorted by v[order[k]] ascending: an LSD radix sort on the IEEE-754 bits (made unsigned-sortable;
- * -0 counts as 0), four 16-bit passes, skipping passes where every key has the same digit. A comparator sort over
- * a million indices costs several times more.
+ * -0 counts as 0), four 16-bit passes, skipping passes where every key has the same digit. The keys are gathered
+ * into order once and travel with the indices, so every pass reads sequentially. A comparator sort over a million
+ * indices costs several times more.
  */
 function radixSortBy(order: Uint32Array, v: Float64Array): Uint32Array {
   const n = order.length;
   const f = new Float64Array(n);
-  for (let k = 0; k < n; k++) f[k] = (v[k] as number) + 0;
-  const u = new Uint32Array(f.buffer);
-  // Sortable unsigned form: negative numbers flip every bit, others flip the sign bit (little-endian: hi word at 2k+1).
+  for (let k = 0; k < n; k++) f[k] = (v[order[k] as number] as number) + 0;
+  let keys = new Uint32Array(f.buffer); // [lo, hi] per entry, little-endian
+  // Sortable unsigned form: negative numbers flip every bit, others flip the sign bit.
   for (let k = 0; k < n; k++) {
-    const hi = u[2 * k + 1] as number;
+    const hi = keys[2 * k + 1] as number;
     if (hi & 0x80000000) {
-      u[2 * k] = ~(u[2 * k] as number) >>> 0;
-      u[2 * k + 1] = ~hi >>> 0;
-    } else u[2 * k + 1] = (hi | 0x80000000) >>> 0;
+      keys[2 * k] = ~(keys[2 * k] as number) >>> 0;
+      keys[2 * k + 1] = ~hi >>> 0;
+    } else keys[2 * k + 1] = (hi | 0x80000000) >>> 0;
+  }
+  // All four digit histograms in one sequential pass.
+  const hist = new Uint32Array(4 * 65_536);
+  for (let k = 0; k < n; k++) {
+    const lo = keys[2 * k] as number, hi = keys[2 * k + 1] as number;
+    hist[lo & 0xffff]!++;
+    hist[65_536 + (lo >>> 16)]!++;
+    hist[131_072 + (hi & 0xffff)]!++;
+    hist[196_608 + (hi >>> 16)]!++;
   }
   let src: Uint32Array = order, dst: Uint32Array = new Uint32Array(n);
-  const count = new Uint32Array(65_537);
+  let keysOut = new Uint32Array(2 * n);
+  const start = new Uint32Array(65_536);
   for (let pass = 0; pass < 4; pass++) {
-    const word = pass >> 1, shift = (pass & 1) * 16;
-    count.fill(0);
-    for (let k = 0; k < n; k++) count[((((u[2 * (src[k] as number) + word] as number) >>> shift) & 0xffff) + 1)]!++;
-    if (n > 0 && count[((((u[2 * (src[0] as number) + word] as number) >>> shift) & 0xffff) + 1)] === n) continue;
-    for (let d = 0; d < 65_536; d++) count[d + 1]! += count[d] as number;
+    const base = pass * 65_536, word = pass >> 1, shift = (pass & 1) * 16;
+    if (n === 0 || hist[base + (((keys[word] as number) >>> shift) & 0xffff)] === n) continue; // one digit: order unchanged
+    let at = 0;
+    for (let d = 0; d < 65_536; d++) {
+      start[d] = at;
+      at += hist[base + d] as number;
+    }
     for (let k = 0; k < n; k++) {
-      const o = src[k] as number;
-      dst[count[((u[2 * o + word] as number) >>> shift) & 0xffff]!++] = o;
+      const lo = keys[2 * k] as number, hi = keys[2 * k + 1] as number;
+      const to = start[((word === 0 ? lo : hi) >>> shift) & 0xffff]!++;
+      dst[to] = src[k] as number;
+      keysOut[2 * to] = lo;
+      keysOut[2 * to + 1] = hi;
     }
     [src, dst] = [dst, src];
+    [keys, keysOut] = [keysOut, keys];
   }
   return src;
 }
