@@ -54,13 +54,16 @@ export function featuresInThreads(regions: OpenRegions, opts: ThreadOptions = {}
 
 /**
  * `featureTableFromRegions(regions, opts)` spread over two threads when the layout is big and a worker can start.
- * `threads: 1` forces one thread.
+ * `threads: 1` forces one thread. `meanwhile`, when given, runs on the calling thread once the worker has started
+ * (other work of the caller; the worker takes more chunks in the meantime); `info.meanwhileRan` says whether it did
+ * (not on one thread: then the caller runs it itself).
  */
-export function featureTableInThreads(regions: OpenRegions, opts: ThreadOptions = {}, info: { threads?: number } = {}): FeatureTable {
+export function featureTableInThreads(regions: OpenRegions, opts: ThreadOptions = {}, info: { threads?: number; meanwhileRan?: boolean } = {}, meanwhile?: () => void): FeatureTable {
   const { threads, minPieces, chunk: chunkOpt, ...featureOpts } = opts;
   const chunk = chunkOpt ?? FEATURE_CHUNK;
   const want = Math.min(threads ?? 2, availableParallelism());
   info.threads = 1;
+  info.meanwhileRan = false;
   if (want < 2 || regions.pieceCount < (minPieces ?? MIN_PIECES) || featureOpts.shard) return featureTableFromRegions(regions, featureOpts);
   const flag = new Int32Array(new SharedArrayBuffer(4));
   const chunks = Math.ceil(regions.pieceCount / chunk);
@@ -86,6 +89,10 @@ export function featureTableInThreads(regions: OpenRegions, opts: ThreadOptions 
   worker.unref();
   try {
     const t0 = performance.now();
+    if (meanwhile) {
+      meanwhile();
+      info.meanwhileRan = true;
+    }
     const mine = measureFeatures(regions, featureOpts, { next, owner, me: ME, chunk });
     // The worker is at most one chunk behind unless it is stuck; allow generous slack (start-up, a busy machine).
     const limit = Math.max(60_000, 4 * (performance.now() - t0));

@@ -7,7 +7,10 @@
  * local-width → prediction → maps → flags → summary. `onProgress(stage, fraction)` is called when each stage starts,
  * a few times inside the long ones, and once more with ('done', 1); `fraction` is the overall progress 0..1 and
  * never decreases. `signal` and `isCancelled` are checked between stages and every few thousand features; an abort
- * throws AnalysisAbortedError (name 'AbortError').
+ * throws AnalysisAbortedError (name 'AbortError'). When features run on two threads, the local-width map is computed
+ * during the features stage (while the second thread works) and the local-width stage is then empty.
+ * Per-opening data stays in columns (FeatureTable, FeatureResultTable): a million objects would cost seconds of
+ * garbage collection; `features` builds objects only when read.
  */
 import { effectiveDensity, localWidthFromCoverage, openRegions, rasterizeOpenRegions, windowDensity, type Grid, type WindowDensity } from '../geometry';
 import { featureTableInThreads } from '../geometry/parallel-features';
@@ -140,10 +143,13 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   const effective = effectiveDensity(coverage, grid, { lengthUm: kernel.lengthUm, kernel: kernel.kind, outside: kernel.outside });
 
   clock.begin('features');
-  const featureTable = featureTableInThreads(regions, { polarity, regionDbu }); // two threads on big layouts, same result
+  // Two threads on big layouts, same result. The local-width map (needs only the coverage) is computed on this
+  // thread while the worker starts and takes chunks; its time then counts under 'features'.
+  let localWidth: Float32Array | null = null;
+  const featureTable = featureTableInThreads(regions, { polarity, regionDbu }, {}, () => (localWidth = localWidthFromCoverage(coverage, grid)));
 
   clock.begin('local-width');
-  const localWidth = localWidthFromCoverage(coverage, grid);
+  localWidth ??= localWidthFromCoverage(coverage, grid);
 
   clock.begin('prediction');
   const results = predictFeatureTable(featureTable, effective, grid, predictionModel, {
