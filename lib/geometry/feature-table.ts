@@ -74,6 +74,13 @@ export function trimFeatureTable(t: FeatureTable): FeatureTable {
   return out;
 }
 
+/** Rows [from, to) as views into t's columns (no copy). */
+export function sliceFeatureTable(t: FeatureTable, from: number, to: number): FeatureTable {
+  const out = { count: to - from, id: t.id.subarray(from, to), kind: t.kind.subarray(from, to), widthExact: t.widthExact.subarray(from, to), pieces: t.pieces.subarray(from, to) } as FeatureTable;
+  for (const c of FEATURE_F64_COLUMNS) out[c] = t[c].subarray(from, to);
+  return out;
+}
+
 /** Appends rows; `finish()` returns a tight table. */
 export class FeatureTableBuilder {
   private t: FeatureTable;

@@ -25,6 +25,8 @@ export {
   featureTableOf,
   numberFeatureTable,
   permuteFeatureTable,
+  sliceFeatureTable,
+  trimFeatureTable,
   type FeatureRow,
   type FeatureTable,
 } from './feature-table';

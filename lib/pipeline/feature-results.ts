@@ -112,9 +112,11 @@ export function excursionKeys(bits: number): string[] {
 /**
  * The rows of several tables one after the other (tiles or shards of one analysis, predicted with one model: the
  * first part's range is kept). Note lists are merged by content. Ids are kept; renumbering is the caller's.
+ * `features`: the geometry of the joined rows when the caller already has it (parts cut from one table), else the
+ * parts' feature tables are joined too.
  */
-export function concatFeatureResultTables(parts: readonly FeatureResultTable[]): FeatureResultTable {
-  const features = concatFeatureTables(parts.map((p) => p.features));
+export function concatFeatureResultTables(parts: readonly FeatureResultTable[], features = concatFeatureTables(parts.map((p) => p.features))): FeatureResultTable {
+  if (features.count !== parts.reduce((s, p) => s + p.count, 0)) throw new Error('result table parts and feature rows differ in number');
   const out = emptyFeatureResultTable(features, parts[0]?.range ?? null);
   const lists: (readonly string[])[] = [out.noteLists[0] as readonly string[]];
   const byKey = new Map<string, number>([['', 0]]);

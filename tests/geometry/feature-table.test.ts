@@ -4,7 +4,7 @@
  * order), on seeded data with negative coordinates, -0, repeated keys and NaN-free floats.
  */
 import { describe, expect, it } from 'vitest';
-import { concatFeatureTables, extractFeatures, extractFeatureTable, featureAt, featureIdOrder, featureList, FeatureTableBuilder, featureTableOf, numberFeatureTable, type Feature, type FeatureRow } from '@/lib/geometry';
+import { concatFeatureTables, extractFeatures, extractFeatureTable, featureAt, featureIdOrder, featureList, FeatureTableBuilder, featureTableOf, numberFeatureTable, sliceFeatureTable, type Feature, type FeatureRow } from '@/lib/geometry';
 import { makeSet, mulberry32, ngon, rect, type Ring } from './make-set';
 
 function randomRows(n: number, seed: number): FeatureRow[] {
@@ -65,5 +65,6 @@ describe('FeatureTable', () => {
     expect(joined.count).toBe(fs.length);
     expect(featureList(joined)).toEqual(fs);
     expect(featureAt(joined, 2)).toEqual(fs[2]);
+    expect(featureList(sliceFeatureTable(joined, 1, 3))).toEqual(fs.slice(1, 3));
   });
 });

@@ -48,6 +48,10 @@ describe('FeatureResultTable', () => {
     expect(two.count).toBe(2 * t.count);
     expect(two.noteLists.length).toBe(t.noteLists.length);
     expect(featureResultList(two)).toEqual([...list, ...list]);
+    // Parts cut from one table, joined onto that table's own geometry.
+    const cut = concatFeatureResultTables([t], t.features);
+    expect(cut.features).toBe(t.features);
+    expect(featureResultList(cut)).toEqual(list);
   });
 
   it('summary tallies equal the per-object tally (first-seen order, then by count)', () => {
