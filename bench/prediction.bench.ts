@@ -5,8 +5,8 @@
  * Run: npm run bench -- prediction, or npx tsx bench/run.ts prediction
  */
 import { loadavg } from 'node:os';
-import type { Feature, Grid } from '../lib/geometry';
-import { predictFeatures } from '../lib/pipeline/predict-features';
+import { featureTableOf, type Feature, type Grid } from '../lib/geometry';
+import { predictFeatureTable } from '../lib/pipeline/predict-features';
 import { createArdeEvaluators, createFeaturePredictor, parseProcessModel, predictFeature, type FeatureInput, type ProcessModelInput } from '../lib/etch';
 
 const BASE: ProcessModelInput = {
@@ -72,9 +72,10 @@ export default async function predictionBench(): Promise<void> {
       areaUm2: w * 4 * w, perimeterUm: 10 * w, minWidthUm: w, maxWidthUm: w, lengthUm: 4 * w, widthStepUm: 0, widthExact: true, pieces: 1,
     };
   });
+  const table = featureTableOf(features);
   const tp = performance.now();
-  const results = predictFeatures(features, effective, grid, parsed.model, { exposedFraction: 0.3 });
+  const results = predictFeatureTable(table, effective, grid, parsed.model, { exposedFraction: 0.3 });
   const stageS = (performance.now() - tp) / 1000;
-  console.log(`pipeline predictFeatures, ${results.length} openings (continuous, neutral): ${stageS.toFixed(2)} s (${((stageS * 1e6) / results.length).toFixed(2)} µs/opening)`);
+  console.log(`pipeline predictFeatureTable, ${results.count} openings (continuous, neutral): ${stageS.toFixed(2)} s (${((stageS * 1e6) / results.count).toFixed(2)} µs/opening)`);
   console.log(`load average (1/5/15 min) at end: ${loadavg().map((v) => v.toFixed(2)).join(' ')}`);
 }

@@ -1,54 +1,29 @@
 /**
- * Features packed into one Float64Array (16 numbers each) for handing between threads: structured-cloning 10⁵–10⁶
- * objects costs more than measuring them.
+ * Feature tables handed between threads: the columns' buffers are transferred (moved, not copied), so a shard of
+ * 10⁵–10⁶ features crosses in constant time. `unpackFeatureTable` checks what arrived before the pipeline trusts it.
  */
-import type { Feature, FeatureKind } from './types';
+import { FEATURE_F64_COLUMNS, type FeatureTable } from './feature-table';
 
-const KINDS: FeatureKind[] = ['round-hole', 'square-hole', 'trench', 'open-field', 'irregular'];
-export const PACKED_FEATURE_SIZE = 16;
-
-export function packFeatures(fs: readonly Feature[]): Float64Array {
-  const a = new Float64Array(fs.length * PACKED_FEATURE_SIZE);
-  let o = 0;
-  for (const f of fs) {
-    a[o] = f.id;
-    a[o + 1] = KINDS.indexOf(f.kind);
-    a[o + 2] = f.centroidUm[0];
-    a[o + 3] = f.centroidUm[1];
-    a[o + 4] = f.bboxUm[0];
-    a[o + 5] = f.bboxUm[1];
-    a[o + 6] = f.bboxUm[2];
-    a[o + 7] = f.bboxUm[3];
-    a[o + 8] = f.areaUm2;
-    a[o + 9] = f.perimeterUm;
-    a[o + 10] = f.minWidthUm;
-    a[o + 11] = f.maxWidthUm;
-    a[o + 12] = f.lengthUm;
-    a[o + 13] = f.widthStepUm;
-    a[o + 14] = f.widthExact ? 1 : 0;
-    a[o + 15] = f.pieces;
-    o += PACKED_FEATURE_SIZE;
-  }
-  return a;
+/** The table and the buffers to put in postMessage's transfer list (its columns must not share a buffer). */
+export function packFeatureTable(t: FeatureTable): { table: FeatureTable; transfer: ArrayBuffer[] } {
+  const cols = [t.id, t.kind, t.widthExact, t.pieces, ...FEATURE_F64_COLUMNS.map((c) => t[c])];
+  const buffers = new Set(cols.map((c) => c.buffer as ArrayBuffer));
+  if (buffers.size !== cols.length) throw new Error('feature table columns share a buffer: trim it before transfer');
+  return { table: t, transfer: [...buffers] };
 }
 
-export function unpackFeatures(a: Float64Array): Feature[] {
-  const out: Feature[] = new Array<Feature>(a.length / PACKED_FEATURE_SIZE);
-  for (let k = 0, o = 0; o < a.length; k++, o += PACKED_FEATURE_SIZE) {
-    out[k] = {
-      id: a[o] as number,
-      kind: KINDS[a[o + 1] as number] as FeatureKind,
-      centroidUm: [a[o + 2] as number, a[o + 3] as number],
-      bboxUm: [a[o + 4] as number, a[o + 5] as number, a[o + 6] as number, a[o + 7] as number],
-      areaUm2: a[o + 8] as number,
-      perimeterUm: a[o + 9] as number,
-      minWidthUm: a[o + 10] as number,
-      maxWidthUm: a[o + 11] as number,
-      lengthUm: a[o + 12] as number,
-      widthStepUm: a[o + 13] as number,
-      widthExact: a[o + 14] === 1,
-      pieces: a[o + 15] as number,
-    };
-  }
-  return out;
+/** The received table, or an error naming what is wrong with it. */
+export function unpackFeatureTable(x: unknown): FeatureTable {
+  const t = x as Partial<FeatureTable> | null;
+  if (!t || typeof t.count !== 'number' || !Number.isInteger(t.count) || t.count < 0) throw new Error('feature table: bad count');
+  const n = t.count;
+  const check = (name: string, a: unknown, Ctor: Function) => {
+    if (!(a instanceof Ctor) || (a as ArrayLike<number>).length < n) throw new Error(`feature table: column ${name} missing or short`);
+  };
+  check('id', t.id, Uint32Array);
+  check('kind', t.kind, Uint8Array);
+  check('widthExact', t.widthExact, Uint8Array);
+  check('pieces', t.pieces, Uint32Array);
+  for (const c of FEATURE_F64_COLUMNS) check(c, t[c], Float64Array);
+  return t as FeatureTable;
 }

@@ -10,6 +10,26 @@ export { squaredDistanceTransform, thicknessTransform } from './distance';
 export { latticeInterior, type Lattice } from './lattice';
 export { featureWidths, shapeKey, type WidthCache, type WidthOptions, type WidthResult } from './widths';
 export { extractFeatures, featuresFromRegions, classifyFeature, numberFeatures, type FeatureOptions } from './features';
+export { extractFeatureTable, featureTableFromRegions } from './features';
+export {
+  FEATURE_KINDS,
+  FEATURE_F64_COLUMNS,
+  FeatureTableBuilder,
+  concatFeatureTables,
+  emptyFeatureTable,
+  featureAt,
+  featureColumns,
+  featureIdOrder,
+  featureKindCode,
+  featureList,
+  featureTableOf,
+  numberFeatureTable,
+  permuteFeatureTable,
+  sliceFeatureTable,
+  trimFeatureTable,
+  type FeatureRow,
+  type FeatureTable,
+} from './feature-table';
 export { localWidthMap, localWidthFromCoverage } from './local-width';
 export { FeatureIndex } from './feature-index';
 export { gridForBox, alignedPixelUm, lengthGcd } from './grid';

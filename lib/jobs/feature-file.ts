@@ -14,6 +14,8 @@
  * NaN numbers are stored as 0, like the analysis_features table did (SQLite REAL NOT NULL cannot hold NaN).
  */
 import { closeSync, openSync, readSync } from 'node:fs';
+import { FEATURE_KINDS } from '@/lib/geometry/feature-table';
+import { excursionKeys, NULL_DEPTH_SIGMA, type FeatureResultTable } from '@/lib/pipeline/feature-results';
 import type { FeatureResult } from '@/lib/pipeline/predict-features';
 
 export const FEATURE_FILE_NAME = 'features.trfeat';
@@ -105,65 +107,39 @@ function layoutFor(n: number): { header: FeatureFileHeader; end: number } {
   return { header, end: at };
 }
 
-/** Encodes results (about 125 bytes per opening) with the columns written in place. */
-export function encodeFeatureFile(results: FeatureResult[]): EncodedFeatureFile {
-  const n = results.length;
+/** The columns of a new file for `n` rows, as views into its body (filled by the encoders below). */
+function columnsFor(n: number) {
   const { header, end } = layoutFor(n);
   const body = new Uint8Array(end);
   const col = new Map(header.columns.map((c) => [c.name, c.offset]));
   const f64 = (name: string) => new Float64Array(body.buffer, col.get(name) as number, n);
-  const xUm = f64('xUm');
-  const yUm = f64('yUm');
-  const x0Um = f64('x0Um');
-  const y0Um = f64('y0Um');
-  const x1Um = f64('x1Um');
-  const y1Um = f64('y1Um');
-  const areaUm2 = f64('areaUm2');
-  const widthUm = f64('widthUm');
-  const lengthUm = f64('lengthUm');
-  const effectiveDensity = f64('effectiveDensity');
-  const depthUm = f64('depthUm');
-  const aspectRatio = f64('aspectRatio');
-  const marginUm = f64('marginUm');
-  const overEtchUm = f64('overEtchUm');
-  const depthSigmaUm = f64('depthSigmaUm');
-  const featureId = new Int32Array(body.buffer, col.get('featureId') as number, n);
-  const shape = new Uint8Array(body.buffer, col.get('shape') as number, n);
-  const modelKind = new Uint8Array(body.buffer, col.get('modelKind') as number, n);
-  const reachesTarget = new Uint8Array(body.buffer, col.get('reachesTarget') as number, n);
-  const warnings = new Uint32Array(body.buffer, col.get('warnings') as number, n);
-  const shapeIndex = new Map<string, number>();
-  const warningIndex = new Map<string, number>([['', 0]]);
-  for (let k = 0; k < n; k++) {
-    const r = results[k] as FeatureResult;
-    featureId[k] = r.id;
-    xUm[k] = num(r.centroidUm[0]);
-    yUm[k] = num(r.centroidUm[1]);
-    x0Um[k] = num(r.bboxUm[0]);
-    y0Um[k] = num(r.bboxUm[1]);
-    x1Um[k] = num(r.bboxUm[2]);
-    y1Um[k] = num(r.bboxUm[3]);
-    areaUm2[k] = num(r.areaUm2);
-    widthUm[k] = num(r.widthUm);
-    lengthUm[k] = num(r.lengthUm);
-    effectiveDensity[k] = num(r.effectiveDensity);
-    depthUm[k] = num(r.depthUm);
-    aspectRatio[k] = num(r.aspectRatio);
-    marginUm[k] = num(r.marginUm);
-    overEtchUm[k] = num(r.overEtchUm);
-    depthSigmaUm[k] = r.depthSigmaUm ?? Number.NaN;
-    let s = shapeIndex.get(r.shape);
-    if (s === undefined) shapeIndex.set(r.shape, (s = shapeIndex.size));
-    shape[k] = s;
-    modelKind[k] = r.modelKind === 'hole' ? 1 : 0;
-    reachesTarget[k] = r.reachesTarget ? 1 : 0;
-    if (r.warnings.length === 0 && r.excursions.length === 0) continue; // warnings[k] = 0 (''), already zero
-    const w = warningText(r);
-    let wi = warningIndex.get(w);
-    if (wi === undefined) warningIndex.set(w, (wi = warningIndex.size));
-    warnings[k] = wi;
-  }
-  const tableJson: FeatureFileTables = { shapes: [...shapeIndex.keys()], warnings: [...warningIndex.keys()] };
+  const cols = {
+    xUm: f64('xUm'),
+    yUm: f64('yUm'),
+    x0Um: f64('x0Um'),
+    y0Um: f64('y0Um'),
+    x1Um: f64('x1Um'),
+    y1Um: f64('y1Um'),
+    areaUm2: f64('areaUm2'),
+    widthUm: f64('widthUm'),
+    lengthUm: f64('lengthUm'),
+    effectiveDensity: f64('effectiveDensity'),
+    depthUm: f64('depthUm'),
+    aspectRatio: f64('aspectRatio'),
+    marginUm: f64('marginUm'),
+    overEtchUm: f64('overEtchUm'),
+    depthSigmaUm: f64('depthSigmaUm'),
+    featureId: new Int32Array(body.buffer, col.get('featureId') as number, n),
+    shape: new Uint8Array(body.buffer, col.get('shape') as number, n),
+    modelKind: new Uint8Array(body.buffer, col.get('modelKind') as number, n),
+    reachesTarget: new Uint8Array(body.buffer, col.get('reachesTarget') as number, n),
+    warnings: new Uint32Array(body.buffer, col.get('warnings') as number, n),
+  };
+  return { header, end, body, cols };
+}
+
+/** Header JSON and string tables written around the filled columns. */
+function finishFile(header: FeatureFileHeader, end: number, body: Uint8Array, tableJson: FeatureFileTables): EncodedFeatureFile {
   const tables = new TextEncoder().encode(JSON.stringify(tableJson));
   header.tables.length = tables.length;
   const json = new TextEncoder().encode(JSON.stringify(header));
@@ -173,6 +149,103 @@ export function encodeFeatureFile(results: FeatureResult[]): EncodedFeatureFile 
   new DataView(body.buffer).setUint32(8, json.length, true);
   body.set(json, 12);
   return { body, tables, byteLength: body.length + tables.length };
+}
+
+/**
+ * Encodes results (about 125 bytes per opening) with the columns written in place: a result table (what the
+ * pipeline produces; column copies) or `FeatureResult` objects (tests, older callers). Same bytes for the same rows.
+ */
+export function encodeFeatureFile(results: FeatureResultTable | readonly FeatureResult[]): EncodedFeatureFile {
+  return Array.isArray(results) ? encodeObjects(results as readonly FeatureResult[]) : encodeTable(results as FeatureResultTable);
+}
+
+function encodeObjects(results: readonly FeatureResult[]): EncodedFeatureFile {
+  const n = results.length;
+  const { header, end, body, cols: c } = columnsFor(n);
+  const shapeIndex = new Map<string, number>();
+  const warningIndex = new Map<string, number>([['', 0]]);
+  for (let k = 0; k < n; k++) {
+    const r = results[k] as FeatureResult;
+    c.featureId[k] = r.id;
+    c.xUm[k] = num(r.centroidUm[0]);
+    c.yUm[k] = num(r.centroidUm[1]);
+    c.x0Um[k] = num(r.bboxUm[0]);
+    c.y0Um[k] = num(r.bboxUm[1]);
+    c.x1Um[k] = num(r.bboxUm[2]);
+    c.y1Um[k] = num(r.bboxUm[3]);
+    c.areaUm2[k] = num(r.areaUm2);
+    c.widthUm[k] = num(r.widthUm);
+    c.lengthUm[k] = num(r.lengthUm);
+    c.effectiveDensity[k] = num(r.effectiveDensity);
+    c.depthUm[k] = num(r.depthUm);
+    c.aspectRatio[k] = num(r.aspectRatio);
+    c.marginUm[k] = num(r.marginUm);
+    c.overEtchUm[k] = num(r.overEtchUm);
+    c.depthSigmaUm[k] = r.depthSigmaUm ?? Number.NaN;
+    let s = shapeIndex.get(r.shape);
+    if (s === undefined) shapeIndex.set(r.shape, (s = shapeIndex.size));
+    c.shape[k] = s;
+    c.modelKind[k] = r.modelKind === 'hole' ? 1 : 0;
+    c.reachesTarget[k] = r.reachesTarget ? 1 : 0;
+    if (r.warnings.length === 0 && r.excursions.length === 0) continue; // warnings[k] = 0 (''), already zero
+    const w = warningText(r);
+    let wi = warningIndex.get(w);
+    if (wi === undefined) warningIndex.set(w, (wi = warningIndex.size));
+    c.warnings[k] = wi;
+  }
+  return finishFile(header, end, body, { shapes: [...shapeIndex.keys()], warnings: [...warningIndex.keys()] });
+}
+
+function encodeTable(t: FeatureResultTable): EncodedFeatureFile {
+  const n = t.count;
+  const f = t.features;
+  const { header, end, body, cols: c } = columnsFor(n);
+  const copy = (dst: Float64Array, src: Float64Array) => {
+    for (let k = 0; k < n; k++) dst[k] = num(src[k] as number);
+  };
+  copy(c.xUm, f.centroidXUm);
+  copy(c.yUm, f.centroidYUm);
+  copy(c.x0Um, f.x0Um);
+  copy(c.y0Um, f.y0Um);
+  copy(c.x1Um, f.x1Um);
+  copy(c.y1Um, f.y1Um);
+  copy(c.areaUm2, f.areaUm2);
+  copy(c.widthUm, t.widthUm);
+  copy(c.lengthUm, f.lengthUm);
+  copy(c.effectiveDensity, t.effectiveDensity);
+  copy(c.depthUm, t.depthUm);
+  copy(c.aspectRatio, t.aspectRatio);
+  copy(c.marginUm, t.marginUm);
+  copy(c.overEtchUm, t.overEtchUm);
+  c.modelKind.set(t.modelKind.subarray(0, n));
+  c.reachesTarget.set(t.reachesTarget.subarray(0, n));
+  // Shape and warning indices in first-appearance order, as encodeObjects numbers them.
+  const shapeOf = new Int16Array(FEATURE_KINDS.length).fill(-1);
+  const shapes: string[] = [];
+  const warningIndex = new Map<string, number>([['', 0]]);
+  const rowText = new Map<number, number>(); // (note list, excursion bits) → warning index
+  for (let k = 0; k < n; k++) {
+    c.featureId[k] = f.id[k] as number;
+    c.depthSigmaUm[k] = (t.nulls[k] as number) & NULL_DEPTH_SIGMA ? Number.NaN : (t.depthSigmaUm[k] as number);
+    const kind = f.kind[k] as number;
+    if (shapeOf[kind] === -1) {
+      shapeOf[kind] = shapes.length;
+      shapes.push(FEATURE_KINDS[kind] as string);
+    }
+    c.shape[k] = shapeOf[kind] as number;
+    const li = t.notes[k] as number, bits = t.excursions[k] as number;
+    if (li === 0 && bits === 0) continue;
+    const key = li * 8 + bits;
+    let wi = rowText.get(key);
+    if (wi === undefined) {
+      const w = [...(t.noteLists[li] as readonly string[]), ...excursionKeys(bits)].join('; ');
+      wi = warningIndex.get(w);
+      if (wi === undefined) warningIndex.set(w, (wi = warningIndex.size));
+      rowText.set(key, wi);
+    }
+    c.warnings[k] = wi;
+  }
+  return finishFile(header, end, body, { shapes, warnings: [...warningIndex.keys()] });
 }
 
 /** Both parts in one buffer (tests, small files). */

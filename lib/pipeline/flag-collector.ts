@@ -43,12 +43,32 @@ export function emptyFlagCounts(): FlagCounts {
 export class FlagCollector implements FlagSink {
   readonly counts: FlagCounts = emptyFlagCounts();
   total = 0;
-  private kept: (RankKey & { flag: Flag })[] = [];
+  /** A kept flag, or (flag null) the reference `ref` to build it from at list() time (offerDeferred). */
+  private kept: (RankKey & { flag: Flag | null; ref: number })[] = [];
   /** Rank of the worst kept flag after the last trim (null until `cap` flags were kept). */
   private cut: RankKey | null = null;
   constructor(private readonly cap: number) {}
 
   offer(id: string, kind: FlagKind, severity: Severity, measured: number, limit: number, build: () => Flag): void {
+    if (this.rank(id, kind, severity, measured, limit)) this.keep(severity, exceedanceOf(measured, limit), id, build(), -1);
+  }
+
+  /**
+   * Like offer, but a kept flag is only remembered as `ref` (e.g. a row of a result table) and built by the
+   * `resolve` given to list(): of the many flags that rank above the cut for a while on a big layout, only the
+   * final `cap` get messages built.
+   */
+  offerDeferred(id: string, kind: FlagKind, severity: Severity, measured: number, limit: number, ref: number): void {
+    if (this.rank(id, kind, severity, measured, limit)) this.keep(severity, exceedanceOf(measured, limit), id, null, ref);
+  }
+
+  private keep(severity: Severity, ex: number, id: string, flag: Flag | null, ref: number): void {
+    this.kept.push({ severity, ex, id, flag, ref });
+    if (this.kept.length >= 2 * this.cap) this.trim();
+  }
+
+  /** Counts the flag; true when it ranks above the current cut (so it must be kept). */
+  private rank(id: string, kind: FlagKind, severity: Severity, measured: number, limit: number): boolean {
     this.counts[kind][severity]++;
     this.total++;
     const ex = exceedanceOf(measured, limit);
@@ -56,15 +76,14 @@ export class FlagCollector implements FlagSink {
     const cut = this.cut;
     if (cut) {
       const bySeverity = SEVERITY_RANK[severity] - SEVERITY_RANK[cut.severity];
-      if (bySeverity > 0) return;
+      if (bySeverity > 0) return false;
       if (bySeverity === 0) {
         const d = cut.ex - ex; // as compareKeys: NaN falls through to the id, like 0
-        if (d > 0) return;
-        if (!(d < 0) && id >= cut.id) return;
+        if (d > 0) return false;
+        if (!(d < 0) && id >= cut.id) return false;
       }
     }
-    this.kept.push({ severity, ex, id, flag: build() });
-    if (this.kept.length >= 2 * this.cap) this.trim();
+    return true;
   }
 
   add(flags: Iterable<Flag>): void {
@@ -80,9 +99,16 @@ export class FlagCollector implements FlagSink {
     }
   }
 
-  /** The kept flags, worst first (errors, then warnings, then info; within each, furthest beyond its limit first). */
-  list(): Flag[] {
+  /**
+   * The kept flags, worst first (errors, then warnings, then info; within each, furthest beyond its limit first).
+   * Deferred flags are built with `resolve(ref, id)`.
+   */
+  list(resolve?: (ref: number, id: string) => Flag): Flag[] {
     this.trim();
-    return this.kept.map((k) => k.flag);
+    return this.kept.map((k) => {
+      if (k.flag) return k.flag;
+      if (!resolve) throw new Error(`flag ${k.id} was deferred: list() needs a resolver`);
+      return (k.flag = resolve(k.ref, k.id));
+    });
   }
 }

@@ -140,7 +140,8 @@ function emitFeatureFlag(
     id,
     kind,
     severity,
-    bboxUm: f.bboxUm,
+    // A copy: callers refill one input per opening.
+    bboxUm: [f.bboxUm[0], f.bboxUm[1], f.bboxUm[2], f.bboxUm[3]],
     xUm: f.centroidUm[0],
     yUm: f.centroidUm[1],
     featureId: f.featureId,

@@ -48,5 +48,15 @@ export { mapFileName } from './map-files';
 export { runAnalysis, ANALYSIS_STAGES, dieDensity, dieRegionCoverage, type AnalysisHooks, type AnalysisResult, type AnalysisStage } from './run-analysis';
 export type { AnalysisSummary, DepthSummary, WindowSummary } from './summary';
 export type { FeatureResult, ModelKind } from './predict-features';
+export { predictFeatureTable } from './predict-features';
+export {
+  concatFeatureResultTables,
+  featureResultAt,
+  featureResultList,
+  noFeatureResults,
+  MODEL_KINDS,
+  RESULT_F64_COLUMNS,
+  type FeatureResultTable,
+} from './feature-results';
 export { featureRisk, RISK_CAP } from './result-maps';
 export { AnalysisAbortedError, AnalysisInputError, isAbortError, type AnalysisInputErrorCode } from './errors';

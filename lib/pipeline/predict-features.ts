@@ -18,8 +18,9 @@
  * Uncertainty: with a calibrated model that records its parameter covariance, each opening gets depthSigmaUm, the
  * standard deviation of its predicted depth (lib/etch/uncertainty.ts); null otherwise.
  */
-import type { Feature, Grid } from '../geometry';
-import { createDepthUncertainty, createFeaturePredictor, type FeaturePrediction, type ProcessModel } from '../etch';
+import { FEATURE_KINDS, featureTableOf, type Feature, type FeatureTable, type Grid } from '../geometry';
+import { createDepthUncertainty, createFeaturePredictor, type FeatureInput, type FeaturePrediction, type ProcessModel } from '../etch';
+import { emptyFeatureResultTable, featureResultList, NULL_DEPTH_SIGMA, NULL_MASK_REMAINING, NULL_TIME_TO_TARGET, type FeatureResultTable } from './feature-results';
 import type { RangeExcursion } from './flags';
 
 export type ModelKind = 'trench' | 'hole';
@@ -130,7 +131,16 @@ export interface PredictOptions {
   every?: number;
 }
 
+/** `predictFeatureTable` over `Feature` objects, as `FeatureResult` objects (tests, benches, small layouts). */
 export function predictFeatures(features: Feature[], effective: Float32Array, grid: Grid, model: ProcessModel, opts: PredictOptions): FeatureResult[] {
+  return featureResultList(predictFeatureTable(featureTableOf(features), effective, grid, model, opts));
+}
+
+/**
+ * Predictions for every row of a feature table (see module doc), as columns. `rows` limits the work to
+ * [from, to) (the other rows stay zero), so callers can split a table between threads.
+ */
+export function predictFeatureTable(features: FeatureTable, effective: Float32Array, grid: Grid, model: ProcessModel, opts: PredictOptions & { rows?: [number, number] }): FeatureResultTable {
   const predict = createFeaturePredictor(model);
   const uncertainty = createDepthUncertainty(model);
   const sigmaCache = new Map<string, number>();
@@ -140,58 +150,92 @@ export function predictFeatures(features: Feature[], effective: Float32Array, gr
   const meanWidthNote = 'no measurable smallest width: the mean width 2·area/perimeter was used';
   const range = calibratedRangeOf(model);
   const every = opts.every ?? 2048;
-  const out: FeatureResult[] = new Array(features.length);
-  for (let n = 0; n < features.length; n++) {
-    if (opts.onTick && n % every === 0) opts.onTick(n, features.length);
-    const f = features[n] as Feature;
-    const modelKind = modelKindOf(f.kind);
+  const t = emptyFeatureResultTable(features, range);
+  // Distinct note lists by their raw warnings (and whether the mean width was used): index into t.noteLists.
+  const lists: (readonly string[])[] = [t.noteLists[0] as readonly string[]];
+  const listOf = new Map<string, number>();
+  const byContent = new Map<string, number>();
+  const f = features;
+  const [from, to] = opts.rows ?? [0, f.count];
+  const total = to - from;
+  const input: FeatureInput = { widthUm: 0, kind: 'trench', effectiveDensity: 0, exposedFraction: opts.exposedFraction };
+  for (let n = from; n < to; n++) {
+    if (opts.onTick && (n - from) % every === 0) opts.onTick(n - from, total);
+    const shape = FEATURE_KINDS[f.kind[n] as number] as Feature['kind'];
+    const modelKind = modelKindOf(shape);
+    const minWidthUm = f.minWidthUm[n] as number, perimeterUm = f.perimeterUm[n] as number;
     // A sliver can come out of width extraction with no measurable width; fall back to its mean width
     // 2·area/perimeter so one odd shape cannot stop the whole analysis.
-    const measurable = f.minWidthUm > 0;
-    const widthUm = measurable ? f.minWidthUm : f.perimeterUm > 0 ? (2 * f.areaUm2) / f.perimeterUm : 0;
-    if (!(widthUm > 0)) throw new RangeError(`opening #${f.id} at (${f.centroidUm[0]}, ${f.centroidUm[1]}) µm has no measurable width`);
-    const rho = Math.round(sampleGrid(effective, grid, f.centroidUm[0], f.centroidUm[1]) * 1e4) / 1e4;
+    const measurable = minWidthUm > 0;
+    const widthUm = measurable ? minWidthUm : perimeterUm > 0 ? (2 * (f.areaUm2[n] as number)) / perimeterUm : 0;
+    if (!(widthUm > 0)) throw new RangeError(`opening #${f.id[n]} at (${f.centroidXUm[n]}, ${f.centroidYUm[n]}) µm has no measurable width`);
+    const rho = Math.round(sampleGrid(effective, grid, f.centroidXUm[n] as number, f.centroidYUm[n] as number) * 1e4) / 1e4;
+    input.widthUm = widthUm;
+    input.kind = modelKind;
+    input.effectiveDensity = rho;
     let p: FeaturePrediction | undefined;
     if (cache) {
       const key = `${modelKind}|${widthUm}|${rho}`;
       p = cache.get(key);
-      if (!p) cache.set(key, (p = predict({ widthUm, kind: modelKind, effectiveDensity: rho, exposedFraction: opts.exposedFraction })));
+      if (!p) cache.set(key, (p = predict({ ...input })));
     } else {
-      p = predict({ widthUm, kind: modelKind, effectiveDensity: rho, exposedFraction: opts.exposedFraction });
+      p = predict(input);
     }
-    let depthSigmaUm: number | null = null;
+    let nulls = 0;
     if (uncertainty) {
       // Repeated openings (same kind, width, density) are common: evaluate their σ once.
       const key = `${modelKind}|${widthUm}|${rho}`;
-      depthSigmaUm = sigmaCache.get(key) ?? null;
-      if (depthSigmaUm === null) {
-        depthSigmaUm = uncertainty.sigmaUm({ widthUm, kind: modelKind, effectiveDensity: rho, exposedFraction: opts.exposedFraction });
-        if (sigmaCache.size < 200_000) sigmaCache.set(key, depthSigmaUm);
+      let sigma = sigmaCache.get(key);
+      if (sigma === undefined) {
+        sigma = uncertainty.sigmaUm({ ...input });
+        if (sigmaCache.size < 200_000) sigmaCache.set(key, sigma);
       }
+      t.depthSigmaUm[n] = sigma;
+    } else {
+      t.depthSigmaUm[n] = Number.NaN;
+      nulls |= NULL_DEPTH_SIGMA;
     }
-    out[n] = {
-      id: f.id,
-      shape: f.kind,
-      modelKind,
-      centroidUm: f.centroidUm,
-      bboxUm: f.bboxUm,
-      areaUm2: f.areaUm2,
-      widthUm,
-      lengthUm: f.lengthUm,
-      effectiveDensity: rho,
-      depthUm: p.depthUm,
-      aspectRatio: p.aspectRatio,
-      marginUm: p.marginUm,
-      overEtchUm: p.overEtchUm,
-      timeToTargetMin: p.timeToTargetMin,
-      reachesTarget: p.reachesTarget,
-      depthSigmaUm,
-      maskRemainingUm: p.maskRemainingUm,
-      stopped: p.stopped,
-      warnings: measurable ? notesOf(p.warnings, noteCache) : [...notesOf(p.warnings, noteCache), meanWidthNote],
-      excursions: excursionsOf(range, widthUm, p.aspectRatio, rho),
-    };
+    t.modelKind[n] = modelKind === 'hole' ? 1 : 0;
+    t.widthUm[n] = widthUm;
+    t.effectiveDensity[n] = rho;
+    t.depthUm[n] = p.depthUm;
+    t.aspectRatio[n] = p.aspectRatio;
+    t.marginUm[n] = p.marginUm;
+    t.overEtchUm[n] = p.overEtchUm;
+    if (p.timeToTargetMin === null) {
+      nulls |= NULL_TIME_TO_TARGET;
+      t.timeToTargetMin[n] = Number.NaN;
+    } else t.timeToTargetMin[n] = p.timeToTargetMin;
+    if (p.maskRemainingUm === null) {
+      nulls |= NULL_MASK_REMAINING;
+      t.maskRemainingUm[n] = Number.NaN;
+    } else t.maskRemainingUm[n] = p.maskRemainingUm;
+    t.nulls[n] = nulls;
+    t.reachesTarget[n] = p.reachesTarget ? 1 : 0;
+    t.stopped[n] = p.stopped ? 1 : 0;
+    if (measurable && p.warnings.length === 0) t.notes[n] = 0;
+    else {
+      const key = (measurable ? '' : '\u0001') + p.warnings.join('\u0000');
+      let li = listOf.get(key);
+      if (li === undefined) {
+        const notes = measurable ? notesOf(p.warnings, noteCache) : [...notesOf(p.warnings, noteCache), meanWidthNote];
+        // Raw warnings differ in their numbers; the notes do not: one list per distinct content.
+        const content = notes.join('\u0000');
+        li = notes.length === 0 ? 0 : byContent.get(content);
+        if (li === undefined) byContent.set(content, (li = lists.push(Object.freeze(notes)) - 1));
+        listOf.set(key, li);
+      }
+      t.notes[n] = li;
+    }
+    if (range) t.excursions[n] = excursionBits(range, widthUm, p.aspectRatio, rho);
   }
-  opts.onTick?.(features.length, features.length);
-  return out;
+  t.noteLists = lists;
+  opts.onTick?.(total, total);
+  return t;
+}
+
+/** EXCURSION_BITS of excursionsOf(range, …) without building the list. */
+function excursionBits(range: CalibratedRange, widthUm: number, aspectRatio: number, density: number): number {
+  const out = (v: number, r: [number, number] | undefined) => r !== undefined && (v < r[0] || v > r[1]);
+  return (out(widthUm, range.widthUm) ? 1 : 0) | (out(aspectRatio, range.aspectRatio) ? 2 : 0) | (out(density, range.density) ? 4 : 0);
 }

@@ -16,6 +16,7 @@
  * the model carries a calibration covariance (otherwise null).
  */
 import type { Grid } from '../geometry';
+import { NULL_DEPTH_SIGMA, type FeatureResultTable } from './feature-results';
 import { requiredAspectRatio } from './flags';
 import type { FeatureResult } from './predict-features';
 import type { ResolvedLimits } from './settings';
@@ -39,26 +40,60 @@ export interface FeatureMaps {
   depthSigma: Float32Array | null;
 }
 
+/** What the painter reads per opening, as columns (row k = opening k). */
+export interface PaintColumns {
+  count: number;
+  x0Um: ArrayLike<number>;
+  y0Um: ArrayLike<number>;
+  x1Um: ArrayLike<number>;
+  y1Um: ArrayLike<number>;
+  areaUm2: ArrayLike<number>;
+  aspectRatio: ArrayLike<number>;
+  depthUm: ArrayLike<number>;
+  /** σ per opening (NaN where it has none), or null when no opening has one. */
+  depthSigmaUm: ArrayLike<number> | null;
+}
+
+/** `paintFeatureColumns` over `FeatureResult` objects. */
 export function paintFeatureMaps(results: FeatureResult[], risks: Float64Array, coverage: Float32Array, grid: Grid): FeatureMaps {
+  const n = results.length;
+  const c = { count: n, x0Um: new Float64Array(n), y0Um: new Float64Array(n), x1Um: new Float64Array(n), y1Um: new Float64Array(n), areaUm2: new Float64Array(n), aspectRatio: new Float64Array(n), depthUm: new Float64Array(n), depthSigmaUm: new Float64Array(n) };
+  let anySigma = false;
+  for (let k = 0; k < n; k++) {
+    const f = results[k] as FeatureResult;
+    [c.x0Um[k], c.y0Um[k], c.x1Um[k], c.y1Um[k]] = f.bboxUm;
+    c.areaUm2[k] = f.areaUm2;
+    c.aspectRatio[k] = f.aspectRatio;
+    c.depthUm[k] = f.depthUm;
+    c.depthSigmaUm[k] = f.depthSigmaUm ?? Number.NaN;
+    if (f.depthSigmaUm !== null) anySigma = true;
+  }
+  return paintFeatureColumns({ ...c, depthSigmaUm: anySigma ? c.depthSigmaUm : null }, risks, coverage, grid);
+}
+
+/** The painter's columns of a result table (no copies). */
+export function paintColumnsOf(t: FeatureResultTable): PaintColumns {
+  let anySigma = false;
+  for (let k = 0; k < t.count && !anySigma; k++) if (!((t.nulls[k] as number) & NULL_DEPTH_SIGMA)) anySigma = true;
+  const f = t.features;
+  return { count: t.count, x0Um: f.x0Um, y0Um: f.y0Um, x1Um: f.x1Um, y1Um: f.y1Um, areaUm2: f.areaUm2, aspectRatio: t.aspectRatio, depthUm: t.depthUm, depthSigmaUm: anySigma ? t.depthSigmaUm : null };
+}
+
+export function paintFeatureColumns(c: PaintColumns, risks: Float64Array, coverage: Float32Array, grid: Grid): FeatureMaps {
   const n = grid.nx * grid.ny;
-  const count = results.length;
+  const count = c.count;
   // One owner map instead of four value maps painted per feature: each covered pixel keeps the index of the
   // smallest-area feature whose bbox contains it, ties to the later feature — the same winner as painting in a
-  // stable largest-area-first order, without sorting a million objects.
+  // stable largest-area-first order, without sorting a million openings.
   const owner = new Int32Array(n).fill(-1);
-  const areas = new Float64Array(count);
-  let anySigma = false;
+  const areas = c.areaUm2;
   const { x0Um, y0Um, pixelUm, nx, ny } = grid;
   for (let k = 0; k < count; k++) {
-    const f = results[k] as FeatureResult;
-    const area = f.areaUm2;
-    areas[k] = area;
-    if (f.depthSigmaUm !== null) anySigma = true;
-    const b = f.bboxUm;
-    const i0 = Math.max(0, Math.floor((b[0] - x0Um) / pixelUm));
-    const i1 = Math.min(nx - 1, Math.ceil((b[2] - x0Um) / pixelUm) - 1);
-    const j0 = Math.max(0, Math.floor((b[1] - y0Um) / pixelUm));
-    const j1 = Math.min(ny - 1, Math.ceil((b[3] - y0Um) / pixelUm) - 1);
+    const area = areas[k] as number;
+    const i0 = Math.max(0, Math.floor(((c.x0Um[k] as number) - x0Um) / pixelUm));
+    const i1 = Math.min(nx - 1, Math.ceil(((c.x1Um[k] as number) - x0Um) / pixelUm) - 1);
+    const j0 = Math.max(0, Math.floor(((c.y0Um[k] as number) - y0Um) / pixelUm));
+    const j1 = Math.min(ny - 1, Math.ceil(((c.y1Um[k] as number) - y0Um) / pixelUm) - 1);
     for (let j = j0; j <= j1; j++) {
       const row = j * nx;
       for (let i = i0; i <= i1; i++) {
@@ -72,22 +107,24 @@ export function paintFeatureMaps(results: FeatureResult[], risks: Float64Array, 
   const aspectRatio = new Float32Array(n).fill(Number.NaN);
   const predictedDepth = new Float32Array(n).fill(Number.NaN);
   const risk = new Float32Array(n).fill(Number.NaN);
-  const depthSigma = anySigma ? new Float32Array(n).fill(Number.NaN) : null;
-  const ar = new Float32Array(count), depth = new Float32Array(count), sigma = new Float32Array(count);
+  const sigmaIn = c.depthSigmaUm;
+  const depthSigma = sigmaIn ? new Float32Array(n).fill(Number.NaN) : null;
+  // Values rounded to float32 once per opening, as the maps store them.
+  const ar = new Float32Array(count), depth = new Float32Array(count), risk32 = new Float32Array(count);
+  const sigma = sigmaIn ? new Float32Array(count) : null;
   for (let k = 0; k < count; k++) {
-    const f = results[k] as FeatureResult;
-    ar[k] = f.aspectRatio;
-    depth[k] = f.depthUm;
-    sigma[k] = f.depthSigmaUm ?? Number.NaN;
+    ar[k] = c.aspectRatio[k] as number;
+    depth[k] = c.depthUm[k] as number;
+    risk32[k] = risks[k] as number;
+    if (sigma) sigma[k] = (sigmaIn as ArrayLike<number>)[k] as number;
   }
-  const risk32 = Float32Array.from(risks);
   for (let p = 0; p < n; p++) {
     const o = owner[p] as number;
     if (o < 0) continue;
     aspectRatio[p] = ar[o] as number;
     predictedDepth[p] = depth[o] as number;
     risk[p] = risk32[o] as number;
-    if (depthSigma) depthSigma[p] = sigma[o] as number;
+    if (depthSigma) depthSigma[p] = (sigma as Float32Array)[o] as number;
   }
   return { aspectRatio, predictedDepth, risk, depthSigma };
 }

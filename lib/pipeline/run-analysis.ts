@@ -7,18 +7,23 @@
  * local-width → prediction → maps → flags → summary. `onProgress(stage, fraction)` is called when each stage starts,
  * a few times inside the long ones, and once more with ('done', 1); `fraction` is the overall progress 0..1 and
  * never decreases. `signal` and `isCancelled` are checked between stages and every few thousand features; an abort
- * throws AnalysisAbortedError (name 'AbortError').
+ * throws AnalysisAbortedError (name 'AbortError'). When features run on two threads, the local-width map is computed
+ * during the features stage (while the second thread works) and the local-width stage is then empty.
+ * Per-opening data stays in columns (FeatureTable, FeatureResultTable): a million objects would cost seconds of
+ * garbage collection; `features` builds objects only when read.
  */
 import { effectiveDensity, localWidthFromCoverage, openRegions, rasterizeOpenRegions, windowDensity, type Grid, type WindowDensity } from '../geometry';
-import { featuresInThreads } from '../geometry/parallel-features';
+import { featureTableInThreads } from '../geometry/parallel-features';
 import type { ProcessModel } from '../etch';
 import type { FlatLayout } from '../layout/types';
 import { AnalysisAbortedError } from './errors';
 import { dieFrame, layerName, selectEtchLayers } from './etch-layers';
-import { densityGradientFlags, FlagCollector, featureFlagsInto, windowDensityFlags, type FeatureCheckInput, type Flag, type WindowSetInput } from './flags';
+import { densityGradientFlags, FlagCollector, windowDensityFlags, type Flag, type WindowSetInput } from './flags';
+import { offerTableFlags } from './table-flags';
 import type { GridMap } from './grid-file';
-import { predictFeatures, type FeatureResult } from './predict-features';
-import { featureRisk, paintFeatureMaps } from './result-maps';
+import { featureResultList, type FeatureResultTable } from './feature-results';
+import { predictFeatureTable, type FeatureResult } from './predict-features';
+import { featureRisk, paintColumnsOf, paintFeatureColumns, type FeatureMaps } from './result-maps';
 import { resolveKernel, resolveLimits, type AnalysisSettings } from './settings';
 import { buildSummary, type AnalysisSummary } from './summary';
 
@@ -47,8 +52,13 @@ export interface AnalysisHooks {
 
 export interface AnalysisResult {
   summary: AnalysisSummary;
-  /** One entry per extracted opening, in feature id order. */
-  features: FeatureResult[];
+  /** Per-opening results as columns, one row per extracted opening in feature id order (what the worker writes). */
+  featureTable: FeatureResultTable;
+  /**
+   * The same rows as objects, built on first read (one object per opening: for tests, JSON output and small
+   * layouts; the pipeline itself never reads it).
+   */
+  readonly features: FeatureResult[];
   /** Worst first, at most settings.maxListedFlags (summary.flags counts all). */
   flags: Flag[];
   /** coverage, window-density (one per window set), effective-density, local-width, aspect-ratio, predicted-depth, risk. */
@@ -133,21 +143,31 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   const effective = effectiveDensity(coverage, grid, { lengthUm: kernel.lengthUm, kernel: kernel.kind, outside: kernel.outside });
 
   clock.begin('features');
-  const features = featuresInThreads(regions, { polarity, regionDbu }); // two threads on big layouts, same result
+  // Two threads on big layouts, same result. The local-width map (needs only the coverage) is computed on this
+  // thread while the worker starts and takes chunks; its time then counts under 'features'.
+  let localWidth: Float32Array | null = null;
+  const featureTable = featureTableInThreads(regions, { polarity, regionDbu }, {}, () => (localWidth = localWidthFromCoverage(coverage, grid)));
 
   clock.begin('local-width');
-  const localWidth = localWidthFromCoverage(coverage, grid);
+  localWidth ??= localWidthFromCoverage(coverage, grid);
 
   clock.begin('prediction');
-  const results = predictFeatures(features, effective, grid, predictionModel, {
+  const results = predictFeatureTable(featureTable, effective, grid, predictionModel, {
     exposedFraction: globalDensity,
     onTick: (done, total) => clock.within(total > 0 ? done / total : 1),
   });
 
   clock.begin('maps');
-  const risks = new Float64Array(results.length);
-  for (let k = 0; k < results.length; k++) risks[k] = featureRisk(results[k] as FeatureResult, limits);
-  const painted = paintFeatureMaps(results, risks, coverage, grid);
+  const n = results.count;
+  const risks = new Float64Array(n);
+  const riskInput = { depthUm: 0, overEtchUm: 0, widthUm: 0 };
+  for (let k = 0; k < n; k++) {
+    riskInput.depthUm = results.depthUm[k] as number;
+    riskInput.overEtchUm = results.overEtchUm[k] as number;
+    riskInput.widthUm = results.widthUm[k] as number;
+    risks[k] = featureRisk(riskInput, limits);
+  }
+  const painted = paintFeatureColumns(paintColumnsOf(results), risks, coverage, grid);
 
   clock.begin('flags');
   const collector = new FlagCollector(settings.maxListedFlags);
@@ -157,25 +177,8 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
     collector.add(windowDensityFlags(input, limits, sev));
     collector.add(densityGradientFlags(input, limits.maxGradient, sev));
   }
-  // One input object refilled per opening: the collector builds a kept flag (copying what it needs) inside offer(),
-  // so nothing holds on to it, and a million openings do not cost a million short-lived objects.
-  const input: FeatureCheckInput = { featureId: 0, shape: '', modelKind: 'trench', bboxUm: [0, 0, 0, 0], centroidUm: [0, 0], widthUm: 0, depthUm: 0, overEtchUm: 0, excursions: [], depthSigmaUm: null };
-  for (let k = 0; k < results.length; k++) {
-    if (k % 4096 === 0) clock.within(k / Math.max(1, results.length));
-    const r = results[k] as FeatureResult;
-    input.featureId = r.id;
-    input.shape = r.shape;
-    input.modelKind = r.modelKind;
-    input.bboxUm = r.bboxUm;
-    input.centroidUm = r.centroidUm;
-    input.widthUm = r.widthUm;
-    input.depthUm = r.depthUm;
-    input.overEtchUm = r.overEtchUm;
-    input.excursions = r.excursions;
-    input.depthSigmaUm = r.depthSigmaUm;
-    featureFlagsInto(collector, input, limits, sev);
-  }
-  const flags = collector.list();
+  const resolve = offerTableFlags(collector, results, limits, sev, (k) => clock.within(k / Math.max(1, n)));
+  const flags = collector.list(resolve);
 
   clock.begin('summary');
   const maps = buildMaps(grid, coverage, windows, effective, localWidth, painted, { kernelLengthUm: kernel.lengthUm, kernel: kernel.kind, modelName: model.name, modelVersion: model.version });
@@ -199,7 +202,16 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   });
   clock.finish();
   summary.timingsMs = { ...clock.timingsMs };
-  return { summary, features: results, flags, maps };
+  let list: FeatureResult[] | undefined;
+  return {
+    summary,
+    featureTable: results,
+    get features() {
+      return (list ??= featureResultList(results));
+    },
+    flags,
+    maps,
+  };
 }
 
 /**
@@ -243,7 +255,7 @@ function buildMaps(
   windows: WindowDensity[],
   effective: Float32Array,
   localWidth: Float32Array,
-  painted: ReturnType<typeof paintFeatureMaps>,
+  painted: FeatureMaps,
   meta: { kernelLengthUm: number; kernel: string; modelName: unknown; modelVersion: unknown },
 ): GridMap[] {
   const model = { model: meta.modelName ?? null, modelVersion: meta.modelVersion ?? null };

@@ -9,7 +9,8 @@ import { CAUTIONS, CAUTION_SHORT } from '../methods/cautions';
 import { methodBlock, type MethodBlockLine } from '../methods/method-block';
 import type { DieFrame } from './etch-layers';
 import type { FlagCounts, FlagKind, Severity } from './flags';
-import type { FeatureResult } from './predict-features';
+import { FEATURE_KINDS } from '../geometry';
+import { EXCURSION_BITS, MODEL_KINDS, type FeatureResultTable } from './feature-results';
 import type { AnalysisSettings, ResolvedKernel, ResolvedLimits } from './settings';
 
 export interface WindowSummary {
@@ -83,29 +84,81 @@ export interface SummaryInput {
   windows: WindowDensity[];
   effective: Float32Array;
   kernel: ResolvedKernel;
-  results: FeatureResult[];
+  results: FeatureResultTable;
   flagCounts: FlagCounts;
   flagTotal: number;
   flagsListed: number;
   timingsMs: Record<string, number>;
 }
 
-function depthSummary(results: FeatureResult[]): DepthSummary | null {
-  if (results.length === 0) return null;
+function depthSummary(t: FeatureResultTable): DepthSummary | null {
+  if (t.count === 0) return null;
   let minUm = Infinity, maxUm = -Infinity, weighted = 0, area = 0, reaching = 0;
   const byModelKind: DepthSummary['byModelKind'] = {};
-  for (const r of results) {
-    minUm = Math.min(minUm, r.depthUm);
-    maxUm = Math.max(maxUm, r.depthUm);
-    weighted += r.depthUm * r.areaUm2;
-    area += r.areaUm2;
-    if (r.reachesTarget) reaching++;
-    const k = (byModelKind[r.modelKind] ??= { count: 0, minUm: Infinity, maxUm: -Infinity });
-    k.count++;
-    k.minUm = Math.min(k.minUm, r.depthUm);
-    k.maxUm = Math.max(k.maxUm, r.depthUm);
+  const areas = t.features.areaUm2;
+  for (let k = 0; k < t.count; k++) {
+    const d = t.depthUm[k] as number;
+    minUm = Math.min(minUm, d);
+    maxUm = Math.max(maxUm, d);
+    weighted += d * (areas[k] as number);
+    area += areas[k] as number;
+    if (t.reachesTarget[k]) reaching++;
+    const mk = byModelKind[MODEL_KINDS[t.modelKind[k] as number] as 'trench' | 'hole'] ??= { count: 0, minUm: Infinity, maxUm: -Infinity };
+    mk.count++;
+    mk.minUm = Math.min(mk.minUm, d);
+    mk.maxUm = Math.max(mk.maxUm, d);
   }
   return { minUm, maxUm, spreadUm: maxUm - minUm, meanUm: area > 0 ? weighted / area : minUm, reachingTarget: reaching, byModelKind };
+}
+
+/**
+ * Openings per shape, and each distinct note or excursion with how many openings it concerns, listed in the order
+ * each first appears over the rows (so ties in the summary's count order come out as they always did).
+ */
+function rowTallies(t: FeatureResultTable): { byShape: Record<string, number>; warnings: Map<string, number> } {
+  const shapeCount = new Uint32Array(FEATURE_KINDS.length);
+  const shapeFirst: number[] = [];
+  const listCount = new Uint32Array(t.noteLists.length);
+  const excursionCount = new Uint32Array(EXCURSION_BITS.length);
+  // Keys in first-appearance order; counts added at the end.
+  const warnings = new Map<string, number>();
+  const listSeen = new Uint8Array(t.noteLists.length);
+  let excursionSeen = 0;
+  const kinds = t.features.kind;
+  for (let k = 0; k < t.count; k++) {
+    const s = kinds[k] as number;
+    if (shapeCount[s]!++ === 0) shapeFirst.push(s);
+    const li = t.notes[k] as number;
+    if (li !== 0) {
+      listCount[li]!++;
+      if (!listSeen[li]) {
+        listSeen[li] = 1;
+        for (const w of t.noteLists[li] as readonly string[]) if (!warnings.has(w)) warnings.set(w, 0);
+      }
+    }
+    const bits = t.excursions[k] as number;
+    if (bits === 0) continue;
+    for (let e = 0; e < EXCURSION_BITS.length; e++) {
+      const [q, bit] = EXCURSION_BITS[e] as [string, number];
+      if (!(bits & bit)) continue;
+      excursionCount[e]!++;
+      if (!(excursionSeen & bit)) {
+        excursionSeen |= bit;
+        const key = `${q} outside the calibrated range`;
+        if (!warnings.has(key)) warnings.set(key, 0);
+      }
+    }
+  }
+  for (let li = 1; li < t.noteLists.length; li++) {
+    for (const w of t.noteLists[li] as readonly string[]) warnings.set(w, (warnings.get(w) ?? 0) + (listCount[li] as number));
+  }
+  for (let e = 0; e < EXCURSION_BITS.length; e++) {
+    const key = `${(EXCURSION_BITS[e] as [string, number])[0]} outside the calibrated range`;
+    if (excursionCount[e]) warnings.set(key, (warnings.get(key) ?? 0) + (excursionCount[e] as number));
+  }
+  const byShape: Record<string, number> = {};
+  for (const s of shapeFirst) byShape[FEATURE_KINDS[s] as string] = shapeCount[s] as number;
+  return { byShape, warnings };
 }
 
 export function buildSummary(x: SummaryInput): AnalysisSummary {
@@ -115,16 +168,7 @@ export function buildSummary(x: SummaryInput): AnalysisSummary {
     if (v < effMin) effMin = v;
     if (v > effMax) effMax = v;
   }
-  const byShape: Record<string, number> = {};
-  const warnings = new Map<string, number>();
-  for (const r of x.results) {
-    byShape[r.shape] = (byShape[r.shape] ?? 0) + 1;
-    for (const w of r.warnings) warnings.set(w, (warnings.get(w) ?? 0) + 1);
-    for (const e of r.excursions) {
-      const key = `${e.quantity} outside the calibrated range`;
-      warnings.set(key, (warnings.get(key) ?? 0) + 1);
-    }
-  }
+  const { byShape, warnings } = rowTallies(x.results);
   const bySeverity: Record<Severity, number> = { error: 0, warning: 0, info: 0 };
   for (const kind of Object.keys(x.flagCounts) as FlagKind[]) {
     for (const s of Object.keys(bySeverity) as Severity[]) bySeverity[s] += x.flagCounts[kind][s];
@@ -160,7 +204,7 @@ export function buildSummary(x: SummaryInput): AnalysisSummary {
     globalDensity: x.globalDensity,
     windows,
     effectiveDensity: { kernel: x.kernel.kind, lengthUm: x.kernel.lengthUm, outside: x.kernel.outside, min: effMin, max: effMax },
-    features: { count: x.results.length, byShape },
+    features: { count: x.results.count, byShape },
     depth: depthSummary(x.results),
     flags: { total: x.flagTotal, listed: x.flagsListed, bySeverity, counts: x.flagCounts },
     model,

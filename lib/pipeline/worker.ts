@@ -147,19 +147,19 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
     });
 
     const isCancelled = () => controller.signal.aborted || (flag !== undefined && Atomics.load(flag, 0) !== 0);
-    const featureBytes = encodeFeatureFile(result.features);
+    const featureBytes = encodeFeatureFile(result.featureTable);
     // TRGRID1 header + metadata stays far below 64 KiB; float32 samples dominate.
     const mapBytes = result.maps.reduce((n, m) => n + m.grid.nx * m.grid.ny * 4 + 65_536, 0);
     const planned = featureBytes.byteLength + mapBytes;
     if (task.maxResultBytes !== undefined && planned > task.maxResultBytes) {
       const label = task.resultBudgetLabel ?? `the limit of ${(task.maxResultBytes / MiB).toFixed(0)} MiB per analysis`;
-      return { ok: false, code: 'over-budget', message: overBudgetMessage(planned, label, `${result.features.length} openings, ${result.maps.length} maps`) };
+      return { ok: false, code: 'over-budget', message: overBudgetMessage(planned, label, `${result.featureTable.count} openings, ${result.maps.length} maps`) };
     }
     if (isCancelled()) return cancelled();
 
     await mkdir(task.outDir, { recursive: true });
     await writeAtomic(join(task.outDir, FEATURE_FILE_NAME), [featureBytes.body, featureBytes.tables]);
-    const featureFile: FeatureFileInfo = { file: FEATURE_FILE_NAME, count: result.features.length, bytes: featureBytes.byteLength };
+    const featureFile: FeatureFileInfo = { file: FEATURE_FILE_NAME, count: result.featureTable.count, bytes: featureBytes.byteLength };
     const maps: MapFile[] = [];
     for (const [n, map] of result.maps.entries()) {
       if (isCancelled()) return cancelled();
