@@ -27,8 +27,8 @@
  * reject most probes after one edge test (`distanceAbove`), and with a `WidthCache` congruent copies under
  * translation are measured once.
  */
-import { maximalDiskCentres, squaredDistanceTransform } from './distance';
-import { latticeInterior, type Lattice } from './lattice';
+import type { Lattice } from './lattice';
+import { interiorRuns, runDistanceTransform, runMaximalCentres, runMaxD2, runTopNodes, type InteriorRuns } from './lattice-runs';
 import { convexInscribedRadius, isConvexRing } from './convex-width';
 import { polygonisedCircle } from './circle-width';
 import type { Box } from './types';
@@ -126,10 +126,6 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
   return res;
 }
 
-/** Distance buffer reused by every lattice measurement (results never keep it). */
-let d2Scratch = new Float64Array(0);
-let maskScratch = new Uint8Array(0);
-
 /** The lattice method of the module doc (shapes that are neither rectangles nor convex). */
 function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbox: Box, area: number, perimeter: number, manhattan: boolean, g: number, opts: WidthOptions): WidthResult {
   const maxNodes = opts.maxNodes ?? 4_096;
@@ -153,26 +149,23 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
     while (nodesAt(step) > maxNodes) step *= 1.1;
   }
   const lat: Lattice = { x0: bbox[0], y0: bbox[1], step, nx: Math.ceil(bw / step - 1e-9) + 1, ny: Math.ceil(bh / step - 1e-9) + 1 };
-  const nodes = lat.nx * lat.ny;
-  if (maskScratch.length < nodes) maskScratch = new Uint8Array(Math.max(nodes, 2 * maskScratch.length));
-  const mask = latticeInterior(coords, rings, lat, maskScratch.subarray(0, nodes));
-  if (d2Scratch.length < nodes) d2Scratch = new Float64Array(Math.max(nodes, 2 * d2Scratch.length));
-  const d2 = squaredDistanceTransform(mask, lat.nx, lat.ny, d2Scratch.subarray(0, nodes));
-  let maxD2 = 0;
-  for (let q = 0; q < d2.length; q++) if ((d2[q] as number) > maxD2 && (d2[q] as number) !== Infinity) maxD2 = d2[q] as number;
+  // Interior nodes as runs per row (lattice-runs.ts): the passes below touch interior nodes only.
+  const runs = interiorRuns(coords, rings, lat);
+  const d2 = runDistanceTransform(runs, lat.nx, lat.ny);
+  const maxD2 = runMaxD2(runs, d2, lat.nx, lat.ny);
   if (maxD2 === 0) {
     // Thinner than the lattice: fall back to the mean width.
     const w = perimeter > 0 ? (2 * area) / perimeter : 0;
     return { minWidth: w, maxWidth: w, step, exact: false };
   }
-  const sc = smallestSelfCentred(d2, lat.nx, lat.ny, exact ? 0 : 1);
+  const sc = smallestSelfCentred(d2, runMaximalCentres(runs, d2, lat.nx, lat.ny), lat.nx, lat.ny, exact ? 0 : 1);
   // Off the exact lattice, polish the narrowest centre on the exact distance within two steps (reaches the ridge
   // of a straight-sided trench, whose lattice nodes sit up to half a step off the centre line).
   const edges = edgeList(coords, rings);
   const minW = exact || sc.node < 0 ? sc.width : (2 * polishLocal(edges, lat, sc.node)) / step;
   // The largest disk's centre may lie between nodes (e.g. a Manhattan frame corner, where it touches a concave
   // corner): polish the best nodes by pattern search on the exact distance to the rings.
-  const maxD = refineLargestDisk(edges, lat, d2);
+  const maxD = refineLargestDisk(edges, lat, d2, runs);
   return { minWidth: Math.min(minW * step, 2 * maxD), maxWidth: 2 * maxD, step, exact };
 }
 
@@ -182,10 +175,10 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
  * units) widens the covering disks: off the exact Manhattan lattice, D is measured to the nearest outside node
  * and can exceed the true distance by up to 0.71 step, which leaves lone nodes in sharp corners uncovered.
  */
-function smallestSelfCentred(d2: Float64Array, nx: number, ny: number, slack: number): { width: number; node: number } {
+function smallestSelfCentred(d2: Float64Array, centres: Int32Array, nx: number, ny: number, slack: number): { width: number; node: number } {
   const tol = 1e-9;
-  const centres = maximalDiskCentres(d2, nx, ny);
-  const desc = centres.sort((a, b) => (d2[b] as number) - (d2[a] as number));
+  // Largest first, ties in node order (a stable sort of the row-major centres).
+  const desc = centres.sort((a, b) => (d2[b] as number) - (d2[a] as number) || a - b);
   for (let ci0 = desc.length - 1; ci0 >= 0; ci0--) {
     const c = desc[ci0] as number;
     const dc = Math.sqrt(d2[c] as number);
@@ -289,26 +282,18 @@ function distanceAbove(edges: Float64Array, x: number, y: number, floor: number)
 const DIR_X = Float64Array.from({ length: 16 }, (_, k) => Math.cos((k * Math.PI) / 8));
 const DIR_Y = Float64Array.from({ length: 16 }, (_, k) => Math.sin((k * Math.PI) / 8));
 
+/** The best lattice nodes of one measurement (reused). */
+const topScratch = new Int32Array(8);
+
 /**
  * Radius (dbu) of the largest inscribed disk: the best lattice nodes refined by a 16-direction pattern search
  * with halving steps (moves shorter than the current radius never leave the opening).
  */
-function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64Array): number {
+function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64Array, runs: InteriorRuns): number {
   // The eight best nodes (ties broken by position); of these, up to three more than two steps apart seed the
   // search. Neighbouring top nodes sit on the same maximum and their searches end at the same point.
-  const top: number[] = [];
-  for (let q = 0; q < d2.length; q++) {
-    const v = d2[q] as number;
-    if (v === 0 || v === Infinity) continue;
-    if (top.length < 8) top.push(q);
-    else if (v > (d2[top[7] as number] as number)) top[7] = q;
-    else continue;
-    for (let k = top.length - 1; k > 0 && (d2[top[k] as number] as number) > (d2[top[k - 1] as number] as number); k--) {
-      const t = top[k] as number;
-      top[k] = top[k - 1] as number;
-      top[k - 1] = t;
-    }
-  }
+  const nTop = runTopNodes(runs, d2, lat.nx, lat.ny, topScratch);
+  const top = topScratch.subarray(0, nTop);
   const starts: number[] = [];
   for (const q of top) {
     if (starts.length === 3) break;
