@@ -8,7 +8,7 @@ import ClipperLib from 'clipper-lib';
 import { findLayer, readLayout } from '../lib/cli/density';
 import { openRegions, ringArea, ringPerimeter, featureWidths, type Box } from '../lib/geometry';
 
-const [file, spec, out] = process.argv.slice(2);
+const [file, spec, out] = process.argv.slice(2); // a 4th argument 'all' keeps every opening
 if (!file || !spec || !out) throw new Error('usage: widths-dump.ts FILE L/D OUT.bin');
 const [layer, datatype] = spec.split('/').map(Number) as [number, number];
 const layout = await readLayout(file, undefined);
@@ -69,7 +69,7 @@ for (const [root, pieces] of groups) {
     bbox[0] = Math.min(bbox[0], x); bbox[1] = Math.min(bbox[1], y); bbox[2] = Math.max(bbox[2], x); bbox[3] = Math.max(bbox[3], y);
   }
   const w = featureWidths(coords, rings, bbox, area, perim);
-  if (w.step === 0) continue;
+  if (w.step === 0 && process.argv[5] !== 'all') continue;
   rec.push(rings.length, rings.reduce((t, [s, e]) => t + e - s, 0), area, perim, ...bbox);
   for (const [s, e] of rings) rec.push(e - s);
   for (const [s, e] of rings) for (let k = s; k < e; k++) rec.push(coords[2 * k]!, coords[2 * k + 1]!);

@@ -4,6 +4,7 @@
  * `node --import tsx bench/widths-run.ts IN.bin OUT.bin`
  */
 import { readFileSync, writeFileSync } from 'node:fs';
+import { loadavg } from 'node:os';
 import { featureWidths, type Box, type WidthCache } from '../lib/geometry';
 
 export interface DumpedOpening { coords: Float64Array; rings: [number, number][]; bbox: Box; area: number; perim: number }
@@ -36,6 +37,7 @@ if (import.meta.url === `file://${process.argv[1]}`) {
   const res = new Float64Array(3 * ops.length);
   const cache: WidthCache = new Map();
   const t0 = performance.now();
+  const c0 = process.cpuUsage();
   ops.forEach((f, k) => {
     const w = featureWidths(f.coords, f.rings, f.bbox, f.area, f.perim, {}, cache);
     res[3 * k] = w.minWidth;
@@ -43,6 +45,7 @@ if (import.meta.url === `file://${process.argv[1]}`) {
     res[3 * k + 2] = w.step;
   });
   const ms = performance.now() - t0;
+  const cpu = process.cpuUsage(c0);
   writeFileSync(out, Buffer.from(res.buffer));
-  console.log(`${ops.length} openings in ${ms.toFixed(0)} ms (${((1000 * ms) / ops.length).toFixed(1)} µs each)`);
+  console.log(`${ops.length} openings in ${ms.toFixed(0)} ms wall, ${((cpu.user + cpu.system) / 1000).toFixed(0)} ms CPU (${((1000 * ms) / ops.length).toFixed(1)} µs each); load ${loadavg()[0]!.toFixed(2)}`);
 }

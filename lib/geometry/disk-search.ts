@@ -1,0 +1,117 @@
+/**
+ * Exact-distance searches of the widths lattice path (widths.ts): the distance from a point to a feature's edges, the
+ * largest inscribed disk grown from the best lattice nodes, and the local polish of the narrowest self-centred node.
+ * Both searches are 16-direction pattern searches with halving steps; once the step is small they try to land
+ * exactly on the local maximum (ridge-snap.ts) and stop there when no probe at the current step improves on it.
+ */
+import type { Lattice } from './lattice';
+import { runTopNodes, type InteriorRuns } from './lattice-runs';
+import { distanceAbove, distanceToEdges } from './edge-distance';
+import { snapToRidge, snapped } from './ridge-snap';
+
+/** The 16 pattern-search directions (cos, sin of k·π/8). */
+const DIR_X = Float64Array.from({ length: 16 }, (_, k) => Math.cos((k * Math.PI) / 8));
+const DIR_Y = Float64Array.from({ length: 16 }, (_, k) => Math.sin((k * Math.PI) / 8));
+
+/** Search step (in lattice steps) below which a search tries to land on the maximum exactly (ridge-snap.ts), and how
+ * far beyond the current distance (in search steps) the sites it combines may lie. */
+const SNAP_STEP = 1 / 64, SNAP_REACH = 8;
+
+/** The best lattice nodes of one measurement (reused). */
+const topScratch = new Int32Array(8);
+
+/**
+ * Radius (dbu) of the largest inscribed disk: the best lattice nodes refined by a 16-direction pattern search
+ * with halving steps (moves shorter than the current radius never leave the opening).
+ */
+export function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64Array, runs: InteriorRuns): number {
+  // The eight best nodes (ties broken by position); of these, up to three more than two steps apart seed the
+  // search. Neighbouring top nodes sit on the same maximum and their searches end at the same point.
+  const nTop = runTopNodes(runs, d2, lat.nx, lat.ny, topScratch);
+  const top = topScratch.subarray(0, nTop);
+  const starts: number[] = [];
+  for (const q of top) {
+    if (starts.length === 3) break;
+    const qi = q % lat.nx, qj = (q - qi) / lat.nx;
+    if (starts.every((s) => (s % lat.nx - qi) ** 2 + ((s - (s % lat.nx)) / lat.nx - qj) ** 2 > 4)) starts.push(q);
+  }
+  // Lattice D can exceed the true distance off the exact lattice: use exact distances only.
+  let best = 0;
+  for (const q of starts) {
+    const i = q % lat.nx, j = (q - i) / lat.nx;
+    let x = lat.x0 + i * lat.step, y = lat.y0 + j * lat.step;
+    let d = distanceToEdges(edges, x, y);
+    let h = lat.step;
+    let snapAt = lat.step * SNAP_STEP, justSnapped = false;
+    for (let it = 0; it < 120 && h > lat.step * 1e-6; it++) {
+      if (h < snapAt) {
+        snapAt = 0;
+        if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) {
+          x = snapped[0] as number;
+          y = snapped[1] as number;
+          d = snapped[2] as number;
+          justSnapped = true;
+        }
+      }
+      let moved = false;
+      for (let k = 0; k < 16; k++) {
+        if (!(h < d)) break;
+        const nxp = x + (DIR_X[k] as number) * h, nyp = y + (DIR_Y[k] as number) * h;
+        const nd = distanceAbove(edges, nxp, nyp, d + 1e-12);
+        if (nd > d + 1e-12) {
+          x = nxp;
+          y = nyp;
+          d = nd;
+          moved = true;
+          break;
+        }
+      }
+      // On the snapped maximum no probe improves: done. Otherwise the snap was not the maximum; search on.
+      if (!moved && justSnapped) break;
+      if (moved) justSnapped = false;
+      else h /= 2;
+    }
+    if (d > best) best = d;
+  }
+  return best;
+}
+
+/** Largest exact distance to the rings within two lattice steps of node q (pattern search, dbu). */
+export function polishLocal(edges: Float64Array, lat: Lattice, q: number): number {
+  const i = q % lat.nx, j = (q - i) / lat.nx;
+  const cx = lat.x0 + i * lat.step, cy = lat.y0 + j * lat.step;
+  let x = cx, y = cy;
+  let d = distanceToEdges(edges, x, y);
+  let h = lat.step / 2;
+  let snapAt = lat.step * SNAP_STEP, justSnapped = false;
+  for (let it = 0; it < 80 && h > lat.step * 1e-6; it++) {
+    if (h < snapAt) {
+      snapAt = 0;
+      const room = Math.min(d, 2 * lat.step - Math.hypot(x - cx, y - cy));
+      if (room > 0 && snapToRidge(edges, x, y, d, SNAP_REACH * h, room)) {
+        x = snapped[0] as number;
+        y = snapped[1] as number;
+        d = snapped[2] as number;
+        justSnapped = true;
+      }
+    }
+    let moved = false;
+    for (let k = 0; k < 16; k++) {
+      const nxp = x + (DIR_X[k] as number) * h, nyp = y + (DIR_Y[k] as number) * h;
+      if (Math.hypot(nxp - cx, nyp - cy) > 2 * lat.step) continue;
+      if (!(h < d)) break;
+      const nd = distanceAbove(edges, nxp, nyp, d + 1e-12);
+      if (nd > d + 1e-12) {
+        x = nxp;
+        y = nyp;
+        d = nd;
+        moved = true;
+        break;
+      }
+    }
+    if (!moved && justSnapped) break;
+    if (moved) justSnapped = false;
+    else h /= 2;
+  }
+  return d;
+}
