@@ -188,25 +188,20 @@ function pushInterval(out: Int32Array, m: number, a: number, b: number): number 
 
 let d2S = new Float64Array(0);
 let colS = new Int32Array(0);
-let fS = new Float64Array(0), dS = new Float64Array(0), zS = new Float64Array(0), vS = new Int32Array(0);
+let fS = new Float64Array(0);
 const NONE = -(2 ** 30);
 
 /**
  * Squared distance (lattice units) from each interior node to the nearest non-interior node; 0 elsewhere, Infinity
- * when a row and a column hold no non-interior node. Column pass by run bookkeeping, row pass (Felzenszwalb &
- * Huttenlocher lower envelope, distance.ts) per run: a parabola beyond a background node never wins past it.
+ * when a row and a column hold no non-interior node. Column pass by run bookkeeping, row pass per run (the dense
+ * transform's lower envelope of parabolas, distance.ts, evaluated directly: runs are a few nodes long).
  */
 export function runDistanceTransform(r: InteriorRuns, nx: number, ny: number): Float64Array {
   const nodes = nx * ny;
   if (d2S.length < nodes) d2S = new Float64Array(Math.max(nodes, 2 * d2S.length));
   const out = d2S.subarray(0, nodes).fill(0);
   if (colS.length < nx) colS = new Int32Array(Math.max(nx, 2 * colS.length));
-  if (fS.length < nx + 3) {
-    fS = new Float64Array(2 * nx + 3);
-    dS = new Float64Array(2 * nx + 3);
-    zS = new Float64Array(2 * nx + 4);
-    vS = new Int32Array(2 * nx + 3);
-  }
+  if (fS.length < nx) fS = new Float64Array(2 * nx);
   const { mask, runs, rowRun } = r;
   const last = colS;
   for (let j = 0; j < ny; j++) {
@@ -234,57 +229,45 @@ export function runDistanceTransform(r: InteriorRuns, nx: number, ny: number): F
       }
     }
   }
-  const f = fS, d = dS, z = zS, v = vS;
+  // Row pass: d(q) = min over the row of (q − k)² + col(k). Scanned outwards from q while (q − k)² can still win; a
+  // background node ends a side (nothing beyond it can win). Integer arithmetic: the same minimum as the envelope.
+  const f = fS;
   for (let j = 0; j < ny; j++) {
     const line = j * nx;
     for (let k = rowRun[j] as number; k < (rowRun[j + 1] as number); k++) {
       const i0 = runs[2 * k] as number, i1 = runs[2 * k + 1] as number;
-      // Local row: the background node on each side (f = 0) when the row has one there, then the run.
-      const a = i0 > 0 ? i0 - 1 : i0, b = i1 + 1 < nx ? i1 + 1 : i1;
-      const len = b - a + 1;
-      for (let i = a; i <= b; i++) f[i - a] = i >= i0 && i <= i1 ? (out[line + i] as number) : 0;
-      edt1d(f, len, d, v, z);
-      for (let i = i0; i <= i1; i++) out[line + i] = d[i - a] as number;
+      const len = i1 - i0 + 1;
+      for (let q = 0; q < len; q++) f[q] = out[line + i0 + q] as number;
+      const bgLeft = i0 > 0, bgRight = i1 + 1 < nx;
+      for (let q = 0; q < len; q++) {
+        let best = f[q] as number;
+        let left = true, right = true;
+        for (let s = 1; s * s < best && (left || right); s++) {
+          const s2 = s * s;
+          if (left) {
+            if (q - s >= 0) {
+              const c = s2 + (f[q - s] as number);
+              if (c < best) best = c;
+            } else {
+              if (bgLeft && s2 < best) best = s2;
+              left = false;
+            }
+          }
+          if (right) {
+            if (q + s < len) {
+              const c = s2 + (f[q + s] as number);
+              if (c < best) best = c;
+            } else {
+              if (bgRight && s2 < best) best = s2;
+              right = false;
+            }
+          }
+        }
+        out[line + i0 + q] = best;
+      }
     }
   }
   return out;
-}
-
-/** 1-D squared distance transform of f (lower envelope of parabolas), written into d (as in distance.ts). */
-function edt1d(f: Float64Array, n: number, d: Float64Array, v: Int32Array, z: Float64Array): void {
-  let k = 0;
-  v[0] = 0;
-  z[0] = -Infinity;
-  z[1] = Infinity;
-  for (let q = 1; q < n; q++) {
-    const fq = f[q] as number;
-    if (fq === Infinity) continue;
-    if ((f[v[0] as number] as number) === Infinity) {
-      v[0] = q;
-      continue;
-    }
-    let s: number;
-    for (;;) {
-      const vk = v[k] as number;
-      s = (fq + q * q - ((f[vk] as number) + vk * vk)) / (2 * q - 2 * vk);
-      if (s <= (z[k] as number) && k > 0) k--;
-      else break;
-    }
-    k++;
-    v[k] = q;
-    z[k] = s;
-    z[k + 1] = Infinity;
-  }
-  if ((f[v[0] as number] as number) === Infinity) {
-    d.fill(Infinity, 0, n);
-    return;
-  }
-  k = 0;
-  for (let q = 0; q < n; q++) {
-    while ((z[k + 1] as number) < q) k++;
-    const vk = v[k] as number;
-    d[q] = (q - vk) * (q - vk) + (f[vk] as number);
-  }
 }
 
 let rootS = new Float64Array(0);
@@ -362,4 +345,33 @@ export function runTopNodes(r: InteriorRuns, d2: Float64Array, nx: number, ny: n
     }
   }
   return m;
+}
+
+/** √d2 per node as computed by the last `runMaximalCentres` call (0 off the interior), valid until the next call. */
+export function lastRoots(): Float64Array {
+  return rootS;
+}
+
+let countS = new Int32Array(0);
+let sortedS = new Int32Array(0);
+
+/**
+ * `centres` ordered by d2 descending, ties in their given order (a stable sort), into module scratch. The lattice
+ * distances are integers (sums of squares), so a counting sort does it when the largest is moderate.
+ */
+export function sortByD2Descending(centres: Int32Array, d2: Float64Array, maxD2: number): Int32Array {
+  const m = centres.length;
+  if (!(maxD2 <= 65_536) || !Number.isInteger(maxD2)) return centres.slice().sort((a, b) => (d2[b] as number) - (d2[a] as number) || a - b);
+  if (countS.length < maxD2 + 2) countS = new Int32Array(Math.max(maxD2 + 2, 2 * countS.length));
+  if (sortedS.length < m) sortedS = new Int32Array(Math.max(m, 2 * sortedS.length));
+  const count = countS.fill(0, 0, maxD2 + 2);
+  // Bucket b = maxD2 − d2 (largest first); prefix sums give each bucket's start.
+  for (let k = 0; k < m; k++) count[maxD2 - (d2[centres[k] as number] as number) + 1]!++;
+  for (let b = 1; b <= maxD2 + 1; b++) count[b]! += count[b - 1] as number;
+  const out = sortedS.subarray(0, m);
+  for (let k = 0; k < m; k++) {
+    const c = centres[k] as number;
+    out[count[maxD2 - (d2[c] as number)]!++] = c;
+  }
+  return out;
 }

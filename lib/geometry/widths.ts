@@ -28,7 +28,7 @@
  * translation are measured once.
  */
 import type { Lattice } from './lattice';
-import { interiorRuns, runDistanceTransform, runMaximalCentres, runMaxD2 } from './lattice-runs';
+import { interiorRuns, lastRoots, runDistanceTransform, runMaximalCentres, runMaxD2, sortByD2Descending } from './lattice-runs';
 import { polishLocal, refineLargestDisk } from './disk-search';
 import { edgeList } from './edge-distance';
 import { convexInscribedRadius, isConvexRing } from './convex-width';
@@ -160,7 +160,7 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
     const w = perimeter > 0 ? (2 * area) / perimeter : 0;
     return { minWidth: w, maxWidth: w, step, exact: false };
   }
-  const sc = smallestSelfCentred(d2, runMaximalCentres(runs, d2, lat.nx, lat.ny), lat.nx, lat.ny, exact ? 0 : 1);
+  const sc = smallestSelfCentred(d2, runMaximalCentres(runs, d2, lat.nx, lat.ny), maxD2, lat.nx, lat.ny, exact ? 0 : 1);
   // Off the exact lattice, polish the narrowest centre on the exact distance within two steps (reaches the ridge
   // of a straight-sided trench, whose lattice nodes sit up to half a step off the centre line).
   const edges = edgeList(coords, rings);
@@ -177,13 +177,14 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
  * units) widens the covering disks: off the exact Manhattan lattice, D is measured to the nearest outside node
  * and can exceed the true distance by up to 0.71 step, which leaves lone nodes in sharp corners uncovered.
  */
-function smallestSelfCentred(d2: Float64Array, centres: Int32Array, nx: number, ny: number, slack: number): { width: number; node: number } {
+function smallestSelfCentred(d2: Float64Array, centres: Int32Array, maxD2: number, nx: number, ny: number, slack: number): { width: number; node: number } {
   const tol = 1e-9;
-  // Largest first, ties in node order (a stable sort of the row-major centres).
-  const desc = centres.sort((a, b) => (d2[b] as number) - (d2[a] as number) || a - b);
+  // Largest first, ties in node order (a stable sort of the row-major centres); √d2 from runMaximalCentres.
+  const root = lastRoots();
+  const desc = sortByD2Descending(centres, d2, maxD2);
   for (let ci0 = desc.length - 1; ci0 >= 0; ci0--) {
     const c = desc[ci0] as number;
-    const dc = Math.sqrt(d2[c] as number);
+    const dc = root[c] as number;
     const ci = c % nx, cj = (c - ci) / nx;
     let covered = false;
     // Neighbours first: lattice rounding breaks transitivity of disk containment, so a covering disk may belong
@@ -192,15 +193,16 @@ function smallestSelfCentred(d2: Float64Array, centres: Int32Array, nx: number, 
       for (let di = -2; di <= 2; di++) {
         const i = ci + di, j = cj + dj;
         if (i < 0 || j < 0 || i >= nx || j >= ny) continue;
-        const q = d2[j * nx + i] as number;
-        if (2 * Math.sqrt(q) > 2 * dc + tol && di * di + dj * dj <= (Math.sqrt(q) + slack) ** 2) {
+        const rq = root[j * nx + i] as number;
+        if (2 * rq > 2 * dc + tol && di * di + dj * dj <= (rq + slack) ** 2) {
           covered = true;
           break;
         }
       }
     }
-    if (!covered) for (const b of desc) {
-      const db = Math.sqrt(d2[b] as number);
+    if (!covered) for (let bk = 0; bk < desc.length; bk++) {
+      const b = desc[bk] as number;
+      const db = root[b] as number;
       if (2 * db <= 2 * dc + tol) break;
       const bi = b % nx, bj = (b - bi) / nx;
       if ((bi - ci) ** 2 + (bj - cj) ** 2 <= (db + slack) ** 2) {
