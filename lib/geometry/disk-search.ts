@@ -13,9 +13,13 @@ import { snapToRidge, snapped } from './ridge-snap';
 const DIR_X = Float64Array.from({ length: 16 }, (_, k) => Math.cos((k * Math.PI) / 8));
 const DIR_Y = Float64Array.from({ length: 16 }, (_, k) => Math.sin((k * Math.PI) / 8));
 
-/** Search step (in lattice steps) below which a search tries to land on the maximum exactly (ridge-snap.ts), and how
- * far beyond the current distance (in search steps) the sites it combines may lie. */
-const SNAP_STEP = 1 / 64, SNAP_REACH = 8;
+/**
+ * Search step (in lattice steps) below which a search lands on the maximum exactly (ridge-snap.ts) and stops there;
+ * how far beyond the current distance (in search steps) the sites it combines may lie. A first snap at step 1/2 is
+ * only kept as a floor for the result: pattern searches stall on slanted creases of D (the bisector of two concave
+ * corners is not one of the 16 directions) and at saddles, where the search ends below the maximum it is climbing to.
+ */
+const SNAP_STEP = 1 / 64, SNAP_REACH = 8, SNAP_EARLY = 1 / 2;
 
 /** The best lattice nodes of one measurement (reused). */
 const topScratch = new Int32Array(8);
@@ -43,7 +47,12 @@ export function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64
     let d = distanceToEdges(edges, x, y);
     let h = lat.step;
     let snapAt = lat.step * SNAP_STEP, justSnapped = false;
+    let earlyAt = lat.step * SNAP_EARLY, early = 0;
     for (let it = 0; it < 120 && h > lat.step * 1e-6; it++) {
+      if (h < earlyAt) {
+        earlyAt = 0;
+        if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) early = snapped[2] as number;
+      }
       if (h < snapAt) {
         snapAt = 0;
         if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) {
@@ -71,6 +80,7 @@ export function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64
       if (moved) justSnapped = false;
       else h /= 2;
     }
+    if (early > d) d = early;
     if (d > best) best = d;
   }
   return best;
@@ -84,7 +94,13 @@ export function polishLocal(edges: Float64Array, lat: Lattice, q: number): numbe
   let d = distanceToEdges(edges, x, y);
   let h = lat.step / 2;
   let snapAt = lat.step * SNAP_STEP, justSnapped = false;
+  let earlyAt = lat.step * SNAP_EARLY, early = 0;
   for (let it = 0; it < 80 && h > lat.step * 1e-6; it++) {
+    if (h < earlyAt) {
+      earlyAt = 0;
+      const room = Math.min(d, 2 * lat.step - Math.hypot(x - cx, y - cy));
+      if (room > 0 && snapToRidge(edges, x, y, d, SNAP_REACH * h, room)) early = snapped[2] as number;
+    }
     if (h < snapAt) {
       snapAt = 0;
       const room = Math.min(d, 2 * lat.step - Math.hypot(x - cx, y - cy));
@@ -113,5 +129,5 @@ export function polishLocal(edges: Float64Array, lat: Lattice, q: number): numbe
     if (moved) justSnapped = false;
     else h /= 2;
   }
-  return d;
+  return early > d ? early : d;
 }
