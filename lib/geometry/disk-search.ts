@@ -114,7 +114,7 @@ export function polishLocal(edges: Float64Array, lat: Lattice, q: number): numbe
     let moved = false;
     for (let k = 0; k < 16; k++) {
       const nxp = x + (DIR_X[k] as number) * h, nyp = y + (DIR_Y[k] as number) * h;
-      if (Math.hypot(nxp - cx, nyp - cy) > 2 * lat.step) continue;
+      if ((nxp - cx) * (nxp - cx) + (nyp - cy) * (nyp - cy) > 4 * lat.step * lat.step) continue;
       if (!(h < d)) break;
       const nd = distanceAbove(edges, nxp, nyp, d + 1e-12);
       if (nd > d + 1e-12) {

@@ -11,7 +11,7 @@
  */
 import { distanceToEdges } from './edge-distance';
 
-/** Most sites (nearest first) combined into candidates: 6 sites give 20 triples. */
+/** Most sites (nearest first) combined into candidates. */
 const MAX_SITES = 6;
 
 // Sites relative to the start point: kind 0 = line n·p = c (unit normal n pointing at the start), 1 = point (px, py).
@@ -62,7 +62,7 @@ export function snapToRidge(edges: Float64Array, x: number, y: number, d: number
       n = addCandidate(n, 0, nx, ny, c, lineDist);
     }
     // End point sites.
-    const pa = Math.hypot(ax, ay), pb = Math.hypot(ax + dx, ay + dy);
+    const pa = Math.sqrt(ax * ax + ay * ay), pb = Math.sqrt((ax + dx) * (ax + dx) + (ay + dy) * (ay + dy));
     if (pa <= d + reach) n = addCandidate(n, 1, ax, ay, 0, pa);
     if (pb <= d + reach) n = addCandidate(n, 1, ax + dx, ay + dy, 0, pb);
   }
@@ -104,7 +104,7 @@ export function snapToRidge(edges: Float64Array, x: number, y: number, d: number
   }
   // Medial-axis vertices: equidistant to three sites.
   for (let a = 0; a < m; a++) for (let b = a + 1; b < m; b++) for (let c = b + 1; c < m; c++) {
-    const p = solveTriple(a, b, c, d);
+    const p = solveTriple(a, b, c, d, maxMove);
     if (p) consider(p[0], p[1]);
   }
   if (!best.found || !isLocalMaximum(edges, x + best.px, y + best.py, best.d)) return false;
@@ -133,7 +133,7 @@ export function isLocalMaximum(edges: Float64Array, x: number, y: number, d: num
     const inside = t > 0 && t < 1;
     t = t < 0 ? 0 : t > 1 ? 1 : t;
     const ex = x - ax - t * dx, ey = y - ay - t * dy;
-    const e = Math.hypot(ex, ey);
+    const e = Math.sqrt(ex * ex + ey * ey);
     if (e > d + tol) continue;
     if (!inside) corner = true;
     angles[n++] = Math.atan2(ey, ex);
@@ -150,7 +150,7 @@ const best: { edges: Float64Array; x: number; y: number; d: number; px: number; 
 
 /** Keeps candidate (px, py) (relative to the start) when it is within reach and farther from the edges than the best. */
 function consider(px: number, py: number): void {
-  if (!(Math.hypot(px, py) < best.maxMove)) return;
+  if (!(Math.sqrt(px * px + py * py) < best.maxMove)) return;
   const e = distanceToEdges(best.edges, best.x + px, best.y + py);
   if (e > best.d + 1e-12 * (1 + best.d)) {
     best.d = e;
@@ -163,8 +163,9 @@ function consider(px: number, py: number): void {
 const sol: [number, number] = [0, 0];
 const Js = new Float64Array(9), Fs = new Float64Array(3);
 
-/** Newton's method for the point equidistant (radius r) to sites a, b, c, from the origin with r = r0. */
-function solveTriple(a: number, b: number, c: number, r0: number): [number, number] | null {
+/** Newton's method for the point equidistant (radius r) to sites a, b, c, from the origin with r = r0; null when it
+ * leaves twice the move bound (the triple has no vertex nearby). */
+function solveTriple(a: number, b: number, c: number, r0: number, maxMove: number): [number, number] | null {
   let px = 0, py = 0, r = r0;
   const J = Js, F = Fs;
   for (let it = 0; it < 12; it++) {
@@ -177,7 +178,7 @@ function solveTriple(a: number, b: number, c: number, r0: number): [number, numb
         g = gx * px + gy * py - (sc[s] as number);
       } else {
         const ex = px - (sa[s] as number), ey = py - (sb[s] as number);
-        g = Math.hypot(ex, ey);
+        g = Math.sqrt(ex * ex + ey * ey);
         if (g === 0) return null;
         gx = ex / g;
         gy = ey / g;
@@ -197,9 +198,14 @@ function solveTriple(a: number, b: number, c: number, r0: number): [number, numb
     px += dx;
     py += dy;
     r += dr;
-    if (!Number.isFinite(px + py + r)) return null;
-    if (Math.abs(dx) + Math.abs(dy) + Math.abs(dr) <= 1e-12 * (1 + r0)) break;
+    if (!Number.isFinite(px + py + r) || r <= 0 || px * px + py * py > 4 * maxMove * maxMove) return null;
+    if (Math.abs(dx) + Math.abs(dy) + Math.abs(dr) <= 1e-12 * (1 + r0)) {
+      sol[0] = px;
+      sol[1] = py;
+      return sol;
+    }
   }
+  // Not settled to 1e-12 (rounding): the last iterate is still a candidate, checked on the exact distance.
   sol[0] = px;
   sol[1] = py;
   return sol;
