@@ -22,7 +22,7 @@ const DIR_Y = Float64Array.from({ length: 16 }, (_, k) => Math.sin((k * Math.PI)
 const SNAP_STEP = 1 / 64, SNAP_REACH = 8, SNAP_EARLY = 1 / 2;
 
 /** The best lattice nodes of one measurement (reused). */
-const topScratch = new Int32Array(8);
+const topScratch = new Int32Array(8), startScratch = new Int32Array(3);
 
 /**
  * Radius (dbu) of the largest inscribed disk: the best lattice nodes refined by a 16-direction pattern search
@@ -32,16 +32,23 @@ export function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64
   // The eight best nodes (ties broken by position); of these, up to three more than two steps apart seed the
   // search. Neighbouring top nodes sit on the same maximum and their searches end at the same point.
   const nTop = runTopNodes(runs, d2, lat.nx, lat.ny, topScratch);
-  const top = topScratch.subarray(0, nTop);
-  const starts: number[] = [];
-  for (const q of top) {
-    if (starts.length === 3) break;
+  const top = topScratch;
+  const starts = startScratch;
+  let nStarts = 0;
+  for (let t = 0; t < nTop && nStarts < 3; t++) {
+    const q = top[t] as number;
     const qi = q % lat.nx, qj = (q - qi) / lat.nx;
-    if (starts.every((s) => (s % lat.nx - qi) ** 2 + ((s - (s % lat.nx)) / lat.nx - qj) ** 2 > 4)) starts.push(q);
+    let apart = true;
+    for (let u = 0; u < nStarts && apart; u++) {
+      const s = starts[u] as number;
+      if ((s % lat.nx - qi) ** 2 + ((s - (s % lat.nx)) / lat.nx - qj) ** 2 <= 4) apart = false;
+    }
+    if (apart) starts[nStarts++] = q;
   }
   // Lattice D can exceed the true distance off the exact lattice: use exact distances only.
   let best = 0;
-  for (const q of starts) {
+  for (let u = 0; u < nStarts; u++) {
+    const q = starts[u] as number;
     const i = q % lat.nx, j = (q - i) / lat.nx;
     let x = lat.x0 + i * lat.step, y = lat.y0 + j * lat.step;
     let d = distanceToEdges(edges, x, y);

@@ -1,10 +1,16 @@
 /** Exact distance from a point to a feature's edges (the widths searches, disk-search.ts and ridge-snap.ts). */
 
-/** Ring edges as flat (ax, ay, dx, dy, |d|²) quintuples, built once per feature for the exact distance queries. */
-export function edgeList(coords: ArrayLike<number>, rings: [number, number][]): Float64Array {
+let edgeScratch = new Float64Array(0);
+
+/**
+ * Ring edges as flat (ax, ay, dx, dy, |d|²) quintuples, built once per feature for the exact distance queries.
+ * `reuse`: written into module scratch (valid until the next reusing call), for callers measuring one feature at a time.
+ */
+export function edgeList(coords: ArrayLike<number>, rings: [number, number][], reuse = false): Float64Array {
   let total = 0;
   for (const [s, e] of rings) total += e - s;
-  const out = new Float64Array(5 * total);
+  if (reuse && edgeScratch.length < 5 * total) edgeScratch = new Float64Array(Math.max(10 * total, 2 * edgeScratch.length));
+  const out = reuse ? edgeScratch.subarray(0, 5 * total) : new Float64Array(5 * total);
   let o = 0;
   for (const [s, e] of rings) {
     for (let k = s; k < e; k++) {

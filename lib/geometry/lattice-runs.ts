@@ -23,6 +23,8 @@ export interface InteriorRuns {
 let maskS = new Uint8Array(0);
 let runsS = new Int32Array(64);
 let rowRunS = new Int32Array(0);
+/** The one result object (module scratch, like its arrays). */
+const result: InteriorRuns = { mask: maskS, runs: runsS, rowRun: rowRunS, count: 0 };
 let rawS = new Float64Array(0);
 let orderS = new Int32Array(0), activeS = new Int32Array(0);
 let upX = new Float64Array(0), loX = new Float64Array(0);
@@ -125,7 +127,11 @@ export function interiorRuns(coords: ArrayLike<number>, rings: [number, number][
     }
   }
   rowRun[ny] = nRuns;
-  return { mask, runs: runsS, rowRun, count };
+  result.mask = mask;
+  result.runs = runsS;
+  result.rowRun = rowRun;
+  result.count = count;
+  return result;
 }
 
 /** Insertion into the first n entries kept sorted by x (a handful of crossings per row). */

@@ -163,7 +163,7 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
   const sc = smallestSelfCentred(d2, runMaximalCentres(runs, d2, lat.nx, lat.ny), maxD2, lat.nx, lat.ny, exact ? 0 : 1);
   // Off the exact lattice, polish the narrowest centre on the exact distance within two steps (reaches the ridge
   // of a straight-sided trench, whose lattice nodes sit up to half a step off the centre line).
-  const edges = edgeList(coords, rings);
+  const edges = edgeList(coords, rings, true);
   const minW = exact || sc.node < 0 ? sc.width : (2 * polishLocal(edges, lat, sc.node)) / step;
   // The largest disk's centre may lie between nodes (e.g. a Manhattan frame corner, where it touches a concave
   // corner): polish the best nodes by pattern search on the exact distance to the rings.
