@@ -18,14 +18,19 @@
  * and so are the widths (widthExact). Otherwise the step is 1/5 of the mean width 2·area/perimeter (stepsPerWidth),
  * coarser when the node cap (maxNodes) demands it, and reported in widthStepUm. Lattice D overestimates the true
  * distance by up to step·√2/2, so the narrowest self-centred node and the best largest-disk nodes are refined by
- * pattern search on the exact distance to the edges (polishLocal, refineLargestDisk); the tests hold a curved non-convex
- * shape (an annulus) to 2 % of its analytic width. A node counts as self-centred when no node with a strictly larger disk
- * covers it, so lattice noise can only raise minWidth. Axis-aligned rectangles, convex shapes and polygonised
- * circles are computed analytically.
+ * pattern search on the exact distance to the edges (polishLocal, refineLargestDisk, disk-search.ts), which lands
+ * exactly on the local maximum it approaches — a medial-axis vertex or a plateau midline — once close
+ * (ridge-snap.ts, accepted only where the directions to the nearest boundary points certify a maximum); a wider snap
+ * sets a floor where the search stalls on a slanted crease or a plateau below a nearby larger maximum. The tests hold
+ * a curved non-convex shape (an annulus) to 2 % of its analytic width and Manhattan T/L/cross/comb openings off the
+ * exact lattice to 1e-6 dbu. A node counts as self-centred when no node with a strictly larger disk covers it, so
+ * lattice noise can only raise minWidth. Axis-aligned rectangles, convex shapes and polygonised circles are
+ * computed analytically.
  *
- * Cost: the lattice path is ~0.1–0.3 ms per feature (a few thousand nodes). The exact-distance pattern searches
- * reject most probes after one edge test (`distanceAbove`), and with a `WidthCache` congruent copies under
- * translation are measured once.
+ * Cost: the lattice path is ~40–80 µs per feature (a few thousand nodes, a few hundred inside): the lattice passes
+ * run over the interior nodes only, kept as runs per row (lattice-runs.ts), in buffers reused from feature to
+ * feature. The pattern searches reject most probes after one edge test (`distanceAbove`), and with a `WidthCache`
+ * congruent copies under translation are measured once.
  */
 import type { Lattice } from './lattice';
 import { interiorRuns, lastRoots, runDistanceTransform, runMaximalCentres, runMaxD2, sortByD2Descending } from './lattice-runs';
@@ -85,7 +90,11 @@ export function shapeKey(coords: ArrayLike<number>, rings: [number, number][], b
 function gcd(a: number, b: number): number {
   a = Math.abs(a);
   b = Math.abs(b);
-  while (b > 1e-9) [a, b] = [b, a % b];
+  while (b > 1e-9) {
+    const t = a % b;
+    a = b;
+    b = t;
+  }
   return a;
 }
 
@@ -98,13 +107,10 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
   const bw = bbox[2] - bbox[0], bh = bbox[3] - bbox[1];
   // Rectangle (possibly cut into tile pieces): all edges axis-aligned and the area fills the bbox.
   let manhattan = true;
-  let g = 0;
   for (const [s, e] of rings) {
-    for (let k = s; k < e; k++) {
+    for (let k = s; k < e && manhattan; k++) {
       const n = k + 1 < e ? k + 1 : s;
-      const xa = coords[2 * k] as number, ya = coords[2 * k + 1] as number;
-      if (xa !== (coords[2 * n] as number) && ya !== (coords[2 * n + 1] as number)) manhattan = false;
-      g = gcd(gcd(g, xa - bbox[0]), ya - bbox[1]);
+      if ((coords[2 * k] as number) !== (coords[2 * n] as number) && (coords[2 * k + 1] as number) !== (coords[2 * n + 1] as number)) manhattan = false;
     }
   }
   if (manhattan && Math.abs(area - bw * bh) <= 1e-9 * bw * bh) {
@@ -123,6 +129,13 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
   const key = cache ? shapeKey(coords, rings, bbox) : '';
   const hit = cache?.get(key);
   if (hit) return hit;
+  // gcd of the vertex offsets: decides whether the exact Manhattan lattice is small enough (latticeWidths).
+  let g = 0;
+  if (manhattan) {
+    for (const [s, e] of rings) {
+      for (let k = s; k < e; k++) g = gcd(gcd(g, (coords[2 * k] as number) - bbox[0]), (coords[2 * k + 1] as number) - bbox[1]);
+    }
+  }
   const res = latticeWidths(coords, rings, bbox, area, perimeter, manhattan, g, opts);
   if (cache && cache.size < CACHE_LIMIT) cache.set(key, res);
   return res;
