@@ -105,7 +105,8 @@ export function snapToRidge(edges: Float64Array, x: number, y: number, d: number
   // Medial-axis vertices: equidistant to three sites.
   for (let a = 0; a < m; a++) for (let b = a + 1; b < m; b++) for (let c = b + 1; c < m; c++) {
     const p = solveTriple(a, b, c, d, maxMove);
-    if (p) consider(p[0], p[1]);
+    // D there is at most the triple's radius: only a radius above the best so far can win.
+    if (p && solvedR > best.d) consider(p[0], p[1]);
   }
   if (!best.found || !isLocalMaximum(edges, x + best.px, y + best.py, best.d)) return false;
   snapped[0] = x + best.px;
@@ -161,6 +162,8 @@ function consider(px: number, py: number): void {
 }
 
 const sol: [number, number] = [0, 0];
+/** Radius of the last solved triple. */
+let solvedR = 0;
 const Js = new Float64Array(9), Fs = new Float64Array(3);
 
 /** Newton's method for the point equidistant (radius r) to sites a, b, c, from the origin with r = r0; null when it
@@ -202,12 +205,14 @@ function solveTriple(a: number, b: number, c: number, r0: number, maxMove: numbe
     if (Math.abs(dx) + Math.abs(dy) + Math.abs(dr) <= 1e-12 * (1 + r0)) {
       sol[0] = px;
       sol[1] = py;
+      solvedR = r;
       return sol;
     }
   }
   // Not settled to 1e-12 (rounding): the last iterate is still a candidate, checked on the exact distance.
   sol[0] = px;
   sol[1] = py;
+  solvedR = r;
   return sol;
 }
 
