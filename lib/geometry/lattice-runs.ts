@@ -52,16 +52,18 @@ export function interiorRuns(coords: ArrayLike<number>, rings: [number, number][
   const rowRun = rowRunS;
   let total = 0;
   for (const [s, e] of rings) total += e - s;
-  if (rawS.length < 6 * total) {
-    rawS = new Float64Array(12 * total);
-    orderS = new Int32Array(2 * total);
-    activeS = new Int32Array(2 * total);
-    upX = new Float64Array(2 * total);
-    loX = new Float64Array(2 * total);
-    upD = new Int8Array(2 * total);
-    loD = new Int8Array(2 * total);
-    upI = new Int32Array(4 * total + 4);
-    loI = new Int32Array(4 * total + 4);
+  if (orderS.length < total) {
+    // Capacity for `cap` edges: crossings per half-row ≤ edges; intervals per half-row ≤ 2·crossings + 1.
+    const cap = 2 * total;
+    rawS = new Float64Array(6 * cap);
+    orderS = new Int32Array(cap);
+    activeS = new Int32Array(cap);
+    upX = new Float64Array(cap);
+    loX = new Float64Array(cap);
+    upD = new Int8Array(cap);
+    loD = new Int8Array(cap);
+    upI = new Int32Array(4 * cap + 4);
+    loI = new Int32Array(4 * cap + 4);
   }
   const raw = rawS, order = orderS, active = activeS;
   // Non-horizontal edges as ymin, ymax, xa, ya, xb, yb, sorted by ymin.
