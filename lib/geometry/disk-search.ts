@@ -22,7 +22,8 @@ const DIR_Y = Float64Array.from({ length: 16 }, (_, k) => Math.sin((k * Math.PI)
 const SNAP_STEP = 1 / 64, SNAP_REACH = 8, SNAP_EARLY = 1 / 2;
 
 /** The best lattice nodes of one measurement (reused). */
-const topScratch = new Int32Array(8), startScratch = new Int32Array(3);
+const topScratch = new Int32Array(8), startScratch = new Int32Array(5);
+const candQ = new Int32Array(512), candD = new Float64Array(512);
 
 /**
  * Radius (dbu) of the largest inscribed disk: the best lattice nodes refined by a 16-direction pattern search
@@ -45,6 +46,7 @@ export function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64
     }
     if (apart) starts[nStarts++] = q;
   }
+  nStarts = extraSeeds(edges, lat, d2, runs, nStarts);
   // Lattice D can exceed the true distance off the exact lattice: use exact distances only.
   let best = 0;
   for (let u = 0; u < nStarts; u++) {
@@ -91,6 +93,58 @@ export function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64
     if (d > best) best = d;
   }
   return best;
+}
+
+/**
+ * Up to two more seeds (appended to startScratch after the nStarts there; returns the new count): nodes whose exact
+ * distance beats every seed's. Ties of lattice D (a coarse lattice gives a 1 µm and a 1.4 µm arm the same node
+ * distance) put every position-ordered seed in the narrower arm, whose plateau the search cannot leave. Lattice D
+ * never underestimates the true distance (the nearest outside node lies beyond the boundary), so only nodes whose
+ * lattice D exceeds the best seed's exact distance can beat it; those are checked on the exact distance.
+ */
+function extraSeeds(edges: Float64Array, lat: Lattice, d2: Float64Array, runs: InteriorRuns, nStarts: number): number {
+  const starts = startScratch;
+  let floor = 0;
+  for (let u = 0; u < nStarts; u++) {
+    const q = starts[u] as number;
+    const i = q % lat.nx, j = (q - i) / lat.nx;
+    floor = Math.max(floor, distanceToEdges(edges, lat.x0 + i * lat.step, lat.y0 + j * lat.step));
+  }
+  const thr = (floor / lat.step) ** 2 * (1 - 1e-12);
+  const { runs: rr, rowRun } = runs;
+  let m = 0;
+  for (let j = 0; j < lat.ny && m < candQ.length; j++) {
+    for (let k = rowRun[j] as number; k < (rowRun[j + 1] as number) && m < candQ.length; k++) {
+      for (let i = rr[2 * k] as number, i1 = rr[2 * k + 1] as number; i <= i1 && m < candQ.length; i++) {
+        const q = j * lat.nx + i;
+        if (!((d2[q] as number) > thr)) continue;
+        const e = distanceToEdges(edges, lat.x0 + i * lat.step, lat.y0 + j * lat.step);
+        if (e > floor * (1 + 1e-12)) {
+          candQ[m] = q;
+          candD[m] = e;
+          m++;
+        }
+      }
+    }
+  }
+  // Best first, each more than two steps from every seed.
+  for (let added = 0; added < 2; ) {
+    let b = -1;
+    for (let c = 0; c < m; c++) if (candQ[c] as number >= 0 && (b < 0 || (candD[c] as number) > (candD[b] as number))) b = c;
+    if (b < 0) break;
+    const q = candQ[b] as number;
+    candQ[b] = -1;
+    const qi = q % lat.nx, qj = (q - qi) / lat.nx;
+    let apart = true;
+    for (let u = 0; u < nStarts && apart; u++) {
+      const s2 = starts[u] as number;
+      if ((s2 % lat.nx - qi) ** 2 + ((s2 - (s2 % lat.nx)) / lat.nx - qj) ** 2 <= 4) apart = false;
+    }
+    if (!apart) continue;
+    starts[nStarts++] = q;
+    added++;
+  }
+  return nStarts;
 }
 
 /** Largest exact distance to the rings within two lattice steps of node q (pattern search, dbu). */

@@ -46,6 +46,8 @@ export interface WidthOptions {
   maxNodes?: number;
   /** Lattice steps per mean width 2·area/perimeter (non-convex features off the exact lattice). Default 5. */
   stepsPerWidth?: number;
+  /** Measure on the sampled lattice even where the exact Manhattan lattice applies (tests compare the two). */
+  sampledLattice?: boolean;
 }
 
 export interface WidthResult {
@@ -150,7 +152,7 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
   const nodesAt = (s: number) => (Math.ceil(bw / s) + 1) * (Math.ceil(bh / s) + 1);
   const meanWidth = perimeter > 0 ? (2 * area) / perimeter : Math.min(bw, bh);
   const exactCap = 16 * maxNodes;
-  if (manhattan && g > 0 && nodesAt(g / 2) <= exactCap) {
+  if (manhattan && g > 0 && nodesAt(g / 2) <= exactCap && !opts.sampledLattice) {
     // Any divisor of g/2 keeps the lattice exact; refine to ≥ 40 nodes per mean width so disks centred near
     // junctions are sampled finely enough to cover their neighbours (the self-centred test is strict here).
     // Vertices on a fine dbu grid (g of a few dbu) make this lattice too big: then the general path is used.
