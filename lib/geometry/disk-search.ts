@@ -46,10 +46,13 @@ export function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64
     }
     if (apart) starts[nStarts++] = q;
   }
+  const firstStarts = nStarts;
   nStarts = extraSeeds(edges, lat, d2, runs, nStarts);
   // Lattice D can exceed the true distance off the exact lattice: use exact distances only.
   let best = 0;
+  seededBest = 0;
   for (let u = 0; u < nStarts; u++) {
+    if (u === firstStarts) seededBest = best;
     const q = starts[u] as number;
     const i = q % lat.nx, j = (q - i) / lat.nx;
     let x = lat.x0 + i * lat.step, y = lat.y0 + j * lat.step;
@@ -92,8 +95,16 @@ export function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64
     if (early > d) d = early;
     if (d > best) best = d;
   }
+  if (nStarts === firstStarts) seededBest = best;
   return best;
 }
+
+/**
+ * Radius found by the last refineLargestDisk from the position-ordered seeds alone (without extraSeeds). widths.ts
+ * caps minWidth with it as before extraSeeds existed: where lattice ties put those seeds in a narrower arm, the
+ * narrowest-centre polish can start in the wider one, and this cap is what kept minWidth on the narrow arm.
+ */
+export let seededBest = 0;
 
 /**
  * Up to two more seeds (appended to startScratch after the nStarts there; returns the new count): nodes whose exact

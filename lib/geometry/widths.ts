@@ -34,7 +34,7 @@
  */
 import type { Lattice } from './lattice';
 import { interiorRuns, lastRoots, runDistanceTransform, runMaximalCentres, runMaxD2, sortByD2Descending } from './lattice-runs';
-import { polishLocal, refineLargestDisk } from './disk-search';
+import { polishLocal, refineLargestDisk, seededBest } from './disk-search';
 import { edgeList } from './edge-distance';
 import { convexInscribedRadius, isConvexRing } from './convex-width';
 import { polygonisedCircle } from './circle-width';
@@ -183,7 +183,7 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
   // The largest disk's centre may lie between nodes (e.g. a Manhattan frame corner, where it touches a concave
   // corner): polish the best nodes by pattern search on the exact distance to the rings.
   const maxD = refineLargestDisk(edges, lat, d2, runs);
-  return { minWidth: Math.min(minW * step, 2 * maxD), maxWidth: 2 * maxD, step, exact };
+  return { minWidth: Math.min(minW * step, 2 * seededBest), maxWidth: 2 * maxD, step, exact };
 }
 
 /**

@@ -195,6 +195,14 @@ describe('widths of Manhattan openings off the exact lattice (vertices on a 1 nm
     expect(Math.abs(f.maxWidthUm - 2 * Math.hypot(2_001.5, 1_500.5) * DBU)).toBeLessThan(1e-9); // half-diagonal of the crossing
   });
 
+  it('bottle: a 1.001 µm neck under a 1.401 µm body — the body plateau is the largest disk', () => {
+    // Coarse lattice (step ≈ 0.22 µm): both arms get the same node distance (3 steps); seeds taken in node order
+    // all sat in the neck and reported maxWidth 1.001. Analytical: body plateau 1401 dbu, neck plateau 1001 dbu.
+    const f = one([rect(5_401, 1_801, 6_402, 6_001), rect(5_201, 6_001, 6_602, 12_401)]);
+    expect(Math.abs(f.maxWidthUm - 1.401)).toBeLessThan(1e-9);
+    expect(Math.abs(f.minWidthUm - 1.001)).toBeLessThan(1e-9);
+  });
+
   it('comb: spine 2.001 µm, four teeth 1.003 µm — minWidth the teeth', () => {
     const rings: Ring[] = [rect(0, 0, 30_001, 2_001)];
     for (let k = 0; k < 4; k++) rings.push(rect(2_000 + 7_000 * k, 2_001, 3_003 + 7_000 * k, 12_007));
