@@ -129,7 +129,8 @@ function extraSeeds(edges: Float64Array, lat: Lattice, d2: Float64Array, runs: I
       for (let i = rr[2 * k] as number, i1 = rr[2 * k + 1] as number; i <= i1 && m < candQ.length; i++) {
         const q = j * lat.nx + i;
         if (!((d2[q] as number) > thr)) continue;
-        const e = distanceToEdges(edges, lat.x0 + i * lat.step, lat.y0 + j * lat.step);
+        // Most candidates are rejected by one edge test (distanceAbove): only beating the floor matters.
+        const e = distanceAbove(edges, lat.x0 + i * lat.step, lat.y0 + j * lat.step, floor * (1 + 1e-12));
         if (e > floor * (1 + 1e-12)) {
           candQ[m] = q;
           candD[m] = e;
