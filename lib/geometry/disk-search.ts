@@ -1,0 +1,206 @@
+/**
+ * Exact-distance searches of the widths lattice path (widths.ts): the distance from a point to a feature's edges, the
+ * largest inscribed disk grown from the best lattice nodes, and the local polish of the narrowest self-centred node.
+ * Both searches are 16-direction pattern searches with halving steps; once the step is small they try to land
+ * exactly on the local maximum (ridge-snap.ts) and stop there when no probe at the current step improves on it.
+ */
+import type { Lattice } from './lattice';
+import { runTopNodes, type InteriorRuns } from './lattice-runs';
+import { distanceAbove, distanceToEdges } from './edge-distance';
+import { snapToRidge, snapped } from './ridge-snap';
+
+/** The 16 pattern-search directions (cos, sin of k·π/8). */
+const DIR_X = Float64Array.from({ length: 16 }, (_, k) => Math.cos((k * Math.PI) / 8));
+const DIR_Y = Float64Array.from({ length: 16 }, (_, k) => Math.sin((k * Math.PI) / 8));
+
+/**
+ * Search step (in lattice steps) below which a search lands on the maximum exactly (ridge-snap.ts) and stops there;
+ * how far beyond the current distance (in search steps) the sites it combines may lie. A first snap at step 1/2 is
+ * only kept as a floor for the result: pattern searches stall on slanted creases of D (the bisector of two concave
+ * corners is not one of the 16 directions) and at saddles, where the search ends below the maximum it is climbing to.
+ */
+const SNAP_STEP = 1 / 64, SNAP_REACH = 8, SNAP_EARLY = 1 / 2;
+
+/** The best lattice nodes of one measurement (reused). */
+const topScratch = new Int32Array(8), startScratch = new Int32Array(5);
+const candQ = new Int32Array(512), candD = new Float64Array(512);
+
+/**
+ * Radius (dbu) of the largest inscribed disk: the best lattice nodes refined by a 16-direction pattern search
+ * with halving steps (moves shorter than the current radius never leave the opening).
+ */
+export function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64Array, runs: InteriorRuns): number {
+  // The eight best nodes (ties broken by position); of these, up to three more than two steps apart seed the
+  // search. Neighbouring top nodes sit on the same maximum and their searches end at the same point.
+  const nTop = runTopNodes(runs, d2, lat.nx, lat.ny, topScratch);
+  const top = topScratch;
+  const starts = startScratch;
+  let nStarts = 0;
+  for (let t = 0; t < nTop && nStarts < 3; t++) {
+    const q = top[t] as number;
+    const qi = q % lat.nx, qj = (q - qi) / lat.nx;
+    let apart = true;
+    for (let u = 0; u < nStarts && apart; u++) {
+      const s = starts[u] as number;
+      if ((s % lat.nx - qi) ** 2 + ((s - (s % lat.nx)) / lat.nx - qj) ** 2 <= 4) apart = false;
+    }
+    if (apart) starts[nStarts++] = q;
+  }
+  const firstStarts = nStarts;
+  nStarts = extraSeeds(edges, lat, d2, runs, nStarts);
+  // Lattice D can exceed the true distance off the exact lattice: use exact distances only.
+  let best = 0;
+  seededBest = 0;
+  for (let u = 0; u < nStarts; u++) {
+    if (u === firstStarts) seededBest = best;
+    const q = starts[u] as number;
+    const i = q % lat.nx, j = (q - i) / lat.nx;
+    let x = lat.x0 + i * lat.step, y = lat.y0 + j * lat.step;
+    let d = distanceToEdges(edges, x, y);
+    let h = lat.step;
+    let snapAt = lat.step * SNAP_STEP, justSnapped = false;
+    let earlyAt = lat.step * SNAP_EARLY, early = 0;
+    for (let it = 0; it < 120 && h > lat.step * 1e-6; it++) {
+      if (h < earlyAt) {
+        earlyAt = 0;
+        if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) early = snapped[2] as number;
+      }
+      if (h < snapAt) {
+        snapAt = 0;
+        if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) {
+          x = snapped[0] as number;
+          y = snapped[1] as number;
+          d = snapped[2] as number;
+          justSnapped = true;
+        }
+      }
+      let moved = false;
+      for (let k = 0; k < 16; k++) {
+        if (!(h < d)) break;
+        const nxp = x + (DIR_X[k] as number) * h, nyp = y + (DIR_Y[k] as number) * h;
+        const nd = distanceAbove(edges, nxp, nyp, d + 1e-12);
+        if (nd > d + 1e-12) {
+          x = nxp;
+          y = nyp;
+          d = nd;
+          moved = true;
+          break;
+        }
+      }
+      // On the snapped maximum no probe improves: done. Otherwise the snap was not the maximum; search on.
+      if (!moved && justSnapped) break;
+      if (moved) justSnapped = false;
+      else h /= 2;
+    }
+    if (early > d) d = early;
+    if (d > best) best = d;
+  }
+  if (nStarts === firstStarts) seededBest = best;
+  return best;
+}
+
+/**
+ * Radius found by the last refineLargestDisk from the position-ordered seeds alone (without extraSeeds). widths.ts
+ * caps minWidth with it as before extraSeeds existed: where lattice ties put those seeds in a narrower arm, the
+ * narrowest-centre polish can start in the wider one, and this cap is what kept minWidth on the narrow arm.
+ */
+export let seededBest = 0;
+
+/**
+ * Up to two more seeds (appended to startScratch after the nStarts there; returns the new count): nodes whose exact
+ * distance beats every seed's. Ties of lattice D (a coarse lattice gives a 1 µm and a 1.4 µm arm the same node
+ * distance) put every position-ordered seed in the narrower arm, whose plateau the search cannot leave. Lattice D
+ * never underestimates the true distance (the nearest outside node lies beyond the boundary), so only nodes whose
+ * lattice D exceeds the best seed's exact distance can beat it; those are checked on the exact distance.
+ */
+function extraSeeds(edges: Float64Array, lat: Lattice, d2: Float64Array, runs: InteriorRuns, nStarts: number): number {
+  const starts = startScratch;
+  let floor = 0;
+  for (let u = 0; u < nStarts; u++) {
+    const q = starts[u] as number;
+    const i = q % lat.nx, j = (q - i) / lat.nx;
+    floor = Math.max(floor, distanceToEdges(edges, lat.x0 + i * lat.step, lat.y0 + j * lat.step));
+  }
+  const thr = (floor / lat.step) ** 2 * (1 - 1e-12);
+  const { runs: rr, rowRun } = runs;
+  let m = 0;
+  for (let j = 0; j < lat.ny && m < candQ.length; j++) {
+    for (let k = rowRun[j] as number; k < (rowRun[j + 1] as number) && m < candQ.length; k++) {
+      for (let i = rr[2 * k] as number, i1 = rr[2 * k + 1] as number; i <= i1 && m < candQ.length; i++) {
+        const q = j * lat.nx + i;
+        if (!((d2[q] as number) > thr)) continue;
+        // Most candidates are rejected by one edge test (distanceAbove): only beating the floor matters.
+        const e = distanceAbove(edges, lat.x0 + i * lat.step, lat.y0 + j * lat.step, floor * (1 + 1e-12));
+        if (e > floor * (1 + 1e-12)) {
+          candQ[m] = q;
+          candD[m] = e;
+          m++;
+        }
+      }
+    }
+  }
+  // Best first, each more than two steps from every seed.
+  for (let added = 0; added < 2; ) {
+    let b = -1;
+    for (let c = 0; c < m; c++) if (candQ[c] as number >= 0 && (b < 0 || (candD[c] as number) > (candD[b] as number))) b = c;
+    if (b < 0) break;
+    const q = candQ[b] as number;
+    candQ[b] = -1;
+    const qi = q % lat.nx, qj = (q - qi) / lat.nx;
+    let apart = true;
+    for (let u = 0; u < nStarts && apart; u++) {
+      const s2 = starts[u] as number;
+      if ((s2 % lat.nx - qi) ** 2 + ((s2 - (s2 % lat.nx)) / lat.nx - qj) ** 2 <= 4) apart = false;
+    }
+    if (!apart) continue;
+    starts[nStarts++] = q;
+    added++;
+  }
+  return nStarts;
+}
+
+/** Largest exact distance to the rings within two lattice steps of node q (pattern search, dbu). */
+export function polishLocal(edges: Float64Array, lat: Lattice, q: number): number {
+  const i = q % lat.nx, j = (q - i) / lat.nx;
+  const cx = lat.x0 + i * lat.step, cy = lat.y0 + j * lat.step;
+  let x = cx, y = cy;
+  let d = distanceToEdges(edges, x, y);
+  let h = lat.step / 2;
+  let snapAt = lat.step * SNAP_STEP, justSnapped = false;
+  let earlyAt = lat.step * SNAP_EARLY, early = 0;
+  for (let it = 0; it < 80 && h > lat.step * 1e-6; it++) {
+    if (h < earlyAt) {
+      earlyAt = 0;
+      const room = Math.min(d, 2 * lat.step - Math.hypot(x - cx, y - cy));
+      if (room > 0 && snapToRidge(edges, x, y, d, SNAP_REACH * h, room)) early = snapped[2] as number;
+    }
+    if (h < snapAt) {
+      snapAt = 0;
+      const room = Math.min(d, 2 * lat.step - Math.hypot(x - cx, y - cy));
+      if (room > 0 && snapToRidge(edges, x, y, d, SNAP_REACH * h, room)) {
+        x = snapped[0] as number;
+        y = snapped[1] as number;
+        d = snapped[2] as number;
+        justSnapped = true;
+      }
+    }
+    let moved = false;
+    for (let k = 0; k < 16; k++) {
+      const nxp = x + (DIR_X[k] as number) * h, nyp = y + (DIR_Y[k] as number) * h;
+      if ((nxp - cx) * (nxp - cx) + (nyp - cy) * (nyp - cy) > 4 * lat.step * lat.step) continue;
+      if (!(h < d)) break;
+      const nd = distanceAbove(edges, nxp, nyp, d + 1e-12);
+      if (nd > d + 1e-12) {
+        x = nxp;
+        y = nyp;
+        d = nd;
+        moved = true;
+        break;
+      }
+    }
+    if (!moved && justSnapped) break;
+    if (moved) justSnapped = false;
+    else h /= 2;
+  }
+  return early > d ? early : d;
+}

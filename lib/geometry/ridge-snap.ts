@@ -1,0 +1,221 @@
+/**
+ * Lands a point that a pattern search has brought near a local maximum of D (the distance to a feature's edges)
+ * exactly on it. Near such a maximum D is the distance to a few sites — edge lines (nearest point inside the edge)
+ * and edge end points — and the maximum is either a point equidistant to three sites (a vertex of the medial axis:
+ * two lines, a line and two corners, ...) or a point on the midline of two facing parallel edges (a plateau, where D
+ * is constant along the line). Each candidate is solved for (Newton's method on g_i(p) = r for three sites, a
+ * projection for the plateau) and kept only when the exact D there, over all edges, is larger than the caller's.
+ * A returned point is therefore a real point of the opening (it lies within D of the start, so the straight move
+ * never crosses the boundary) whose distance is at least the start's: the search result can only get closer to the
+ * true local maximum.
+ */
+import { distanceToEdges } from './edge-distance';
+
+/** Most sites (nearest first) combined into candidates. */
+const MAX_SITES = 6;
+
+// Sites relative to the start point: kind 0 = line n·p = c (unit normal n pointing at the start), 1 = point (px, py).
+const kind = new Int8Array(MAX_SITES), sa = new Float64Array(MAX_SITES), sb = new Float64Array(MAX_SITES), sc = new Float64Array(MAX_SITES), sd = new Float64Array(MAX_SITES);
+const usedS = new Uint8Array(64);
+const candKind = new Int8Array(64), candA = new Float64Array(64), candB = new Float64Array(64), candC = new Float64Array(64), candD = new Float64Array(64);
+
+/** The snapped point: x, y (dbu) and its exact distance to the edges. */
+export const snapped = new Float64Array(3);
+
+function addCandidate(n: number, k: number, a: number, b: number, c: number, dist: number): number {
+  // Same point site from two edges sharing a corner: keep one.
+  if (k === 1) for (let q = 0; q < n; q++) if (candKind[q] === 1 && candA[q] === a && candB[q] === b) return n;
+  if (n >= candKind.length) return n;
+  candKind[n] = k;
+  candA[n] = a;
+  candB[n] = b;
+  candC[n] = c;
+  candD[n] = dist;
+  return n + 1;
+}
+
+/**
+ * Tries to snap (x, y), at exact distance d from `edges` (edgeList form), to the local maximum of D nearby.
+ * `reach` bounds how far the candidate sites may be beyond d (a few search steps). `maxMove` bounds the move
+ * (callers restrict their search region; always < d). On success writes `snapped` and returns true.
+ */
+export function snapToRidge(edges: Float64Array, x: number, y: number, d: number, reach: number, maxMove: number): boolean {
+  // Candidate sites within d + reach, relative to (x, y).
+  let n = 0;
+  for (let o = 0; o < edges.length; o += 5) {
+    const ax = (edges[o] as number) - x, ay = (edges[o + 1] as number) - y, dx = edges[o + 2] as number, dy = edges[o + 3] as number;
+    const l2 = edges[o + 4] as number;
+    if (l2 === 0) continue;
+    const t = -(ax * dx + ay * dy) / l2;
+    const len = Math.sqrt(l2);
+    // Line site: the foot of the perpendicular lies on the edge (or within reach of it).
+    const lineDist = Math.abs(ax * dy - ay * dx) / len;
+    if (lineDist <= d + reach && t * len >= -reach && (t - 1) * len <= reach) {
+      // Unit normal pointing from the line towards the start point (origin).
+      let nx = -dy / len, ny = dx / len;
+      let c = nx * ax + ny * ay;
+      if (c > 0) {
+        nx = -nx;
+        ny = -ny;
+        c = -c;
+      }
+      n = addCandidate(n, 0, nx, ny, c, lineDist);
+    }
+    // End point sites.
+    const pa = Math.sqrt(ax * ax + ay * ay), pb = Math.sqrt((ax + dx) * (ax + dx) + (ay + dy) * (ay + dy));
+    if (pa <= d + reach) n = addCandidate(n, 1, ax, ay, 0, pa);
+    if (pb <= d + reach) n = addCandidate(n, 1, ax + dx, ay + dy, 0, pb);
+  }
+  // Nearest MAX_SITES sites.
+  let m = 0;
+  const used = usedS.fill(0, 0, n);
+  while (m < MAX_SITES) {
+    let best = -1;
+    for (let q = 0; q < n; q++) if (!used[q] && (best < 0 || (candD[q] as number) < (candD[best] as number))) best = q;
+    if (best < 0) break;
+    used[best] = 1;
+    kind[m] = candKind[best] as number;
+    sa[m] = candA[best] as number;
+    sb[m] = candB[best] as number;
+    sc[m] = candC[best] as number;
+    sd[m] = candD[best] as number;
+    m++;
+  }
+  best.edges = edges;
+  best.x = x;
+  best.y = y;
+  best.d = d;
+  best.px = 0;
+  best.py = 0;
+  best.found = false;
+  best.maxMove = maxMove;
+  // Plateaus: two facing parallel lines; the start point projected onto their midline.
+  for (let a = 0; a < m; a++) {
+    if (kind[a] !== 0) continue;
+    for (let b = a + 1; b < m; b++) {
+      if (kind[b] !== 0) continue;
+      const dot = (sa[a] as number) * (sa[b] as number) + (sb[a] as number) * (sb[b] as number);
+      if (dot > -1 + 1e-12) continue;
+      // g_a(p) = n_a·p − c_a; at the origin g_a = −c_a. Half the gap is r; move along n_a by r − g_a(0).
+      const ga = -(sc[a] as number), gb = -(sc[b] as number);
+      const r = (ga + gb) / 2;
+      consider((sa[a] as number) * (r - ga), (sb[a] as number) * (r - ga));
+    }
+  }
+  // Medial-axis vertices: equidistant to three sites.
+  for (let a = 0; a < m; a++) for (let b = a + 1; b < m; b++) for (let c = b + 1; c < m; c++) {
+    const p = solveTriple(a, b, c, d, maxMove);
+    // D there is at most the triple's radius: only a radius above the best so far can win.
+    if (p && solvedR > best.d) consider(p[0], p[1]);
+  }
+  if (!best.found || !isLocalMaximum(edges, x + best.px, y + best.py, best.d)) return false;
+  snapped[0] = x + best.px;
+  snapped[1] = y + best.py;
+  snapped[2] = best.d;
+  return true;
+}
+
+const angles = new Float64Array(256);
+
+/**
+ * Whether D has a local maximum at (x, y), where D = d: the unit vectors from the nearest boundary points (the active
+ * sites, within 1e-9 relative of d) to the point leave no angular gap of π or more — every direction then brings the
+ * point closer to some site at first order. A gap of exactly π (two facing edges) is a maximum only when every active
+ * site is an edge line: D is then locally the minimum of linear functions, concave, so the point is a (plateau)
+ * maximum. With a corner among the sites a gap of π can be a saddle (a neck between two corners): not accepted.
+ */
+export function isLocalMaximum(edges: Float64Array, x: number, y: number, d: number): boolean {
+  const tol = 1e-9 * (1 + d);
+  let n = 0, corner = false;
+  for (let o = 0; o < edges.length && n < angles.length; o += 5) {
+    const ax = edges[o] as number, ay = edges[o + 1] as number, dx = edges[o + 2] as number, dy = edges[o + 3] as number;
+    const l2 = edges[o + 4] as number;
+    let t = l2 > 0 ? ((x - ax) * dx + (y - ay) * dy) / l2 : 0;
+    const inside = t > 0 && t < 1;
+    t = t < 0 ? 0 : t > 1 ? 1 : t;
+    const ex = x - ax - t * dx, ey = y - ay - t * dy;
+    const e = Math.sqrt(ex * ex + ey * ey);
+    if (e > d + tol) continue;
+    if (!inside) corner = true;
+    angles[n++] = Math.atan2(ey, ex);
+  }
+  if (n < 2) return false;
+  const a = angles.subarray(0, n).sort();
+  let gap = (a[0] as number) + 2 * Math.PI - (a[n - 1] as number);
+  for (let k = 1; k < n; k++) gap = Math.max(gap, (a[k] as number) - (a[k - 1] as number));
+  return corner ? gap < Math.PI - 1e-9 : gap <= Math.PI + 1e-9;
+}
+
+/** Best candidate of the current snap (module state: no closure per call). */
+const best: { edges: Float64Array; x: number; y: number; d: number; px: number; py: number; found: boolean; maxMove: number } = { edges: new Float64Array(0), x: 0, y: 0, d: 0, px: 0, py: 0, found: false, maxMove: 0 };
+
+/** Keeps candidate (px, py) (relative to the start) when it is within reach and farther from the edges than the best. */
+function consider(px: number, py: number): void {
+  if (!(Math.sqrt(px * px + py * py) < best.maxMove)) return;
+  const e = distanceToEdges(best.edges, best.x + px, best.y + py);
+  if (e > best.d + 1e-12 * (1 + best.d)) {
+    best.d = e;
+    best.px = px;
+    best.py = py;
+    best.found = true;
+  }
+}
+
+const sol: [number, number] = [0, 0];
+/** Radius of the last solved triple. */
+let solvedR = 0;
+const Js = new Float64Array(9), Fs = new Float64Array(3);
+
+/** Newton's method for the point equidistant (radius r) to sites a, b, c, from the origin with r = r0; null when it
+ * leaves twice the move bound (the triple has no vertex nearby). */
+function solveTriple(a: number, b: number, c: number, r0: number, maxMove: number): [number, number] | null {
+  let px = 0, py = 0, r = r0;
+  const J = Js, F = Fs;
+  for (let it = 0; it < 12; it++) {
+    for (let k = 0; k < 3; k++) {
+      const s = k === 0 ? a : k === 1 ? b : c;
+      let g: number, gx: number, gy: number;
+      if (kind[s] === 0) {
+        gx = sa[s] as number;
+        gy = sb[s] as number;
+        g = gx * px + gy * py - (sc[s] as number);
+      } else {
+        const ex = px - (sa[s] as number), ey = py - (sb[s] as number);
+        g = Math.sqrt(ex * ex + ey * ey);
+        if (g === 0) return null;
+        gx = ex / g;
+        gy = ey / g;
+      }
+      F[k] = g - r;
+      J[3 * k] = gx;
+      J[3 * k + 1] = gy;
+      J[3 * k + 2] = -1;
+    }
+    // Solve J·δ = −F by Cramer's rule.
+    const det = det3(J[0]!, J[1]!, J[2]!, J[3]!, J[4]!, J[5]!, J[6]!, J[7]!, J[8]!);
+    if (!(Math.abs(det) > 1e-12)) return null;
+    const f0 = -F[0]!, f1 = -F[1]!, f2 = -F[2]!;
+    const dx = det3(f0, J[1]!, J[2]!, f1, J[4]!, J[5]!, f2, J[7]!, J[8]!) / det;
+    const dy = det3(J[0]!, f0, J[2]!, J[3]!, f1, J[5]!, J[6]!, f2, J[8]!) / det;
+    const dr = det3(J[0]!, J[1]!, f0, J[3]!, J[4]!, f1, J[6]!, J[7]!, f2) / det;
+    px += dx;
+    py += dy;
+    r += dr;
+    if (!Number.isFinite(px + py + r) || r <= 0 || px * px + py * py > 4 * maxMove * maxMove) return null;
+    if (Math.abs(dx) + Math.abs(dy) + Math.abs(dr) <= 1e-12 * (1 + r0)) {
+      sol[0] = px;
+      sol[1] = py;
+      solvedR = r;
+      return sol;
+    }
+  }
+  // Not settled to 1e-12 (rounding): the last iterate is still a candidate, checked on the exact distance.
+  sol[0] = px;
+  sol[1] = py;
+  solvedR = r;
+  return sol;
+}
+
+function det3(a: number, b: number, c: number, d: number, e: number, f: number, g: number, h: number, i: number): number {
+  return a * (e * i - f * h) - b * (d * i - f * g) + c * (d * h - e * g);
+}
