@@ -148,6 +148,9 @@ export function predictFeatureTable(features: FeatureTable, effective: Float32Ar
   // Cyclic mode steps every cycle (~10 µs per opening), so repeated openings are predicted once there.
   const cache = model.mode === 'cyclic' ? new Map<string, FeaturePrediction>() : null;
   const meanWidthNote = 'no measurable smallest width: the mean width 2·area/perimeter was used';
+  // The sampled width lattice can step over a short narrow stub (widths.ts, known limit): say so on each opening
+  // measured that way, since its narrowest width can then read too large and its aspect ratio too small.
+  const sampledWidthNote = 'width sampled on a lattice: a narrow part one or two lattice steps wide may be missed, so the width can read too large';
   const range = calibratedRangeOf(model);
   const every = opts.every ?? 2048;
   const t = emptyFeatureResultTable(features, range);
@@ -213,12 +216,14 @@ export function predictFeatureTable(features: FeatureTable, effective: Float32Ar
     t.nulls[n] = nulls;
     t.reachesTarget[n] = p.reachesTarget ? 1 : 0;
     t.stopped[n] = p.stopped ? 1 : 0;
-    if (measurable && p.warnings.length === 0) t.notes[n] = 0;
+    const sampled = measurable && f.widthExact[n] === 0;
+    if (measurable && !sampled && p.warnings.length === 0) t.notes[n] = 0;
     else {
-      const key = (measurable ? '' : '\u0001') + p.warnings.join('\u0000');
+      const key = (measurable ? (sampled ? '\u0002' : '') : '\u0001') + p.warnings.join('\u0000');
       let li = listOf.get(key);
       if (li === undefined) {
-        const notes = measurable ? notesOf(p.warnings, noteCache) : [...notesOf(p.warnings, noteCache), meanWidthNote];
+        const own = notesOf(p.warnings, noteCache);
+        const notes = !measurable ? [...own, meanWidthNote] : sampled ? [...own, sampledWidthNote] : own;
         // Raw warnings differ in their numbers; the notes do not: one list per distinct content.
         const content = notes.join('\u0000');
         li = notes.length === 0 ? 0 : byContent.get(content);
