@@ -141,6 +141,12 @@ export function ownsPoint(plan: TilePlan, t: number, xUm: number, yUm: number): 
   return true;
 }
 
+/** The µm line below tile t's core (−∞ for the bottom row, which owns everything below). */
+export function coreBottomUm(plan: TilePlan, t: number): number {
+  const tj = Math.floor(t / plan.ntx);
+  return tj > 0 ? lineY(plan, tj) : -Infinity;
+}
+
 /**
  * The box (dbu) tile t reads with `marginDbu`: its core grown by the margin left, right and up and by one dbu down
  * (an opening owned by the tile lies above its lowest vertex, which is in the core), snapped outward to the union

@@ -24,7 +24,7 @@ import type { Box, Feature } from '../../geometry/types';
 import type { TileSource } from '../../layout/tile-source';
 import type { FlatLayout, PolygonSet } from '../../layout/types';
 import { mergePolygonSets } from '../etch-layers';
-import { isWholeRegion, ownsPoint, tileCore, tileRegion, type TilePlan } from './plan';
+import { coreBottomUm, isWholeRegion, ownsPoint, tileCore, tileRegion, type TilePlan } from './plan';
 
 export interface TileJob {
   kind: 'core' | 'grow';
@@ -157,6 +157,8 @@ function ownedOpenings(regions: OpenRegions, plan: TilePlan, job: TileJob, R: Bo
       ((by1[r] as number) < R[3] || R[3] >= G[3]));
   const u = plan.dbuUm;
   const owns = (r: number) => ownsPoint(plan, job.tile, (px[r] as number) * u, (py[r] as number) * u);
+  // The true lowest vertex is at or below a partial view's: a partial view reaching below the core is not ours.
+  const belowCore = (r: number) => (py[r] as number) * u < coreBottomUm(plan, job.tile);
   const roots: number[] = [];
   if (job.kind === 'core') {
     for (let p = 0; p < n; p++) if (find(parent, p) === p) roots.push(p);
@@ -178,7 +180,7 @@ function ownedOpenings(regions: OpenRegions, plan: TilePlan, job: TileJob, R: Bo
   for (const r of roots) {
     if (complete(r)) {
       if (owns(r)) measure[r] = 1;
-    } else if (job.kind === 'grow' || owns(r)) pending.push(cell[r] as number, rank[r] as number);
+    } else if (owns(r) || (job.kind === 'grow' && !belowCore(r))) pending.push(cell[r] as number, rank[r] as number);
   }
   const sub = keepPieces(regions, parent, measure);
   if (sub.regions.pieceCount === 0) return { features: [], keys: [], pending };
