@@ -154,14 +154,24 @@ export function coreBottomUm(plan: TilePlan, t: number): number {
  */
 export function tileRegion(plan: TilePlan, t: number, marginDbu: number): Box {
   const ti = t % plan.ntx, tj = Math.floor(t / plan.ntx);
-  const u = plan.dbuUm, G = plan.regionDbu, L = plan.latticeDbu;
+  const u = plan.dbuUm;
   const x0 = Math.floor(lineX(plan, ti) / u) - marginDbu;
   const y0 = Math.floor(lineY(plan, tj) / u) - 1;
   const x1 = Math.ceil(lineX(plan, ti + 1) / u) + marginDbu;
   const y1 = Math.ceil(lineY(plan, tj + 1) / u) + marginDbu;
+  return snapOut(plan, [x0, y0, x1, y1]);
+}
+
+/** A box grown by the margin on every side, snapped outward to the lattice (re-reads around a wide opening). */
+export function boxRegion(plan: TilePlan, box: Box, marginDbu: number): Box {
+  return snapOut(plan, [box[0] - marginDbu, box[1] - marginDbu, box[2] + marginDbu, box[3] + marginDbu]);
+}
+
+function snapOut(plan: TilePlan, b: Box): Box {
+  const G = plan.regionDbu, L = plan.latticeDbu;
   const down = (v: number, lo: number) => Math.max(lo, lo + Math.floor((v - lo) / L) * L);
   const up = (v: number, lo: number, hi: number) => Math.min(hi, lo + Math.ceil((v - lo) / L) * L);
-  return [down(x0, G[0]), down(y0, G[1]), up(x1, G[0], G[2]), up(y1, G[1], G[3])];
+  return [down(b[0], G[0]), down(b[1], G[1]), up(b[2], G[0], G[2]), up(b[3], G[1], G[3])];
 }
 
 /** Whether a region is the whole layout bbox (then nothing outside it can extend an opening). */

@@ -24,7 +24,8 @@ import { headerLayout, planTiles, type PlanOptions, type TilePlan } from './plan
 import type { TileSourceSpec } from './sources';
 import { stitchFeatures, type FeaturePart } from './stitch-features';
 import { inlineExecutor, threadExecutor, type TileExecutor } from './tile-pool';
-import type { TileJob, TileJobResult } from './tile-work';
+import { PENDING_SIZE, type TileJob, type TileJobResult } from './tile-work';
+import type { Feature } from '../../geometry/types';
 
 const TILE_SHARE = 0.6;
 
@@ -64,6 +65,7 @@ export async function runTiledAnalysis(source: TileSource, settings: AnalysisSet
   const { nx, ny } = plan.grid;
   const acc = new Float64Array(nx * ny);
   const parts: FeaturePart[] = [];
+  const measured = new Set<string>();
   const jobMs = { read: 0, union: 0, raster: 0, features: 0 };
   let growJobs = 0, largestMargin = plan.marginDbu, polygonsRead = 0;
   const coreJobs = plan.ntx * plan.nty;
@@ -80,14 +82,25 @@ export async function runTiledAnalysis(source: TileSource, settings: AnalysisSet
         for (let j = 0; j < wm; j++) acc.set(r.acc.subarray(j * wn, (j + 1) * wn), (j0 + j) * nx + i0);
         coreDone++;
       }
-      parts.push({ features: r.features, keys: r.keys });
+      // Two partial views reported by one tile can be the same opening: keep it once (its key names it).
+      const keep: number[] = [];
+      r.features.forEach((_, i) => {
+        const name = `${r.keys[2 * i]}:${r.keys[2 * i + 1]}`;
+        if (!measured.has(name)) {
+          measured.add(name);
+          keep.push(i);
+        }
+      });
+      parts.push(keep.length === r.features.length ? { features: r.features, keys: r.keys } : { features: keep.map((i) => r.features[i] as Feature), keys: keep.flatMap((i) => [r.keys[2 * i] as number, r.keys[2 * i + 1] as number]) });
       for (const k of ['read', 'union', 'raster', 'features'] as const) jobMs[k] += r.stats.ms[k];
       polygonsRead += r.stats.polygons;
-      if (r.pending.length > 0) {
+      // One re-read per pending opening, around its partial view with twice the margin.
+      for (let k = 0; k + PENDING_SIZE <= r.pending.length; k += PENDING_SIZE) {
         growJobs++;
         const marginDbu = 2 * r.marginDbu;
         largestMargin = Math.max(largestMargin, marginDbu);
-        queue.push({ kind: 'grow', tile: r.tile, marginDbu, seeds: r.pending });
+        const q = r.pending;
+        queue.push({ kind: 'grow', tile: r.tile, marginDbu, seeds: [q[k] as number, q[k + 1] as number], boxDbu: [q[k + 2] as number, q[k + 3] as number, q[k + 4] as number, q[k + 5] as number] });
       }
       onProgress?.(coreDone < coreJobs ? 'coverage' : 'features', TILE_SHARE * (coreDone / (coreJobs + 1)));
     };

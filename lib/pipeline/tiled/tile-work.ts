@@ -24,15 +24,20 @@ import type { Box, Feature } from '../../geometry/types';
 import type { TileSource } from '../../layout/tile-source';
 import type { FlatLayout, PolygonSet } from '../../layout/types';
 import { mergePolygonSets } from '../etch-layers';
-import { coreBottomUm, isWholeRegion, ownsPoint, tileCore, tileRegion, type TilePlan } from './plan';
+import { boxRegion, coreBottomUm, isWholeRegion, ownsPoint, tileCore, tileRegion, type TilePlan } from './plan';
 
 export interface TileJob {
   kind: 'core' | 'grow';
+  /** The tile whose ownership rule applies (for grow: the tile that reported the opening). */
   tile: number;
   marginDbu: number;
-  /** grow: pending openings, as (cell, rank) pairs. */
+  /** grow: pending openings, as (cell, rank) pairs, and the box (dbu) their partial views covered. */
   seeds?: number[];
+  boxDbu?: Box;
 }
+
+/** Numbers per pending opening in TileJobResult.pending: cell, rank, then its partial bbox (dbu). */
+export const PENDING_SIZE = 6;
 
 export interface TileJobResult {
   kind: 'core' | 'grow';
@@ -46,7 +51,7 @@ export interface TileJobResult {
   features: Feature[];
   /** Per feature: the (cell, rank) of its first piece in the untiled piece order. */
   keys: number[];
-  /** Openings that reached the region's edge, (cell, rank) pairs: re-read with a larger margin. */
+  /** Openings that reached the region's edge, PENDING_SIZE numbers each: re-read around them with a larger margin. */
   pending: number[];
   stats: { polygons: number; pieces: number; ms: { read: number; union: number; raster: number; features: number } };
 }
@@ -72,7 +77,7 @@ function find(parent: Uint32Array, a: number): number {
 
 export function runTileJob(source: TileSource, plan: TilePlan, job: TileJob, onSample?: () => void): TileJobResult {
   const t0 = performance.now();
-  const R = tileRegion(plan, job.tile, job.marginDbu);
+  const R = job.kind === 'grow' && job.boxDbu ? boxRegion(plan, job.boxDbu, job.marginDbu) : tileRegion(plan, job.tile, job.marginDbu);
   const whole = isWholeRegion(plan, R);
   const set = etchSet(source.readTile(R, plan.etchLayers), plan.etchLayers);
   const t1 = performance.now();
@@ -180,7 +185,7 @@ function ownedOpenings(regions: OpenRegions, plan: TilePlan, job: TileJob, R: Bo
   for (const r of roots) {
     if (complete(r)) {
       if (owns(r)) measure[r] = 1;
-    } else if (owns(r) || (job.kind === 'grow' && !belowCore(r))) pending.push(cell[r] as number, rank[r] as number);
+    } else if (owns(r) || (job.kind === 'grow' && !belowCore(r))) pending.push(cell[r] as number, rank[r] as number, bx0[r] as number, by0[r] as number, bx1[r] as number, by1[r] as number);
   }
   const sub = keepPieces(regions, parent, measure);
   if (sub.regions.pieceCount === 0) return { features: [], keys: [], pending };
