@@ -4,6 +4,7 @@
  * size, margin or number of threads. The reference is the project's own untiled pipeline (itself checked against
  * outside sources in run-analysis.test.ts and tests/geometry); what is checked here is that tiling changes nothing.
  */
+import { spawnSync } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { openRegions } from '@/lib/geometry/open-regions';
@@ -231,4 +232,36 @@ describe('tiled = untiled on the samples', () => {
       await compare(L, s, { tileUm: 1300, marginUm: 5 }, m, whole);
     }, 120_000);
   }
+});
+
+describe('check --tiles', () => {
+  const check = (...args: string[]) => {
+    const r = spawnSync('npx', ['tsx', 'lib/cli/main.ts', 'check', 'samples/mems-die.gds', '--layer', '1/0', '--model', 'samples/models/deep-trench-continuous.json', ...args], { encoding: 'utf8', timeout: 120_000 });
+    return { code: r.status, out: r.stdout, err: r.stderr };
+  };
+  const parsed = (out: string) => {
+    const j = JSON.parse(out) as { summary: { timingsMs?: unknown }; flags: unknown; features: unknown; tiled?: { tiles: number; threads: number } };
+    delete j.summary.timingsMs;
+    return j;
+  };
+
+  it('prints the same summary, flags and openings as the untiled check, on worker threads', () => {
+    const whole = check('--json', '--features');
+    const tiled = check('--json', '--features', '--tiles', '900', '--threads', '2');
+    expect(tiled.err).toBe('');
+    expect(tiled.code).toBe(whole.code);
+    const a = parsed(whole.out), b = parsed(tiled.out);
+    expect(b.summary).toEqual(a.summary);
+    expect(b.flags).toEqual(a.flags);
+    expect(b.features).toEqual(a.features);
+    expect(b.tiled).toMatchObject({ tiles: 49, threads: 2 });
+  }, 240_000);
+
+  it('names the tiling in the text report and refuses a bad thread count', () => {
+    const r = check('--tiles', '2000', '--threads', '0');
+    expect(r.out).toMatch(/^tiles +9 of 2000 µm, margin 25 µm, \d+ re-read\(s\) for wider openings, no worker thread\(s\)/m);
+    const bad = check('--tiles', '2000', '--threads', '-1');
+    expect(bad.code).toBe(2);
+    expect(bad.err).toMatch(/threads/);
+  }, 240_000);
 });
