@@ -15,6 +15,10 @@
  * Openings are named across jobs by a piece: (union lattice cell, rank of the piece in that cell). Pieces of a cell
  * come out the same in every job that reads the cell, so the name is stable; and (cell, rank) order is the untiled
  * union's piece order, which numberFeatures uses to break ties.
+ *
+ * Bit-for-bit equality with the untiled run also needs the source to return a tile's polygons in the whole-file
+ * flatten order (inMemoryTileSource does): clipper's output rings, and so float sums over them, follow input order.
+ * A source with another order still gives the same openings and coverage up to float rounding.
  */
 import { openRegions, type OpenRegions } from '../../geometry/open-regions';
 import { accumulateRegions, type AccWindow } from '../../geometry/raster';
