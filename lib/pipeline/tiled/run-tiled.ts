@@ -34,11 +34,15 @@ export interface TiledOptions extends PlanOptions {
   threads?: number;
   /** How each worker opens the source for itself. */
   spec?: TileSourceSpec;
+  /** Redis URL for tile jobs on the queue (default TRENCHANT_REDIS_URL; null = never). Needs a non-memory spec. */
+  queueUrl?: string | null;
 }
 
 export interface TiledStats {
   plan: TilePlan;
   threads: number;
+  /** Where the tile jobs ran. */
+  via: TileExecutor['via'];
   tiles: number;
   /** Re-read jobs for openings wider than the margin, and the largest margin any needed (dbu). */
   growJobs: number;
@@ -60,7 +64,12 @@ export async function runTiledAnalysis(source: TileSource, settings: AnalysisSet
   const cancelled = () => signal?.aborted === true || isCancelled?.() === true;
   if (cancelled()) throw new AnalysisAbortedError('coverage');
   const wantThreads = opts.spec ? Math.max(0, Math.min(opts.threads ?? 2, availableParallelism())) : 0;
-  const executor: TileExecutor = (wantThreads > 0 && opts.spec ? threadExecutor(opts.spec, plan, wantThreads) : null) ?? inlineExecutor(source, plan);
+  // TRENCHANT_REDIS_URL and a spec other processes can open: tiles become queue jobs (tile-queue.ts).
+  const redisUrl = opts.queueUrl === undefined ? process.env.TRENCHANT_REDIS_URL : opts.queueUrl ?? undefined;
+  const executor: TileExecutor =
+    redisUrl && opts.spec && opts.spec.kind !== 'memory'
+      ? await (await import('./tile-queue')).queueExecutor(redisUrl, opts.spec, plan, Math.max(1, opts.threads ?? 2))
+      : ((wantThreads > 0 && opts.spec ? threadExecutor(opts.spec, plan, wantThreads) : null) ?? inlineExecutor(source, plan));
   const t0 = performance.now();
   const { nx, ny } = plan.grid;
   const acc = new Float64Array(nx * ny);
@@ -147,6 +156,7 @@ export async function runTiledAnalysis(source: TileSource, settings: AnalysisSet
     tiled: {
       plan,
       threads: executor.threads,
+      via: executor.via,
       tiles: coreJobs,
       growJobs,
       largestMarginDbu: largestMargin,

@@ -13,8 +13,9 @@ import { unpackPart } from './stitch-features';
 import { runTileJob, type TileJob, type TileJobResult } from './tile-work';
 
 export interface TileExecutor {
-  /** Worker threads in use; 0 = inline. */
+  /** Worker threads in use (queue: jobs in flight); 0 = inline. */
   readonly threads: number;
+  readonly via: 'inline' | 'threads' | 'queue';
   run(job: TileJob): Promise<TileJobResult & { worker: number }>;
   /** Peak sampled memory (heap + external buffers, bytes) per worker. */
   peakBytes(): number[];
@@ -29,6 +30,7 @@ export function inlineExecutor(source: TileSource, plan: TilePlan): TileExecutor
   };
   return {
     threads: 0,
+    via: 'inline',
     run: async (job) => ({ ...runTileJob(source, plan, job, sample), worker: 0 }),
     peakBytes: () => [peak],
     close: async () => {},
@@ -103,6 +105,7 @@ export function threadExecutor(spec: TileSourceSpec, plan: TilePlan, threads: nu
   });
   return {
     threads,
+    via: 'threads',
     async run(job) {
       while (idle.length === 0) await new Promise<void>((r) => waiting.push(r));
       if (failed) throw failed;
