@@ -93,6 +93,8 @@ export function threadExecutor(spec: TileSourceSpec, plan: TilePlan, threads: nu
     });
     const fail = (err: Error) => {
       failed = err;
+      // Wake every caller waiting for a free thread: they see the failure instead of waiting for ever.
+      while (waiting.length > 0) waiting.shift()?.();
       for (const [id, p] of inflight) if (p.worker === k) {
         inflight.delete(id);
         p.reject(err);
@@ -107,7 +109,7 @@ export function threadExecutor(spec: TileSourceSpec, plan: TilePlan, threads: nu
     threads,
     via: 'threads',
     async run(job) {
-      while (idle.length === 0) await new Promise<void>((r) => waiting.push(r));
+      while (idle.length === 0 && !failed) await new Promise<void>((r) => waiting.push(r));
       if (failed) throw failed;
       const k = idle.shift() as number;
       const id = nextId++;
