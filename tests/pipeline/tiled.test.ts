@@ -150,6 +150,12 @@ describe('tiled analysis pieces', () => {
     await expect(runTiledAnalysis(inMemoryTileSource(L), settingsOf({ etchLayers: [{ layer: 9, datatype: 0 }] }), model)).rejects.toThrow(/layer 9\/0 is not in the layout; layers present: 0\/0, 5\/0, 6\/0/);
   });
 
+  it('a source a worker thread cannot open fails the run with the reason', async () => {
+    const L = generated(6, 200, 300);
+    const spec = { kind: 'module' as const, url: new URL('./tiled-fixture-source.ts', import.meta.url).href, exportName: 'noSuchOpener', args: {} };
+    await expect(runTiledAnalysis(inMemoryTileSource(L), settingsOf(), model, { tileUm: 100, threads: 1, spec })).rejects.toThrow(/has no function noSuchOpener/);
+  }, 60_000);
+
   it('cancels between tiles', async () => {
     let calls = 0;
     await expect(runTiledAnalysis(inMemoryTileSource(generated(5)), settingsOf(), model, { tileUm: 40, isCancelled: () => ++calls > 3 })).rejects.toThrow(/cancelled/);
