@@ -7,6 +7,7 @@
  * polygons, threads 1,2; `verify` also runs the untiled pipeline on the whole layout and compares every value).
  * Also `npm run bench -- tiled` (environment TILED_SITES, TILED_THREADS, TILED_VERIFY=verify).
  */
+import { loadavg } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { parseProcessModel } from '../lib/etch';
 import { analysisSettingsSchema } from '../lib/pipeline/settings';
@@ -35,7 +36,7 @@ export default async function tiledBench(argv: string[] = []): Promise<void> {
     const r = await runTiledAnalysis(source, settings, model.model, { threads, spec });
     const total = performance.now() - t;
     const x = r.tiled, p = x.plan;
-    console.log(`\n-- ${threads} worker thread(s) (used ${x.threads}) --`);
+    console.log(`\n-- ${threads} worker thread(s) (used ${x.threads}, ${x.via}); load average ${loadavg().map((v) => v.toFixed(1)).join(' ')} --`);
     console.log(`plan: ${x.tiles} tiles of ${p.tileUm} µm (${p.tilePx} px of ${p.grid.pixelUm} µm, grid ${p.grid.nx}×${p.grid.ny}), margin ${p.marginDbu * p.dbuUm} µm, union lattice ${p.latticeDbu * p.dbuUm} µm`);
     console.log(`tile phase ${s(x.tilePhaseMs)} wall; per-job sums: read ${s(x.jobMs.read)}, union ${s(x.jobMs.union)}, coverage ${s(x.jobMs.raster)}, openings ${s(x.jobMs.features)}`);
     console.log(`re-reads for wide openings: ${x.growJobs} (largest margin ${(x.largestMarginDbu * p.dbuUm).toFixed(0)} µm); polygons read / polygons = ${x.readAmplification}`);
