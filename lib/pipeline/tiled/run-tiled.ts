@@ -91,16 +91,21 @@ export async function runTiledAnalysis(source: TileSource, settings: AnalysisSet
         for (let j = 0; j < wm; j++) acc.set(r.acc.subarray(j * wn, (j + 1) * wn), (j0 + j) * nx + i0);
         coreDone++;
       }
-      // Two partial views reported by one tile can be the same opening: keep it once (its key names it).
-      const keep: number[] = [];
-      r.features.forEach((_, i) => {
-        const name = `${r.keys[2 * i]}:${r.keys[2 * i + 1]}`;
-        if (!measured.has(name)) {
-          measured.add(name);
-          keep.push(i);
-        }
-      });
-      parts.push(keep.length === r.features.length ? { features: r.features, keys: r.keys } : { features: keep.map((i) => r.features[i] as Feature), keys: keep.flatMap((i) => [r.keys[2 * i] as number, r.keys[2 * i + 1] as number]) });
+      // Two partial views reported by one tile can be the same opening: keep it once (its key names it). Only
+      // re-reads can repeat one: a core job measures each complete opening it owns once, and a pending partial view
+      // never joins an opening that was complete in the same read.
+      if (r.kind === 'core') parts.push({ features: r.features, keys: r.keys });
+      else {
+        const keep: number[] = [];
+        r.features.forEach((_, i) => {
+          const name = `${r.keys[2 * i]}:${r.keys[2 * i + 1]}`;
+          if (!measured.has(name)) {
+            measured.add(name);
+            keep.push(i);
+          }
+        });
+        parts.push({ features: keep.map((i) => r.features[i] as Feature), keys: keep.flatMap((i) => [r.keys[2 * i] as number, r.keys[2 * i + 1] as number]) });
+      }
       for (const k of ['read', 'union', 'raster', 'features'] as const) jobMs[k] += r.stats.ms[k];
       polygonsRead += r.stats.polygons;
       // One re-read per pending opening, around its partial view with twice the margin.
