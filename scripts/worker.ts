@@ -6,6 +6,7 @@
 // then go to another worker after the lock lapses).
 import { startQueueWorker } from '../lib/jobs/queue-worker';
 import { redisUrl } from '../lib/jobs/queue';
+import { startTileQueueWorker } from '../lib/pipeline/tiled/tile-queue';
 
 const url = redisUrl();
 if (!url) {
@@ -13,12 +14,14 @@ if (!url) {
   process.exit(2);
 }
 const worker = await startQueueWorker(url);
+// Tile jobs of tiled analyses (lib/pipeline/tiled/tile-queue.ts), on TRENCHANT_TILE_THREADS threads (default 1).
+const tileWorker = await startTileQueueWorker(url, Math.max(1, Number(process.env.TRENCHANT_TILE_THREADS) || 1));
 let stopping = false;
 for (const signal of ['SIGINT', 'SIGTERM'] as const) {
   process.on(signal, () => {
     if (stopping) process.exit(1);
     stopping = true;
     console.log(`[trenchant] worker ${process.pid}: ${signal}, finishing the running analyses (send it again to stop now)`);
-    void worker.close().then(() => process.exit(0));
+    void Promise.all([worker.close(), tileWorker.close()]).then(() => process.exit(0));
   });
 }

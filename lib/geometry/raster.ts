@@ -10,18 +10,18 @@ import type { Box, Grid, Polarity } from './types';
 import { openRegions, type OpenRegions } from './open-regions';
 
 /** Accumulate one edge (pixel units, y up) into `acc` ((nx + 2) × ny differences). */
-function accumulateEdge(acc: Float64Array, nx: number, ny: number, xa: number, ya: number, xb: number, yb: number): void {
+function accumulateEdge(acc: Float64Array, win: AccWindow, nx: number, ny: number, xa: number, ya: number, xb: number, yb: number): void {
   // Split at the grid's left and right sides and clamp: winding left of x = 0 still reaches every pixel in the row.
   if ((xa < 0 && xb > 0) || (xa > 0 && xb < 0)) {
     const ym = ya + ((0 - xa) * (yb - ya)) / (xb - xa);
-    accumulateEdge(acc, nx, ny, xa, ya, 0, ym);
-    accumulateEdge(acc, nx, ny, 0, ym, xb, yb);
+    accumulateEdge(acc, win, nx, ny, xa, ya, 0, ym);
+    accumulateEdge(acc, win, nx, ny, 0, ym, xb, yb);
     return;
   }
   if ((xa < nx && xb > nx) || (xa > nx && xb < nx)) {
     const ym = ya + ((nx - xa) * (yb - ya)) / (xb - xa);
-    accumulateEdge(acc, nx, ny, xa, ya, nx, ym);
-    accumulateEdge(acc, nx, ny, nx, ym, xb, yb);
+    accumulateEdge(acc, win, nx, ny, xa, ya, nx, ym);
+    accumulateEdge(acc, win, nx, ny, nx, ym, xb, yb);
     return;
   }
   if (ya === yb) return;
@@ -32,9 +32,12 @@ function accumulateEdge(acc: Float64Array, nx: number, ny: number, xa: number, y
   if (ya > yb) { dir = 1; x0 = xb; y0 = yb; x1 = xa; y1 = ya; }
   if (y1 <= 0 || y0 >= ny) return;
   const dxdy = (x1 - x0) / (y1 - y0);
-  const w = nx + 2;
-  const rowStart = Math.max(0, Math.floor(y0));
-  const rowEnd = Math.min(ny, Math.ceil(y1));
+  // The window only decides which differences are stored; every value is computed exactly as for the whole grid,
+  // so windows stitched together equal the whole-grid accumulation bit for bit (tiled analysis relies on it).
+  const { i0: wi0, j0: wj0, nx: wnx, ny: wny } = win;
+  const wi1 = wi0 + wnx;
+  const rowStart = Math.max(0, wj0, Math.floor(y0));
+  const rowEnd = Math.min(ny, wj0 + wny, Math.ceil(y1));
   for (let row = rowStart; row < rowEnd; row++) {
     const ys = Math.max(row, y0), ye = Math.min(row + 1, y1);
     const dy = ye - ys;
@@ -43,15 +46,16 @@ function accumulateEdge(acc: Float64Array, nx: number, ny: number, xa: number, y
     xs = Math.min(Math.max(xs, 0), nx);
     xe = Math.min(Math.max(xe, 0), nx);
     const d = dy * dir;
-    const line = row * w;
+    const line = (row - wj0) * wnx - wi0;
     const lo = Math.min(xs, xe), hi = Math.max(xs, xe);
     const i0 = Math.floor(lo);
     const i1 = Math.ceil(hi);
+    if (i1 < wi0 || i0 >= wi1) continue;
     if (i1 <= i0 + 1) {
       // Within one pixel column: the part right of the edge's mean x is covered.
       const xm = 0.5 * (xs + xe) - i0;
-      acc[line + i0]! += d * (1 - xm);
-      acc[line + i0 + 1]! += d * xm;
+      if (i0 >= wi0) acc[line + i0]! += d * (1 - xm);
+      if (i0 + 1 < wi1) acc[line + i0 + 1]! += d * xm;
     } else {
       // Spread across columns: exact areas of the triangle/trapezoid pieces (font-rs scheme).
       const s = 1 / (hi - lo);
@@ -59,26 +63,40 @@ function accumulateEdge(acc: Float64Array, nx: number, ny: number, xa: number, y
       const a0 = 0.5 * s * (1 - f0) * (1 - f0);
       const f1 = hi - i1 + 1;
       const am = 0.5 * s * f1 * f1;
-      acc[line + i0]! += d * a0;
-      if (i1 === i0 + 2) acc[line + i0 + 1]! += d * (1 - a0 - am);
-      else {
+      if (i0 >= wi0) acc[line + i0]! += d * a0;
+      if (i1 === i0 + 2) {
+        if (i0 + 1 >= wi0 && i0 + 1 < wi1) acc[line + i0 + 1]! += d * (1 - a0 - am);
+      } else {
         const a1 = s * (1.5 - f0);
-        acc[line + i0 + 1]! += d * (a1 - a0);
-        for (let i = i0 + 2; i < i1 - 1; i++) acc[line + i]! += d * s;
+        if (i0 + 1 >= wi0 && i0 + 1 < wi1) acc[line + i0 + 1]! += d * (a1 - a0);
+        const mEnd = Math.min(i1 - 1, wi1);
+        for (let i = Math.max(i0 + 2, wi0); i < mEnd; i++) acc[line + i]! += d * s;
         const a2 = a1 + (i1 - i0 - 3) * s;
-        acc[line + i1 - 1]! += d * (1 - a2 - am);
+        if (i1 - 1 >= wi0 && i1 - 1 < wi1) acc[line + i1 - 1]! += d * (1 - a2 - am);
       }
-      acc[line + i1]! += d * am;
+      if (i1 < wi1) acc[line + i1]! += d * am;
     }
   }
 }
 
 /**
- * Exact covered fraction per pixel of the open pieces (float64). Pieces outside the grid are ignored.
+ * A block of the accumulation buffer: columns i0 .. i0+nx-1 and rows j0 .. j0+ny-1 of the whole grid's
+ * (grid.nx + 2) × grid.ny differences, stored row-major with stride nx.
  */
-export function rasterizeOpenRegions(regions: OpenRegions, grid: Grid): Float64Array {
+export interface AccWindow {
+  i0: number;
+  j0: number;
+  nx: number;
+  ny: number;
+}
+
+/**
+ * Accumulate the pieces' edge differences into the block `win` of the grid's difference buffer (see AccWindow).
+ * Pieces first, then the coverage-only rings, each in order: the additions into any one cell happen in the same
+ * order as in a whole-grid pass over the same regions, so the sums are identical.
+ */
+export function accumulateRegions(regions: OpenRegions, grid: Grid, win: AccWindow, acc: Float64Array = new Float64Array(win.nx * win.ny)): Float64Array {
   const { nx, ny } = grid;
-  const acc = new Float64Array((nx + 2) * ny);
   const scale = regions.dbuUm / grid.pixelUm;
   const ox = grid.x0Um / grid.pixelUm, oy = grid.y0Um / grid.pixelUm;
   const c = regions.coords;
@@ -87,7 +105,7 @@ export function rasterizeOpenRegions(regions: OpenRegions, grid: Grid): Float64A
       const s = offsets[r] as number, e = offsets[r + 1] as number;
       for (let k = s; k < e; k++) {
         const n = k + 1 < e ? k + 1 : s;
-        accumulateEdge(acc, nx, ny, (xy[2 * k] as number) * scale - ox, (xy[2 * k + 1] as number) * scale - oy, (xy[2 * n] as number) * scale - ox, (xy[2 * n + 1] as number) * scale - oy);
+        accumulateEdge(acc, win, nx, ny, (xy[2 * k] as number) * scale - ox, (xy[2 * k + 1] as number) * scale - oy, (xy[2 * n] as number) * scale - ox, (xy[2 * n + 1] as number) * scale - oy);
       }
     }
   };
@@ -95,10 +113,16 @@ export function rasterizeOpenRegions(regions: OpenRegions, grid: Grid): Float64A
     if (regions.pieceCoverage[p]) ringsOf(c, regions.ringOffsets, regions.pieceRings[p] as number, regions.pieceRings[p + 1] as number);
   }
   ringsOf(regions.coverageCoords, regions.coverageRingOffsets, 0, regions.coverageRingOffsets.length - 1);
+  return acc;
+}
+
+/** Coverage from the whole grid's difference buffer ((nx + 2) × ny, or nx × ny: the last two columns are never read). */
+export function coverageFromDifferences(acc: Float64Array, grid: Grid, stride = grid.nx + 2): Float64Array {
+  const { nx, ny } = grid;
   const out = new Float64Array(nx * ny);
   for (let j = 0; j < ny; j++) {
     let run = 0;
-    const line = j * (nx + 2);
+    const line = j * stride;
     for (let i = 0; i < nx; i++) {
       run += acc[line + i] as number;
       // Clamp float noise only; a correct union never leaves [0, 1] by more than rounding.
@@ -106,6 +130,14 @@ export function rasterizeOpenRegions(regions: OpenRegions, grid: Grid): Float64A
     }
   }
   return out;
+}
+
+/**
+ * Exact covered fraction per pixel of the open pieces (float64). Pieces outside the grid are ignored.
+ */
+export function rasterizeOpenRegions(regions: OpenRegions, grid: Grid): Float64Array {
+  const win: AccWindow = { i0: 0, j0: 0, nx: grid.nx + 2, ny: grid.ny };
+  return coverageFromDifferences(accumulateRegions(regions, grid, win), grid);
 }
 
 export interface CoverageOptions {

@@ -141,9 +141,29 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
       for (let k = s; k < e; k++) g = gcd(gcd(g, (coords[2 * k] as number) - bbox[0]), (coords[2 * k + 1] as number) - bbox[1]);
     }
   }
-  const res = latticeWidths(coords, rings, bbox, area, perimeter, manhattan, g, opts);
+  // Measured in the bbox's own frame: the lattice arithmetic is then identical for every translated copy, so a
+  // cached result equals a fresh measurement bit for bit, and threads or tiles (each with its own cache) agree.
+  const local = toBboxFrame(coords, rings, bbox);
+  const res = latticeWidths(local.coords, local.rings, [0, 0, bbox[2] - bbox[0], bbox[3] - bbox[1]], area, perimeter, manhattan, g, opts);
   if (cache && cache.size < CACHE_LIMIT) cache.set(key, res);
   return res;
+}
+
+/** The rings moved so the bbox's lower-left corner is the origin (exact: integer dbu differences). */
+function toBboxFrame(coords: ArrayLike<number>, rings: [number, number][], bbox: Box): { coords: Float64Array; rings: [number, number][] } {
+  let total = 0;
+  for (const [s, e] of rings) total += e - s;
+  const out = new Float64Array(2 * total);
+  const moved: [number, number][] = [];
+  let o = 0;
+  for (const [s, e] of rings) {
+    moved.push([o, o + e - s]);
+    for (let k = s; k < e; k++, o++) {
+      out[2 * o] = (coords[2 * k] as number) - bbox[0];
+      out[2 * o + 1] = (coords[2 * k + 1] as number) - bbox[1];
+    }
+  }
+  return { coords: out, rings: moved };
 }
 
 /** The lattice method of the module doc (shapes that are neither rectangles nor convex). */

@@ -12,7 +12,7 @@
  * Per-opening data stays in columns (FeatureTable, FeatureResultTable): a million objects would cost seconds of
  * garbage collection; `features` builds objects only when read.
  */
-import { effectiveDensity, localWidthFromCoverage, openRegions, rasterizeOpenRegions, windowDensity, type Grid, type WindowDensity } from '../geometry';
+import { effectiveDensity, featureTableOf, localWidthFromCoverage, openRegions, rasterizeOpenRegions, windowDensity, type Feature, type Grid, type WindowDensity } from '../geometry';
 import { featureTableInThreads } from '../geometry/parallel-features';
 import type { ProcessModel } from '../etch';
 import type { FlatLayout } from '../layout/types';
@@ -104,14 +104,25 @@ class StageClock {
   }
 }
 
-export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, model: ProcessModel, hooks: AnalysisHooks = {}): AnalysisResult {
+/**
+ * Coverage and features computed elsewhere (the tiled analysis, lib/pipeline/tiled): they must equal what the
+ * coverage and features stages would give. `layout` then only supplies the header (units, names, bbox).
+ */
+export interface PrecomputedStages {
+  coverage: Float32Array;
+  features: Feature[];
+  /** Polygons of the etch layers (what selectEtchLayers would count). */
+  polygonCount: number;
+}
+
+export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, model: ProcessModel, hooks: AnalysisHooks = {}, precomputed?: PrecomputedStages): AnalysisResult {
   const clock = new StageClock(hooks);
   const limits = resolveLimits(settings, model);
   const kernel = resolveKernel(settings, model);
   // Predictions use the analysis's target and tolerance, so margins and reachesTarget agree with the flags. The
   // model's maxAspectRatio stays as is: it is where the process physically stops, not a flag limit.
   const predictionModel: ProcessModel = { ...model, etch: { ...model.etch, targetDepthUm: limits.targetDepthUm, toleranceUm: limits.toleranceUm } };
-  const set = selectEtchLayers(layout, settings.etchLayers);
+  const set = precomputed ? null : selectEtchLayers(layout, settings.etchLayers);
   const frame = dieFrame(layout, settings);
   const { grid } = frame;
   const polarity = settings.polarity;
@@ -119,9 +130,9 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   clock.begin('coverage');
   const regionDbu = layout.bboxDbu ?? undefined;
   // One exact union of the etch layers serves coverage and features (it is the expensive part on big layouts).
-  const regions = openRegions(set, layout.dbuUm, { polarity, regionDbu });
+  const regions = set ? openRegions(set, layout.dbuUm, { polarity, regionDbu }) : null;
   clock.within(0.7); // cancel check point between the union and the raster (each can take seconds)
-  const coverage = Float32Array.from(rasterizeOpenRegions(regions, grid));
+  const coverage = regions ? Float32Array.from(rasterizeOpenRegions(regions, grid)) : (precomputed as PrecomputedStages).coverage;
   const globalDensity = dieDensity(coverage, grid, frame.dieBboxUm);
 
   clock.begin('window-density');
@@ -144,9 +155,12 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
 
   clock.begin('features');
   // Two threads on big layouts, same result. The local-width map (needs only the coverage) is computed on this
-  // thread while the worker starts and takes chunks; its time then counts under 'features'.
+  // thread while the worker starts and takes chunks; its time then counts under 'features'. A tiled run brings its
+  // stitched openings instead (precomputed).
   let localWidth: Float32Array | null = null;
-  const featureTable = featureTableInThreads(regions, { polarity, regionDbu }, {}, () => (localWidth = localWidthFromCoverage(coverage, grid)));
+  const featureTable = regions
+    ? featureTableInThreads(regions, { polarity, regionDbu }, {}, () => (localWidth = localWidthFromCoverage(coverage, grid)))
+    : featureTableOf((precomputed as PrecomputedStages).features);
 
   clock.begin('local-width');
   localWidth ??= localWidthFromCoverage(coverage, grid);
@@ -185,7 +199,7 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   const summary = buildSummary({
     layout,
     etchLayerNames: settings.etchLayers.map(layerName),
-    polygonCount: set.count,
+    polygonCount: set ? set.count : (precomputed as PrecomputedStages).polygonCount,
     frame,
     settings,
     limits,
