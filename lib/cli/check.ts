@@ -5,7 +5,7 @@
  * stderr; with --json also one JSON object { ok: false, error } on stdout).
  */
 import { mkdir, readFile } from 'node:fs/promises';
-import { join } from 'node:path';
+import { join, resolve } from 'node:path';
 import { formatModelIssues, parseProcessModel, type ProcessModel } from '../etch';
 import { readLayoutFile } from '../layout/read';
 import type { FlatLayout } from '../layout/types';
@@ -18,9 +18,9 @@ import { parseAnalysisSettings, type FieldIssue } from '../pipeline/settings';
 import type { AnalysisSummary } from '../pipeline/summary';
 import { mapFileName } from '../pipeline/map-files';
 import { layerOption, numberOption, parseCommandArgs, printLayoutWarnings, runCommand, UsageError } from './args';
-import { inMemoryTileSource } from '../layout/tile-source';
+import { openLayoutTileSource } from '../layout/open-tile-source';
+import type { TileSource } from '../layout/tile-source';
 import { runTiledAnalysis } from '../pipeline/tiled/run-tiled';
-import { shareLayout } from '../pipeline/tiled/sources';
 
 const HELP = `usage: npm run --silent cli -- check FILE --layer L/D --model MODEL.json [options]
 
@@ -233,15 +233,22 @@ async function check(values: Values, positionals: string[]): Promise<number> {
   if (!parsed.ok) throw new CheckInputError('bad-model', `${modelPath}: invalid process model: ${formatModelIssues(parsed.issues)}`, parsed.issues);
   const model: ProcessModel = parsed.model;
 
-  let layout: FlatLayout;
-  try {
-    layout = await readLayoutFile(file, str('top') !== undefined ? { topCell: str('top') as string } : {});
-  } catch (err) {
+  const topCell = str('top');
+  const layoutError = (err: unknown) => {
     const code = (err as { code?: unknown }).code;
     const message = err instanceof Error ? err.message : String(err);
-    throw new CheckInputError(typeof code === 'string' ? `layout-${code}` : 'layout', message.includes(file) ? message : `${file}: ${message}`);
+    return new CheckInputError(typeof code === 'string' ? `layout-${code}` : 'layout', message.includes(file) ? message : `${file}: ${message}`);
+  };
+  // Tiled: the file is indexed on disk and read one tile at a time (GDSII larger than memory); else read whole.
+  let source: TileSource | null = null;
+  let layout: FlatLayout | null = null;
+  try {
+    if (str('tiles') !== undefined) source = await openLayoutTileSource(file, topCell !== undefined ? { topCell } : {});
+    else layout = await readLayoutFile(file, topCell !== undefined ? { topCell } : {});
+  } catch (err) {
+    throw layoutError(err);
   }
-  printLayoutWarnings(file, layout.warnings);
+  printLayoutWarnings(file, source ? source.header.warnings : layout?.warnings);
 
   let result: AnalysisResult;
   let tiledNote: string | null = null;
@@ -252,15 +259,20 @@ async function check(values: Values, positionals: string[]): Promise<number> {
       const marginUm = str('tile-margin-um') !== undefined ? numberOption('tile-margin-um', str('tile-margin-um')) : undefined;
       const threads = str('threads') !== undefined ? numberOption('threads', str('threads')) : 2;
       if (!Number.isInteger(threads) || threads < 0 || threads > 64) throw new UsageError('--threads must be a whole number from 0 to 64');
-      // The whole file is read for now; an on-disk TileSource slots in here (the workers open it from its spec).
-      const shared = shareLayout(layout);
-      const tiled = await runTiledAnalysis(inMemoryTileSource(shared), settings.settings, model, { tileUm, ...(marginUm !== undefined ? { marginUm } : {}), threads, spec: { kind: 'memory', layout: shared } });
+      // Each worker thread opens the file itself from the spec (its own index and file handle).
+      const spec = { kind: 'file' as const, path: resolve(file), ...(topCell !== undefined ? { topCell } : {}) };
+      let tiled;
+      try {
+        tiled = await runTiledAnalysis(source as TileSource, settings.settings, model, { tileUm, ...(marginUm !== undefined ? { marginUm } : {}), threads, spec });
+      } finally {
+        source?.close();
+      }
       result = tiled;
       const t = tiled.tiled;
       tiledNote = `tiles            ${t.tiles} of ${num(t.plan.tileUm)} µm, margin ${num(t.plan.marginDbu * t.plan.dbuUm)} µm, ${t.growJobs} re-read(s) for wider openings, ${t.threads || 'no'} worker thread(s), ${num(t.tilePhaseMs / 1000)} s`;
       const { marginReason, ...plan } = t.plan;
       tiledJson = { ...t, plan: { ...plan, marginReason } };
-    } else result = runAnalysis(layout, settings.settings, model);
+    } else result = runAnalysis(layout as FlatLayout, settings.settings, model);
   } catch (err) {
     if (err instanceof AnalysisInputError) throw new CheckInputError(err.code, `${file}: ${err.message}`);
     throw err;

@@ -5,16 +5,20 @@
  * a module can open (a generated layout in the benchmark; the on-disk GDSII source can be registered the same way
  * or get its own kind).
  */
+import { openLayoutTileSource } from '../../layout/open-tile-source';
 import { inMemoryTileSource, type TileSource } from '../../layout/tile-source';
 import type { FlatLayout } from '../../layout/types';
 
 export type TileSourceSpec =
   | { kind: 'memory'; layout: FlatLayout }
+  /** A layout file on a disk every worker can read: GDSII is indexed in place (never read whole), CSV read whole. */
+  | { kind: 'file'; path: string; topCell?: string }
   /** `(await import(url))[exportName](args)` must return a TileSource (or a promise of one). */
   | { kind: 'module'; url: string; exportName: string; args: unknown };
 
 export async function openTileSource(spec: TileSourceSpec): Promise<TileSource> {
   if (spec.kind === 'memory') return inMemoryTileSource(spec.layout);
+  if (spec.kind === 'file') return openLayoutTileSource(spec.path, spec.topCell !== undefined ? { topCell: spec.topCell } : {});
   const mod = (await import(spec.url)) as Record<string, unknown>;
   const open = mod[spec.exportName];
   if (typeof open !== 'function') throw new Error(`tile source module ${spec.url} has no function ${spec.exportName}`);
