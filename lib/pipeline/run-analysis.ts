@@ -12,7 +12,7 @@
  * Per-opening data stays in columns (FeatureTable, FeatureResultTable): a million objects would cost seconds of
  * garbage collection; `features` builds objects only when read.
  */
-import { effectiveDensity, featureTableOf, localWidthFromCoverage, openRegions, rasterizeOpenRegions, windowDensity, type Feature, type Grid, type WindowDensity } from '../geometry';
+import { effectiveDensity, localWidthFromCoverage, openRegions, rasterizeOpenRegions, windowDensity, type FeatureTable, type Grid, type WindowDensity } from '../geometry';
 import { featureTableInThreads } from '../geometry/parallel-features';
 import type { ProcessModel } from '../etch';
 import type { FlatLayout } from '../layout/types';
@@ -110,7 +110,8 @@ class StageClock {
  */
 export interface PrecomputedStages {
   coverage: Float32Array;
-  features: Feature[];
+  /** Openings with ids in the untiled order (stitched by the tiled analysis). */
+  features: FeatureTable;
   /** Polygons of the etch layers (what selectEtchLayers would count). */
   polygonCount: number;
 }
@@ -160,7 +161,7 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   let localWidth: Float32Array | null = null;
   const featureTable = regions
     ? featureTableInThreads(regions, { polarity, regionDbu }, {}, () => (localWidth = localWidthFromCoverage(coverage, grid)))
-    : featureTableOf((precomputed as PrecomputedStages).features);
+    : (precomputed as PrecomputedStages).features;
 
   clock.begin('local-width');
   localWidth ??= localWidthFromCoverage(coverage, grid);

@@ -25,7 +25,7 @@ import type { TileSourceSpec } from './sources';
 import { stitchFeatures, type FeaturePart } from './stitch-features';
 import { inlineExecutor, threadExecutor, type TileExecutor } from './tile-pool';
 import { PENDING_SIZE, type TileJob, type TileJobResult } from './tile-work';
-import type { Feature } from '../../geometry/types';
+import { permuteFeatureTable } from '../../geometry/feature-table';
 
 const TILE_SHARE = 0.6;
 
@@ -97,14 +97,14 @@ export async function runTiledAnalysis(source: TileSource, settings: AnalysisSet
       if (r.kind === 'core') parts.push({ features: r.features, keys: r.keys });
       else {
         const keep: number[] = [];
-        r.features.forEach((_, i) => {
+        for (let i = 0; i < r.features.count; i++) {
           const name = `${r.keys[2 * i]}:${r.keys[2 * i + 1]}`;
           if (!measured.has(name)) {
             measured.add(name);
             keep.push(i);
           }
-        });
-        parts.push({ features: keep.map((i) => r.features[i] as Feature), keys: keep.flatMap((i) => [r.keys[2 * i] as number, r.keys[2 * i + 1] as number]) });
+        }
+        parts.push({ features: permuteFeatureTable(r.features, Uint32Array.from(keep)), keys: keep.flatMap((i) => [r.keys[2 * i] as number, r.keys[2 * i + 1] as number]) });
       }
       for (const k of ['read', 'union', 'raster', 'features'] as const) jobMs[k] += r.stats.ms[k];
       polygonsRead += r.stats.polygons;

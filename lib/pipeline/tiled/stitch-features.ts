@@ -5,42 +5,32 @@
  * Untiled order (numberFeatures): bbox lower edge, left edge, centroid x, then extraction order — which is the
  * untiled union's piece order of each opening's first piece, i.e. its (lattice cell, rank) key from the job.
  */
-import type { Feature } from '../../geometry/types';
-import { emptyFeatureTable, featureColumns, featureList, featureTableOf } from '../../geometry/feature-table';
+import { emptyFeatureTable, featureColumns, concatFeatureTables, permuteFeatureTable, type FeatureTable } from '../../geometry/feature-table';
 
 export interface FeaturePart {
-  features: Feature[];
+  features: FeatureTable;
   /** (cell, rank) per feature. */
   keys: ArrayLike<number>;
 }
 
-/** One list, ids 1..n in the untiled order. Mutates the features' ids. */
-export function stitchFeatures(parts: readonly FeaturePart[]): Feature[] {
-  let m = 0;
-  for (const p of parts) m += p.features.length;
-  const all: Feature[] = new Array<Feature>(m);
+/** One table, ids 1..n in the untiled order. */
+export function stitchFeatures(parts: readonly FeaturePart[]): FeatureTable {
+  const all = concatFeatureTables(parts.map((p) => p.features));
+  const m = all.count;
   const cell = new Float64Array(m), rank = new Float64Array(m);
   let k = 0;
   for (const p of parts) {
-    p.features.forEach((f, i) => {
-      all[k] = f;
+    for (let i = 0; i < p.features.count; i++, k++) {
       cell[k] = p.keys[2 * i] as number;
       rank[k] = p.keys[2 * i + 1] as number;
-      k++;
-    });
+    }
   }
   const idx = new Uint32Array(m);
   for (let i = 0; i < m; i++) idx[i] = i;
-  idx.sort((a, b) => {
-    const fa = all[a] as Feature, fb = all[b] as Feature;
-    return fa.bboxUm[1] - fb.bboxUm[1] || fa.bboxUm[0] - fb.bboxUm[0] || fa.centroidUm[0] - fb.centroidUm[0] || (cell[a] as number) - (cell[b] as number) || (rank[a] as number) - (rank[b] as number);
-  });
-  const out: Feature[] = new Array<Feature>(m);
-  for (let i = 0; i < m; i++) {
-    const f = all[idx[i] as number] as Feature;
-    f.id = i + 1;
-    out[i] = f;
-  }
+  const y0 = all.y0Um, x0 = all.x0Um, cx = all.centroidXUm;
+  idx.sort((a, b) => (y0[a] as number) - (y0[b] as number) || (x0[a] as number) - (x0[b] as number) || (cx[a] as number) - (cx[b] as number) || (cell[a] as number) - (cell[b] as number) || (rank[a] as number) - (rank[b] as number));
+  const out = permuteFeatureTable(all, idx);
+  for (let i = 0; i < m; i++) out.id[i] = i + 1;
   return out;
 }
 
@@ -52,10 +42,10 @@ const PACKED_COLUMNS = featureColumns(emptyFeatureTable(0)).length;
  * after the other (every column holds integers or float64, so the copy is exact), then the keys.
  */
 export function packPart(part: FeaturePart): Float64Array {
-  const n = part.features.length;
+  const n = part.features.count;
   const out = new Float64Array(n * PACKED_COLUMNS + part.keys.length);
   let o = 0;
-  for (const col of featureColumns(featureTableOf(part.features))) {
+  for (const col of featureColumns(part.features)) {
     out.set(col.subarray(0, n), o);
     o += n;
   }
@@ -72,5 +62,5 @@ export function unpackPart(a: Float64Array): FeaturePart {
     col.set(a.subarray(o, o + n));
     o += n;
   }
-  return { features: featureList(t), keys: a.subarray(o) };
+  return { features: t, keys: a.subarray(o) };
 }

@@ -32,7 +32,7 @@ if (boot && parentPort && boot.plan) {
         const packed = packPart(r);
         const transfer: ArrayBuffer[] = [packed.buffer as ArrayBuffer];
         if (r.acc) transfer.push(r.acc.buffer as ArrayBuffer);
-        port.postMessage({ id: msg.id, result: { ...r, features: [], keys: [], packed }, peakBytes: peak }, transfer);
+        port.postMessage({ id: msg.id, result: { ...r, features: null, keys: [], packed }, peakBytes: peak }, transfer);
       })
       .catch((err: unknown) => {
         port.postMessage({ id: msg.id, error: { name: err instanceof Error ? err.name : 'Error', message: err instanceof Error ? err.message : String(err) }, peakBytes: peak });

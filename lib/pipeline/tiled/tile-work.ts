@@ -23,6 +23,7 @@
 import { openRegions, type OpenRegions } from '../../geometry/open-regions';
 import { accumulateRegions, type AccWindow } from '../../geometry/raster';
 import { featuresFromRegions } from '../../geometry/features';
+import { featureTableOf, type FeatureTable } from '../../geometry/feature-table';
 import { ringArea, ringMoments } from '../../geometry/ring';
 import type { Box, Feature } from '../../geometry/types';
 import type { TileSource } from '../../layout/tile-source';
@@ -52,7 +53,7 @@ export interface TileJobResult {
   win?: AccWindow;
   acc?: Float64Array;
   /** Owned, complete openings, in this job's id order. */
-  features: Feature[];
+  features: FeatureTable;
   /** Per feature: the (cell, rank) of its first piece in the untiled piece order. */
   keys: number[];
   /** Openings that reached the region's edge, PENDING_SIZE numbers each: re-read around them with a larger margin. */
@@ -106,7 +107,7 @@ export function runTileJob(source: TileSource, plan: TilePlan, job: TileJob, onS
     marginDbu: job.marginDbu,
     regionDbu: R,
     ...(win && acc ? { win, acc } : {}),
-    features,
+    features: featureTableOf(features),
     keys,
     pending,
     stats: { polygons: set.count, pieces: regions.pieceCount, ms: { read: ms(t0, t1), union: ms(t1, t2), raster: ms(t2, t3), features: ms(t3, t4) } },
