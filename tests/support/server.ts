@@ -59,7 +59,22 @@ export function ensureBuilt(): void {
   buildIfStale(PROJECT_ROOT, { stdio: 'pipe', rememberFailure: true, log: (line) => console.log(line) });
 }
 
+/** Thrown when the port picked by freePort was taken by another process before the server could listen on it. */
+class PortTakenError extends Error {}
+
 export async function startTestServer(options: StartOptions = {}): Promise<TestServer> {
+  // freePort can only say a port was free a moment ago: with many test files starting servers, fake S3 and Redis at
+  // once, another process may bind it first. Then start again on fresh ports.
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await startOnce(options);
+    } catch (error) {
+      if (!(error instanceof PortTakenError) || attempt >= 3) throw error;
+    }
+  }
+}
+
+async function startOnce(options: StartOptions): Promise<TestServer> {
   ensureBuilt();
   const dataDir = mkdtempSync(path.join(tmpdir(), 'trenchant-it-'));
   const dbFile = path.join(dataDir, 'trenchant.db');
@@ -101,6 +116,7 @@ export async function startTestServer(options: StartOptions = {}): Promise<TestS
 async function waitUntilReady(baseUrl: string, child: ChildProcess, timeoutMs: number, output: () => string): Promise<void> {
   const deadline = Date.now() + timeoutMs;
   while (Date.now() < deadline) {
+    if (/EADDRINUSE/.test(output())) throw new PortTakenError(`${baseUrl} was taken by another process:\n${output().slice(-1000)}`);
     if (child.exitCode !== null) throw new Error(`next start exited with ${child.exitCode}:\n${output().slice(-3000)}`);
     try {
       const res = await fetch(`${baseUrl}/api/v1/auth/session`, { signal: AbortSignal.timeout(5000) });
