@@ -161,7 +161,8 @@ describe('review in the browser with two roles', () => {
     const row = page.locator(`[data-testid=finding-row][data-row-id="${target}"]`);
     await row.waitFor();
     expect(await row.getAttribute('aria-selected')).toBe('true');
-    expect(await page.textContent('[data-testid=findings-page]')).toMatch(/page 3 of/);
+    // The pager and the rows can land in separate renders under load: wait for the pager, do not sample it once.
+    await expect.poll(() => page.textContent('[data-testid=findings-page]'), { timeout: 10_000 }).toMatch(/page 3 of/);
     await expect.poll(() => new URL(page.url()).searchParams.get('page'), { timeout: 5000 }).toBe('3');
     await page.close();
   });
