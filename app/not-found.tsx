@@ -1,9 +1,12 @@
 import Link from 'next/link';
+import { connection } from 'next/server';
 import { CautionFooter } from '@/components/caution-footer';
 import { buttonClass } from '@/components/ui/button';
 import { LogoMark } from '@/components/ui/logo';
 
-export default function NotFound() {
+// Rendered per request, not prerendered: the page's scripts need the request's CSP nonce (proxy.ts) to run.
+export default async function NotFound() {
+  await connection();
   return (
     <div className="flex min-h-screen flex-col bg-wafer-100">
       <main className="flex flex-1 flex-col items-center justify-center px-6 text-center">

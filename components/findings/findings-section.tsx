@@ -42,13 +42,14 @@ export function FindingsSection({ analysisId }: { analysisId: string }) {
   });
   const data = list.data;
 
-  // a located row may be on another page: follow the server's page, then stop locating
+  // a located row may be on another page: follow the server's page, and stop locating only once the URL shows it
+  // (clearing earlier asks for the URL's old page for one fetch, which flashes that page)
   useEffect(() => {
     if (!locate || !data || list.isPlaceholderData) return;
     const page = Math.floor(data.offset / PAGE_SIZE) + 1;
-    setLocate(null);
-    if (String(page) !== (state.page ?? '1')) update({ page: page === 1 ? '' : String(page) });
-  }, [data, locate, list.isPlaceholderData]);
+    if (String(page) !== (state.page || '1')) update({ page: page === 1 ? '' : String(page) });
+    else setLocate(null);
+  }, [data, locate, list.isPlaceholderData, state.page]);
   const [highlight, setHighlight] = useState<string | null>(null);
   useEffect(() => {
     if (data?.located) setHighlight(data.located);

@@ -157,6 +157,15 @@ describe('review in the browser with two roles', () => {
     const all = (await (await reviewer.get(`/api/v1/analyses/${analysisId}/findings?view=flat&limit=500`)).json()) as { items: { key: string }[] };
     const target = all.items[60]?.key as string; // row 61: page 3 at 25 rows a page
     const page = await signInPage('reviewer@larkspur.example');
+    // every text the pager shows, from the first render on: locating must not flash page 1 on its way to page 3
+    await page.addInitScript(() => {
+      const seen: string[] = [];
+      (window as unknown as { pagerSeen: string[] }).pagerSeen = seen;
+      new MutationObserver(() => {
+        const text = document.querySelector('[data-testid=findings-page]')?.textContent;
+        if (text && text !== seen[seen.length - 1]) seen.push(text);
+      }).observe(document, { subtree: true, childList: true, characterData: true });
+    });
     await page.goto(`${server.baseUrl}/analyses/${analysisId}?view=flat&finding=${encodeURIComponent(target)}`);
     const row = page.locator(`[data-testid=finding-row][data-row-id="${target}"]`);
     await row.waitFor();
@@ -164,6 +173,10 @@ describe('review in the browser with two roles', () => {
     // The pager and the rows can land in separate renders under load: wait for the pager, do not sample it once.
     await expect.poll(() => page.textContent('[data-testid=findings-page]'), { timeout: 10_000 }).toMatch(/page 3 of/);
     await expect.poll(() => new URL(page.url()).searchParams.get('page'), { timeout: 5000 }).toBe('3');
+    await page.waitForTimeout(500); // let the fetch that follows the URL land
+    const seen = await page.evaluate(() => (window as unknown as { pagerSeen: string[] }).pagerSeen);
+    expect(seen.length).toBeGreaterThan(0);
+    for (const text of seen) expect(text).toMatch(/page 3 of/);
     await page.close();
   });
 

@@ -37,6 +37,16 @@ describe('security headers on pages and API', () => {
     expect(a.headers['strict-transport-security']).toBeUndefined();
   });
 
+  it('the not-found page is rendered per request too: its scripts carry the response nonce', async () => {
+    const r = await rawRequest(server.baseUrl, '/no-such-page-here');
+    expect(r.status).toBe(404);
+    const nonce = /'nonce-([A-Za-z0-9+/=]+)'/.exec(String(r.headers['content-security-policy']))?.[1];
+    expect(nonce).toBeDefined();
+    const scripts = [...r.body.matchAll(/<script\b[^>]*>/g)].map((m) => m[0]);
+    expect(scripts.length).toBeGreaterThan(0);
+    for (const tag of scripts) expect(tag).toContain(`nonce="${nonce}"`);
+  });
+
   it('an API route: a policy that allows nothing, the same common headers, no HSTS over plain http', async () => {
     for (const p of ['/api/v1/auth/session', '/api/v1/openapi.json']) {
       const res = await rawRequest(server.baseUrl, p);
