@@ -100,7 +100,7 @@ export function SummaryPanel({ summary: s }: { summary: Summary }) {
         <ul className="mt-4 space-y-0.5 text-xs text-warn">
           {s.extrapolation.slice(0, 5).map((e) => (
             <li key={e.message}>
-              {e.message} ({e.count} openings)
+              {e.message} ({e.count.toLocaleString('en')} opening{e.count === 1 ? '' : 's'})
             </li>
           ))}
         </ul>
