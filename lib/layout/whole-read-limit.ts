@@ -11,7 +11,7 @@ import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 export const DEFAULT_WHOLE_READ_MB = 256;
 
 /** Largest layout file (bytes) read whole: TRENCHANT_WHOLE_READ_MB (MiB, may be fractional), default 256 MiB. */
-export function wholeReadLimitBytes(env: NodeJS.ProcessEnv = process.env): number {
+export function wholeReadLimitBytes(env: Record<string, string | undefined> = process.env): number {
   const v = Number(env.TRENCHANT_WHOLE_READ_MB);
   const mb = env.TRENCHANT_WHOLE_READ_MB !== undefined && env.TRENCHANT_WHOLE_READ_MB.trim() !== '' && Number.isFinite(v) && v >= 0 ? v : DEFAULT_WHOLE_READ_MB;
   return Math.floor(mb * 1024 * 1024);

@@ -17,7 +17,7 @@ import { runTiledAnalysis } from './tiled/run-tiled';
 import { tileSizeForBudget } from './tiled/tile-budget';
 
 /** Tile worker threads: TRENCHANT_TILE_THREADS, default 2 on machines with 4 or more cores, else 0 (this thread). */
-export function tileThreads(env: NodeJS.ProcessEnv = process.env): number {
+export function tileThreads(env: Record<string, string | undefined> = process.env): number {
   const v = Number(env.TRENCHANT_TILE_THREADS);
   if (env.TRENCHANT_TILE_THREADS !== undefined && env.TRENCHANT_TILE_THREADS.trim() !== '' && Number.isInteger(v) && v >= 0) return Math.min(v, 64);
   return availableParallelism() >= 4 ? 2 : 0;
