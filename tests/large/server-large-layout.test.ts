@@ -19,7 +19,7 @@ import { decodePolygons, type WirePolygons } from '@/lib/viewer/polygon-wire';
 import type { TestClient } from '../support/http';
 import { startTestServer, type TestServer } from '../support/server';
 import { flatDie } from '../layout/tile-fixtures';
-import { json, PROJECT, signInAs, startAnalysis, upload, waitFor, type ErrorBody } from '../pipeline-server/support';
+import { json, leftovers, PROJECT, signInAs, startAnalysis, upload, waitFor, type ErrorBody } from '../pipeline-server/support';
 
 const MEMORY_MB = '24';
 const dir = mkdtempSync(path.join(tmpdir(), 'trenchant-large-it-'));
@@ -80,11 +80,13 @@ describe('layouts above the whole-read size in the app', () => {
     writeFileSync(brokenFile, broken);
     const whole = await checkLayoutFile(brokenFile, { maxPolygons: 1e9, maxPoints: 1e10 });
     expect(whole.ok).toBe(false);
+    const before = leftovers(server.dbFile);
     const res = await upload(designer, `/api/v1/projects/${PROJECT}/layouts`, broken, 'broken.gds', { name: 'broken large' });
     expect(res.status).toBe(422);
     const body = await json<ErrorBody>(res);
     expect(body.error.message).toBe(`broken.gds: ${!whole.ok ? whole.message : ''}.`);
     expect(body.error.message).toMatch(/byte \d+/);
+    expect(leftovers(server.dbFile)).toEqual(before);
   });
 
   it('analyses it in tiles with the same stored results as the untiled run', async () => {
