@@ -1,6 +1,6 @@
 /**
  * Child process of bench/large-layout.bench.ts, so its peak RSS belongs to one server step alone.
- * Usage: tsx bench/large-layout-child.ts check-index|check-whole|analyse-tiled FILE
+ * Usage: tsx bench/large-layout-child.ts check-index|check-whole|analyse-tiled|analyse-whole FILE (pixel: BENCH_PIXEL_UM, default 10)
  * Prints one JSON line: seconds, peak RSS, and what the step found.
  */
 import { mkdtempSync, rmSync } from 'node:fs';

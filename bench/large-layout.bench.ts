@@ -2,7 +2,7 @@
  * The web app's steps on a GDSII file far above the whole-read size: the upload check from the on-disk index against
  * the whole-file check, and the tiled analysis in the worker, each in its own process (peak RSS of that step).
  * The file: BENCH_LARGE_GDS, or bench/make-files.ts's flat squares repeated to LARGE_SQUARES (default 4.6 M,
- * ≈ 300 MB) written to the temp folder once. BENCH_LARGE_STEPS picks steps (default: all three).
+ * ≈ 300 MB) written to the temp folder once. BENCH_LARGE_STEPS picks steps (default: the two checks and the tiled analysis; analyse-whole for the comparison).
  * Measurements only, run by hand: `nice -n 10 npm run bench -- large-layout`.
  */
 import { spawnSync } from 'node:child_process';

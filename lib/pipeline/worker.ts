@@ -141,7 +141,11 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
     if (readsThroughIndex(task.layoutPath, wholeReadBytes)) {
       // The reader polls `aborted` only: this view of it also sees the shared cancel flag, inside the index pass and tile reads.
       const readSignal = { get aborted() { return isCancelled(); } } as AbortSignal;
-      source = openGdsiiTileSource(task.layoutPath, { signal: readSignal, ...(task.topCell ? { topCell: task.topCell } : {}) });
+      source = openGdsiiTileSource(task.layoutPath, {
+        signal: readSignal,
+        onProgress: (bytes, size) => post('reading', (READ_SHARE * bytes) / Math.max(1, size)),
+        ...(task.topCell ? { topCell: task.topCell } : {}),
+      });
     }
     const layout = source ? headerLayout(source.header) : await readLayoutFile(task.layoutPath, { signal: controller.signal, ...(task.topCell ? { topCell: task.topCell } : {}) });
     // Memory budget: the automatic pixel is chosen within it; an explicit pixel beyond it is refused by name.
