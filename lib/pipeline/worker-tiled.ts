@@ -50,6 +50,7 @@ export async function analyseInTiles(input: TiledWorkerInput, settings: Analysis
     wholeReadBytes: input.wholeReadBytes,
     reason: budget.reason,
   };
-  const { tiled: _stats, ...result } = r;
-  return { ...result, summary: { ...result.summary, tiled } };
+  // In place (a spread or rest copy of the result would build its lazy per-opening objects).
+  r.summary = { ...r.summary, tiled };
+  return r;
 }
