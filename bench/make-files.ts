@@ -31,6 +31,18 @@ export function flatSquares(): Uint8Array {
   return w.endCell().finish();
 }
 
+/** `n` squares (5 µm at a 10 µm pitch, a square die) written flat: 64 bytes per square (the large-layout bench). */
+export function flatSquaresN(n: number): Uint8Array {
+  const w = new GdsiiWriter({ libraryName: 'BENCH_FN' });
+  const row = Math.ceil(Math.sqrt(n));
+  w.beginCell('FLAT');
+  for (let k = 0; k < n; k++) {
+    const i = k % row, j = Math.floor(k / row);
+    w.rect(1, 0, i * 10_000, j * 10_000, i * 10_000 + 5000, j * 10_000 + 5000);
+  }
+  return w.endCell().finish();
+}
+
 export function mixedLayer(): Uint8Array {
   const set = benchLayout();
   const w = new GdsiiWriter({ libraryName: 'BENCH1M', dbuUm: 0.001 });

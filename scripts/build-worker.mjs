@@ -5,6 +5,8 @@
 //   lib/geometry/features-thread.ts → features-thread.mjs (the second thread that measures openings; the analysis
 //                                   worker finds it beside itself)
 //   lib/viewer/index-worker.ts   → viewer-index-worker.mjs (the canvas viewer's polygon indexes, off the main thread)
+//   lib/pipeline/tiled/tile-thread.ts → tile-thread.mjs (tile jobs of a tiled analysis on worker threads; the
+//                                   analysis worker finds it beside itself, as it finds features-thread.mjs)
 // Run by `npm run build`, and by the server itself (lib/jobs/worker-file.ts) when a file is missing or older than
 // its sources, so `next build` alone, the test helper and `next dev` work too. Kept out of .next, which
 // `next build` empties. Writes to temporary names and renames, so concurrent builders and running pools never see
@@ -21,6 +23,7 @@ const ENTRIES = [
   { entry: 'lib/uploads/check-worker.ts', out: 'upload-worker.mjs' },
   { entry: 'lib/geometry/features-thread.ts', out: 'features-thread.mjs' },
   { entry: 'lib/viewer/index-worker.ts', out: 'viewer-index-worker.mjs' },
+  { entry: 'lib/pipeline/tiled/tile-thread.ts', out: 'tile-thread.mjs' },
 ];
 
 const esbuild = createRequire(path.join(root, 'package.json'))('esbuild');

@@ -126,6 +126,12 @@ function View({ analysisId, initial, canCancel }: { analysisId: string; initial:
               <dd>{formatWhen(a.finishedAt)}</dd>
             </>
           ) : null}
+          {results.data?.summary.tiled ? (
+            <>
+              <dt>read in tiles</dt>
+              <dd data-testid="analysis-tiled">{tiledText(results.data.summary.tiled)}</dd>
+            </>
+          ) : null}
         </dl>
       </Card>
 
@@ -157,6 +163,13 @@ function RunAgain({ analysisId }: { analysisId: string }) {
       </Button>
     </div>
   );
+}
+
+/** One plain line on how a layout too large to read whole was analysed (same results as a whole read). */
+function tiledText(t: NonNullable<Summary['tiled']>): string {
+  const mib = (n: number) => `${Math.round(n / 1024 / 1024).toLocaleString('en-US')} MiB`;
+  const um = (v: number) => `${Math.round(v * 100) / 100} µm`;
+  return `${t.tiles.toLocaleString('en-US')} tiles of ${um(t.tileUm)} (${um(t.marginUm)} margin, ${t.rereads} re-read${t.rereads === 1 ? '' : 's'}): the ${mib(t.fileBytes)} file is above the whole-read size of ${mib(t.wholeReadBytes)}; results are the same as a whole read`;
 }
 
 /** Where the model came from, in words (stored as 'version:<id>', 'builtin:<id>' or 'uploaded'). */

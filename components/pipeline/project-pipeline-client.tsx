@@ -22,6 +22,8 @@ type Revision = {
   sha256: string;
   note: string;
   readWarnings: string[];
+  /** Above the whole-read size: checked from its index, analysed in tiles. */
+  readsThroughIndex?: boolean;
   analysisCount: number;
 };
 type Layout = { id: string; name: string; revisions: Revision[] };
@@ -86,6 +88,7 @@ export function ProjectPipelineClient({ projectId, canUpload, canAnalyse }: { pr
                         <span className="text-ink-800">{r.originalName}</span>
                         <span className="ml-2 font-mono text-xs text-ink-500">
                           {r.format} · {formatBytes(r.sizeBytes)} · {r.polygonCount.toLocaleString('en')} polygons
+                          {r.readsThroughIndex ? <span data-testid="revision-large"> · large file: read in tiles</span> : null}
                         </span>
                         {r.readWarnings.length > 0 ? (
                           <details className="mt-0.5 text-xs text-warn" data-testid="revision-read-warnings">

@@ -8,6 +8,7 @@
 import { MessageChannel, type MessagePort } from 'node:worker_threads';
 import Piscina from 'piscina';
 import type { AnalysisTask, AnalysisTaskResult, WorkerMessage } from '@/lib/pipeline/worker';
+import { wholeReadLimitBytes } from '@/lib/layout/whole-read-limit';
 import { isStorageNotFound, storage } from '@/lib/storage';
 import { localInput, resultStaging, type LocalInput, type ResultStaging } from '@/lib/storage/job-files';
 import { analysisRelDir } from './paths';
@@ -94,6 +95,7 @@ export class RemoteTaskRunner {
             cancelFlag: job.flag,
             maxResultBytes: task.budget.maxBytes,
             resultBudgetLabel: task.budget.label,
+            wholeReadBytes: wholeReadLimitBytes(),
             ...(task.topCell ? { topCell: task.topCell } : {}),
           },
           { transferList: [channel.port2], signal: job.controller.signal },

@@ -20,6 +20,7 @@ import Piscina from 'piscina';
 import { getDb } from '@/db/client';
 import type { AnalysisStatus } from '@/db/schema';
 import type { AnalysisTask, AnalysisTaskResult, WorkerMessage } from '@/lib/pipeline/worker';
+import { wholeReadLimitBytes } from '@/lib/layout/whole-read-limit';
 import { isStorageNotFound, storage } from '@/lib/storage';
 import { localInput, resultStaging, type LocalInput, type ResultStaging } from '@/lib/storage/job-files';
 import { FEATURE_FILE_NAME } from './feature-file';
@@ -256,6 +257,7 @@ export class JobRunner implements JobQueue {
         cancelFlag: job.flag,
         maxResultBytes: budget.maxBytes,
         resultBudgetLabel: budget.label,
+        wholeReadBytes: wholeReadLimitBytes(),
         ...(row.top_cell ? { topCell: row.top_cell } : {}),
       };
       let result: AnalysisTaskResult;

@@ -1,6 +1,6 @@
 /**
  * Locates the compiled worker files (scripts/build-worker.mjs → node_modules/.cache/trenchant/analysis-worker.mjs
- * and upload-worker.mjs) and builds them when missing or older than their TypeScript sources. The build runs as a
+ * and upload-worker.mjs, with features-thread.mjs and tile-thread.mjs beside the analysis worker) and builds them when missing or older than their TypeScript sources. The build runs as a
  * child process (esbuild), so nothing here depends on how Next bundled the server. TRENCHANT_WORKER_FILE overrides
  * the analysis worker's path, TRENCHANT_UPLOAD_WORKER_FILE the upload worker's (no build then).
  */
@@ -13,6 +13,8 @@ const OUT_DIR_REL = path.join('node_modules', '.cache', 'trenchant');
 const OUT_REL = path.join(OUT_DIR_REL, 'analysis-worker.mjs');
 const UPLOAD_OUT_REL = path.join(OUT_DIR_REL, 'upload-worker.mjs');
 const FEATURES_OUT_REL = path.join(OUT_DIR_REL, 'features-thread.mjs');
+// Tile jobs of a tiled analysis (lib/pipeline/tiled/tile-pool.ts finds it beside analysis-worker.mjs).
+const TILE_OUT_REL = path.join(OUT_DIR_REL, 'tile-thread.mjs');
 const ENTRY_REL = path.join('lib', 'pipeline', 'worker.ts');
 
 function projectRoot(): string {
@@ -21,7 +23,7 @@ function projectRoot(): string {
 
 /** Null when the compiled worker is up to date, else why it needs building. */
 export function workerStaleReason(root = projectRoot()): string | null {
-  return fileStaleReason(root, OUT_REL) ?? fileStaleReason(root, UPLOAD_OUT_REL) ?? fileStaleReason(root, FEATURES_OUT_REL);
+  return fileStaleReason(root, OUT_REL) ?? fileStaleReason(root, UPLOAD_OUT_REL) ?? fileStaleReason(root, FEATURES_OUT_REL) ?? fileStaleReason(root, TILE_OUT_REL);
 }
 
 function fileStaleReason(root: string, outRel: string): string | null {

@@ -227,6 +227,8 @@ export interface IndexOptions {
   /** Read buffer size (default 1 MiB). */
   chunkBytes?: number;
   signal?: AbortSignal;
+  /** Called after each buffer read with the bytes indexed so far and the file size (progress of a long pass). */
+  onProgress?: (bytes: number, fileSize: number) => void;
 }
 
 /** Index the GDSII file at `path`. Throws LayoutReadError for unreadable or bad input. */
@@ -255,6 +257,7 @@ export function indexGdsiiFile(path: string, opts: IndexOptions = {}): GdsiiInde
       if (n === 0) break;
       parser.push(n === buf.length ? buf : buf.subarray(0, n));
       pos += n;
+      opts.onProgress?.(pos, fileSize);
     }
     const lib = parser.finish();
     const cells = lib.cells.map((def): IndexedCell => {

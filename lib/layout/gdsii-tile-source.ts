@@ -51,8 +51,16 @@ interface WalkHooks {
   ownLists?: (c: number, t: Placement) => boolean;
 }
 
+/** Caps of one readTile call, below the source's own (e.g. the viewer's polygons per view). */
+export interface TileCap {
+  maxPolygons?: number;
+  maxPoints?: number;
+}
+
 export interface GdsiiTileSource extends TileSource {
   readonly index: GdsiiIndex;
+  /** readTile with tighter caps for this call: more polygons than `cap` fails with "too-large" before they are all read. */
+  readTile(box: BboxDbu, layers: { layer: number; datatype: number }[], cap?: TileCap): FlatLayout;
   /** Disk bytes read and elements decoded since opening (index pass excluded). */
   stats(): { bytesRead: number; elementsDecoded: number };
 }
@@ -63,6 +71,15 @@ type Take = (key: number, coords: Float64Array, from: number, to: number) => voi
 export function openGdsiiTileSource(path: string, opts: GdsiiTileSourceOptions = {}): GdsiiTileSource {
   const before = statSync(path, { throwIfNoEntry: false });
   const index = indexGdsiiFile(path, opts);
+  return gdsiiTileSourceOfIndex(index, before ? { size: before.size, mtimeMs: before.mtimeMs } : null, opts);
+}
+
+/**
+ * A tile source over an index already built (e.g. by a caller that checks the cell totals against its own limits
+ * first). `before`: the file's size and time when indexing began, so a file changed since is refused.
+ */
+export function gdsiiTileSourceOfIndex(index: GdsiiIndex, before: { size: number; mtimeMs: number } | null, opts: GdsiiTileSourceOptions = {}): GdsiiTileSource {
+  const path = index.path;
   if (index.top >= 0) {
     const tp = index.totals.polygons[index.top] as number;
     const tq = index.totals.points[index.top] as number;
@@ -120,13 +137,13 @@ class Source implements GdsiiTileSource {
     closeSync(this.fd);
   }
 
-  readTile(box: BboxDbu, layers: { layer: number; datatype: number }[]): FlatLayout {
+  readTile(box: BboxDbu, layers: { layer: number; datatype: number }[], cap: TileCap = {}): FlatLayout {
     if (this.closed) throw new LayoutReadError('io', `tile source for ${this.index.path} is closed`);
     // Offsets are only valid for the bytes that were indexed.
     const st = fstatSync(this.fd);
     if (st.size !== this.index.fileSize || st.mtimeMs !== this.mtimeMs) throw changed(this.index.path);
-    const maxPolygons = this.opts.maxPolygons ?? 25_000_000;
-    const maxPoints = this.opts.maxPoints ?? 100_000_000;
+    const maxPolygons = Math.min(this.opts.maxPolygons ?? 25_000_000, cap.maxPolygons ?? Infinity);
+    const maxPoints = Math.min(this.opts.maxPoints ?? 100_000_000, cap.maxPoints ?? Infinity);
     const out = new Map<number, { coords: GrowF64; starts: GrowU32 }>();
     let polygons = 0;
     let points = 0;

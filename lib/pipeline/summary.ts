@@ -60,6 +60,24 @@ export interface AnalysisSummary {
   caution: string;
   settings: AnalysisSettings;
   timingsMs: Record<string, number>;
+  /** Present when the layout was too large to read whole and the analysis ran tile by tile (same results). */
+  tiled?: TiledRunSummary;
+}
+
+/** How a tiled analysis ran (lib/pipeline/worker-tiled.ts). */
+export interface TiledRunSummary {
+  tiles: number;
+  tileUm: number;
+  marginUm: number;
+  /** Re-reads around openings wider than the margin. */
+  rereads: number;
+  /** Worker threads for the tiles (0: the analysis thread itself). */
+  threads: number;
+  /** The layout file's size and the whole-read size it exceeded, bytes. */
+  fileBytes: number;
+  wholeReadBytes: number;
+  /** Why this tile size (memory budget arithmetic). */
+  reason: string;
 }
 
 /** Name, version and calibration date of a model, read tolerantly (older models may lack them). */

@@ -1,6 +1,8 @@
 /**
  * Worker-thread entry for one analysis, shaped for piscina: `pool.run(task, { transferList: [port] })` with the
- * default export as the task function. Thin on purpose: read the layout, validate, runAnalysis, write the maps.
+ * default export as the task function. Thin on purpose: read the layout, validate, runAnalysis, write the maps. A
+ * GDSII file above the whole-read size (TRENCHANT_WHOLE_READ_MB) is never read whole: it is indexed on disk and
+ * analysed tile by tile (worker-tiled.ts) with the same outputs; its summary then records the tiling.
  *
  * Task (AnalysisTask): { layoutPath, settings, model, outDir, port?, cancelFlag?, topCell?, maxResultBytes? } —
  * settings and model are raw JSON and are validated here (so a stored analysis replays exactly as stored).
@@ -26,6 +28,7 @@
  * carrying a million objects through structured clone. A failed task leaves only complete files, which the runner
  * may delete.
  */
+import { statSync } from 'node:fs';
 import { mkdir, open, rename, unlink } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { MessagePort } from 'node:worker_threads';
@@ -34,6 +37,11 @@ import { lowerThreadPriority } from '../jobs/thread-priority';
 import { parseProcessModel } from '../etch';
 import { LayoutReadError } from '../layout/errors';
 import { readLayoutFile } from '../layout/read';
+import { openGdsiiTileSource } from '../layout/gdsii-tile-source';
+import type { TileSource } from '../layout/tile-source';
+import { readsThroughIndex, wholeReadLimitBytes } from '../layout/whole-read-limit';
+import { headerLayout } from './tiled/plan';
+import { analyseInTiles } from './worker-tiled';
 import { AnalysisInputError, isAbortError } from './errors';
 import type { Flag } from './flags';
 import type { GridMap, GridUnit } from './grid-file';
@@ -58,6 +66,8 @@ export interface AnalysisTask {
   maxResultBytes?: number;
   /** How the refusal names that cap, e.g. "this team's limit of 2,048 MiB per analysis". */
   resultBudgetLabel?: string;
+  /** GDSII files larger than this are analysed tile by tile from an on-disk index (default TRENCHANT_WHOLE_READ_MB). */
+  wholeReadBytes?: number;
 }
 
 /** The per-opening results file the task wrote (inside outDir). */
@@ -116,6 +126,7 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
   };
   task.port?.on('message', onMessage);
   const post = progressPoster(task.port);
+  let source: TileSource | null = null;
   try {
     const settings = parseAnalysisSettings(task.settings);
     if (!settings.ok) return { ok: false, code: 'bad-settings', message: `settings: ${settings.issues.map((i) => `${i.path || '(root)'}: ${i.message}`).join('; ')}`, issues: settings.issues };
@@ -123,8 +134,20 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
     if (!model.ok) return { ok: false, code: 'bad-model', message: `process model: ${model.issues.map((i) => `${i.path}: ${i.message}`).join('; ')}`, issues: model.issues };
 
     post('reading', 0);
-    const layout = await readLayoutFile(task.layoutPath, { signal: controller.signal, ...(task.topCell ? { topCell: task.topCell } : {}) });
     const flag = task.cancelFlag;
+    const isCancelled = () => controller.signal.aborted || (flag !== undefined && Atomics.load(flag, 0) !== 0);
+    // A GDSII file above the whole-read size is indexed on disk and analysed tile by tile (worker-tiled.ts).
+    const wholeReadBytes = task.wholeReadBytes ?? wholeReadLimitBytes();
+    if (readsThroughIndex(task.layoutPath, wholeReadBytes)) {
+      // The reader polls `aborted` only: this view of it also sees the shared cancel flag, inside the index pass and tile reads.
+      const readSignal = { get aborted() { return isCancelled(); } } as AbortSignal;
+      source = openGdsiiTileSource(task.layoutPath, {
+        signal: readSignal,
+        onProgress: (bytes, size) => post('reading', (READ_SHARE * bytes) / Math.max(1, size)),
+        ...(task.topCell ? { topCell: task.topCell } : {}),
+      });
+    }
+    const layout = source ? headerLayout(source.header) : await readLayoutFile(task.layoutPath, { signal: controller.signal, ...(task.topCell ? { topCell: task.topCell } : {}) });
     // Memory budget: the automatic pixel is chosen within it; an explicit pixel beyond it is refused by name.
     const bbox = layout.bboxDbu;
     const dieUm: [number, number] = bbox ? [(bbox[2] - bbox[0]) * layout.dbuUm, (bbox[3] - bbox[1]) * layout.dbuUm] : [0, 0];
@@ -140,13 +163,21 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
         return { ok: false, code: 'over-budget', message: overBudgetMessage(mapBytes, label, `6 maps of ${grid.nx} × ${grid.ny} pixels at ${grid.pixelUm} µm`) };
       }
     }
-    const result = runAnalysis(layout, budgeted.settings, model.model, {
+    const hooks = {
       signal: controller.signal,
       ...(flag ? { isCancelled: () => Atomics.load(flag, 0) !== 0 } : {}),
-      onProgress: (stage, f) => post(stage === 'done' ? 'writing' : stage, READ_SHARE + (1 - READ_SHARE - WRITE_SHARE) * f),
-    });
-
-    const isCancelled = () => controller.signal.aborted || (flag !== undefined && Atomics.load(flag, 0) !== 0);
+      onProgress: (stage: AnalysisStage | 'done', f: number) => post(stage === 'done' ? 'writing' : stage, READ_SHARE + (1 - READ_SHARE - WRITE_SHARE) * f),
+    };
+    const result = source
+      ? await analyseInTiles(
+          { source, path: task.layoutPath, ...(task.topCell ? { topCell: task.topCell } : {}), fileBytes: statSync(task.layoutPath).size, wholeReadBytes, memoryMb: analysisMemoryMb() },
+          budgeted.settings,
+          model.model,
+          hooks,
+        )
+      : runAnalysis(layout, budgeted.settings, model.model, hooks);
+    source?.close();
+    source = null;
     const featureBytes = encodeFeatureFile(result.featureTable);
     // TRGRID1 header + metadata stays far below 64 KiB; float32 samples dominate.
     const mapBytes = result.maps.reduce((n, m) => n + m.grid.nx * m.grid.ny * 4 + 65_536, 0);
@@ -176,6 +207,7 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
     if (err instanceof AnalysisInputError) return { ok: false, code: 'bad-input', message: err.message };
     throw err;
   } finally {
+    source?.close();
     task.port?.off('message', onMessage);
     task.port?.close();
   }

@@ -7,10 +7,12 @@
  */
 import Piscina from 'piscina';
 import { uploadWorkerFile } from '@/lib/jobs/worker-file';
+import { wholeReadLimitBytes } from '@/lib/layout/whole-read-limit';
 import type { UploadCheckResult, UploadLimits } from './check-layout';
 import type { UploadCheckTask } from './check-worker';
 
-type Pool = Piscina<UploadCheckTask, UploadCheckResult>;
+type Checked = UploadCheckResult & { via?: 'whole' | 'index' };
+type Pool = Piscina<UploadCheckTask, Checked>;
 const holder = globalThis as typeof globalThis & { __trenchantUploadPool?: Promise<Pool> };
 
 function positiveEnv(name: string, fallback: number): number {
@@ -21,7 +23,7 @@ function positiveEnv(name: string, fallback: number): number {
 function pool(): Promise<Pool> {
   holder.__trenchantUploadPool ??= uploadWorkerFile().then(
     (filename) =>
-      new Piscina<UploadCheckTask, UploadCheckResult>({
+      new Piscina<UploadCheckTask, Checked>({
         filename,
         minThreads: 0,
         maxThreads: positiveEnv('TRENCHANT_UPLOAD_CHECK_THREADS', 1),
@@ -34,9 +36,9 @@ function pool(): Promise<Pool> {
 }
 
 /** Runs the upload check of `file` in the pool. Rejects only on a worker failure (crash, out of memory). */
-export async function checkUploadInWorker(file: string, limits: UploadLimits, signal?: AbortSignal): Promise<UploadCheckResult> {
+export async function checkUploadInWorker(file: string, limits: UploadLimits, signal?: AbortSignal): Promise<Checked> {
   const p = await pool();
-  return p.run({ file, limits }, signal ? { signal } : {});
+  return p.run({ file, limits, wholeReadBytes: wholeReadLimitBytes() }, signal ? { signal } : {});
 }
 
 /** Stops the pool's threads (benchmarks, tests; the server keeps its pool). */

@@ -13,6 +13,7 @@ import { ApiError } from '@/lib/http/errors';
 import { revisionRelPath } from '@/lib/jobs/paths';
 import { getTeamLimits, teamOfProject } from '@/lib/jobs/team-limits';
 import type { FlatLayout } from '@/lib/layout/types';
+import { wholeReadLimitBytes } from '@/lib/layout/whole-read-limit';
 import { storage } from '@/lib/storage';
 import type { UploadCheckResult } from './check-layout';
 import { checkUploadInWorker } from './check-pool';
@@ -65,6 +66,8 @@ export type RevisionView = {
   note: string;
   /** What the reader repaired (e.g. an unclosed BOUNDARY closed), each naming its byte offset. */
   readWarnings: string[];
+  /** GDSII above TRENCHANT_WHOLE_READ_MB: checked from its on-disk index, analysed tiled, drawn a window at a time. */
+  readsThroughIndex: boolean;
 };
 
 function toRevisionView(r: LayoutRevisionRow, layout: { id: string; name: string; projectId: string }, userName: string | null): RevisionView {
@@ -88,12 +91,14 @@ function toRevisionView(r: LayoutRevisionRow, layout: { id: string; name: string
     polygonCount: r.polygonCount,
     note: r.note,
     readWarnings: r.readWarnings,
+    readsThroughIndex: r.format === 'gdsii' && r.sizeBytes > wholeReadLimitBytes(),
   };
 }
 
 /**
- * Recognises the format from the first bytes (here: cheap), then reads and checks the whole file in the upload
- * worker pool against the team's limits (never on this thread: see check-layout.ts).
+ * Recognises the format from the first bytes (here: cheap), then checks the file in the upload worker pool against
+ * the team's limits (never on this thread: see check-layout.ts): read whole, or for GDSII above
+ * TRENCHANT_WHOLE_READ_MB from its on-disk index (check-indexed.ts).
  */
 async function validateLayoutFile(file: ReceivedFile, limits: { maxPolygons: number; maxPoints: number }): Promise<Extract<UploadCheckResult, { ok: true }>> {
   const sniffed = sniffLayoutFormat(file.head);

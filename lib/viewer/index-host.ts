@@ -1,6 +1,7 @@
 /**
  * Server side of the polygon-index worker thread (lib/viewer/index-worker.ts): one long-lived worker per server
- * process holds the indexes and answers polygons-in-box queries; callers await a promise, so while the worker
+ * process holds the polygon readers (an R-tree, or for a layout above the whole-read size its on-disk GDSII index
+ * read a window at a time: layout-windows.ts) and answers polygons-in-box queries; callers await a promise, so while the worker
  * builds a million-polygon index the main thread keeps serving other requests. The worker runs the compiled
  * node_modules/.cache/trenchant/viewer-index-worker.mjs (scripts/build-worker.mjs, rebuilt here when missing or
  * older than its sources). If no worker can start, the index is built on the calling thread as before: slower to
@@ -11,9 +12,8 @@ import { existsSync, readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { ApiError } from '@/lib/http/errors';
-import { readLayoutFile } from '@/lib/layout/read';
 import type { IndexReply, IndexRequest } from './index-protocol';
-import { buildPolygonIndex, queryPolygons, type PolygonIndex } from './polygon-index';
+import { readerCache } from './reader-cache';
 import type { WirePolygons } from './polygon-wire';
 
 const OUT_REL = path.join('node_modules', '.cache', 'trenchant', 'viewer-index-worker.mjs');
@@ -96,24 +96,14 @@ function host(): Host {
   return h;
 }
 
-// Fallback when no worker starts: the same cache on this thread.
-const local = new Map<string, Promise<PolygonIndex>>();
-function localIndex(q: IndexQuery): Promise<PolygonIndex> {
-  let p = local.get(q.revisionId);
-  if (!p) {
-    p = readLayoutFile(q.path, { topCell: q.topCell ?? undefined }).then(buildPolygonIndex);
-    p.catch(() => local.delete(q.revisionId));
-    local.set(q.revisionId, p);
-    while (local.size > 2) local.delete(local.keys().next().value as string);
-  }
-  return p;
-}
+// Fallback when no worker starts: the same readers on this thread.
+const local = readerCache(2);
 
 /** Polygons of a layout revision meeting `box` (at most `max`), from the worker thread's index for that revision. */
 export async function queryPolygonsOffThread(q: IndexQuery): Promise<IndexAnswer> {
   const h = host();
   const w = await h.worker;
-  if (!w) return { polygons: queryPolygons(await localIndex(q), q.box, q.max), threadId: 0 };
+  if (!w) return { polygons: (await local.get(q)).query(q.box, q.max), threadId: 0 };
   const id = h.next++;
   return new Promise<IndexAnswer>((resolve, reject) => {
     h.pending.set(id, { resolve, reject });

@@ -8,6 +8,7 @@ import type { Db } from '@/db/client';
 import { analyses, layoutRevisions } from '@/db/schema';
 import { ApiError } from '@/lib/http/errors';
 import type { AnalysisSummary } from '@/lib/pipeline/summary';
+import { wholeReadLimitBytes } from '@/lib/layout/whole-read-limit';
 import { storage } from '@/lib/storage';
 import { readablePath } from '@/lib/storage/read-cache';
 
@@ -54,7 +55,7 @@ export function viewerInfo(db: Db, analysisId: string): ViewerInfo {
  * Where the analysis's layout revision is, for the polygon-index worker (lib/viewer/index-host.ts): its file in the
  * data folder, or a local copy of it when layouts are on S3 (lib/storage/read-cache.ts).
  */
-export async function layoutSourceFor(db: Db, analysisId: string): Promise<{ revisionId: string; path: string; topCell: string | null }> {
+export async function layoutSourceFor(db: Db, analysisId: string): Promise<{ revisionId: string; path: string; topCell: string | null; wholeReadBytes: number }> {
   const { rev } = finished(db, analysisId);
-  return { revisionId: rev.id, path: await readablePath(storage(), rev.storedPath), topCell: rev.topCell ?? null };
+  return { revisionId: rev.id, path: await readablePath(storage(), rev.storedPath), topCell: rev.topCell ?? null, wholeReadBytes: wholeReadLimitBytes() };
 }

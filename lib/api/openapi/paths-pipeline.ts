@@ -38,6 +38,7 @@ export const PIPELINE_SCHEMAS: Record<string, JsonSchema> = {
     polygonCount: int(),
     note: str(),
     readWarnings: arrayOf(str('What the reader repaired, e.g. an unclosed BOUNDARY closed; names the byte offset')),
+    readsThroughIndex: bool('GDSII larger than TRENCHANT_WHOLE_READ_MB: checked from its on-disk index, analysed in tiles, drawn one window at a time'),
   }),
   Layout: object({
     id: str(),

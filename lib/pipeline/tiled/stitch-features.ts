@@ -13,10 +13,13 @@ export interface FeaturePart {
   keys: ArrayLike<number>;
 }
 
-/** One table, ids 1..n in the untiled order. */
-export function stitchFeatures(parts: readonly FeaturePart[]): FeatureTable {
-  const all = concatFeatureTables(parts.map((p) => p.features));
-  const m = all.count;
+/**
+ * One table, ids 1..n in the untiled order. Empties `parts` once their rows are copied, so at most two copies of
+ * the openings (≈ 110 bytes each) are alive at once.
+ */
+export function stitchFeatures(parts: FeaturePart[]): FeatureTable {
+  let m = 0;
+  for (const p of parts) m += p.features.count;
   const cell = new Float64Array(m), rank = new Float64Array(m);
   let k = 0;
   for (const p of parts) {
@@ -25,6 +28,8 @@ export function stitchFeatures(parts: readonly FeaturePart[]): FeatureTable {
       rank[k] = p.keys[2 * i + 1] as number;
     }
   }
+  const all = concatFeatureTables(parts.map((p) => p.features));
+  parts.length = 0;
   const idx = new Uint32Array(m);
   for (let i = 0; i < m; i++) idx[i] = i;
   const y0 = all.y0Um, x0 = all.x0Um, cx = all.centroidXUm;
