@@ -4,6 +4,8 @@
 //   lib/uploads/check-worker.ts  → upload-worker.mjs   (the upload check pool)
 //   lib/geometry/features-thread.ts → features-thread.mjs (the second thread that measures openings; the analysis
 //                                   worker finds it beside itself)
+//   lib/pipeline/analysis-helper-thread.ts → analysis-helper-thread.mjs (the analysis's second thread for the
+//                                   union, features and other split stages; found beside the analysis worker)
 //   lib/viewer/index-worker.ts   → viewer-index-worker.mjs (the canvas viewer's polygon indexes, off the main thread)
 // Run by `npm run build`, and by the server itself (lib/jobs/worker-file.ts) when a file is missing or older than
 // its sources, so `next build` alone, the test helper and `next dev` work too. Kept out of .next, which
@@ -20,6 +22,7 @@ const ENTRIES = [
   { entry: 'lib/pipeline/worker.ts', out: 'analysis-worker.mjs' },
   { entry: 'lib/uploads/check-worker.ts', out: 'upload-worker.mjs' },
   { entry: 'lib/geometry/features-thread.ts', out: 'features-thread.mjs' },
+  { entry: 'lib/pipeline/analysis-helper-thread.ts', out: 'analysis-helper-thread.mjs' },
   { entry: 'lib/viewer/index-worker.ts', out: 'viewer-index-worker.mjs' },
 ];
 

@@ -188,7 +188,12 @@ function push(b: Builder, key: string, lo: number, hi: number, piece: number, si
 
 /** Pair stretches from the two sides of each tile line that overlap with positive length. */
 export function matchSeams(b: Builder): void {
-  for (const list of b.lines.values()) {
+  matchSeamLines(b.lines, b.seamA, b.seamB, b.seamLen);
+}
+
+/** `matchSeams` over a map of tile-line stretches (pieces numbered as in the map), appending to the seam lists. */
+export function matchSeamLines(lines: Map<string, number[]>, seamA: number[], seamB: number[], seamLen: number[]): void {
+  for (const list of lines.values()) {
     const n = list.length / 4;
     const lows: number[] = [], highs: number[] = [];
     for (let k = 0; k < n; k++) (list[4 * k + 3] === 0 ? lows : highs).push(k);
@@ -206,9 +211,9 @@ export function matchSeams(b: Builder): void {
         if (k0 >= l1) break;
         const len = Math.min(l1, list[4 * k + 1] as number) - Math.max(l0, k0);
         if (len > 0) {
-          b.seamA.push(list[4 * l + 2] as number);
-          b.seamB.push(list[4 * k + 2] as number);
-          b.seamLen.push(len);
+          seamA.push(list[4 * l + 2] as number);
+          seamB.push(list[4 * k + 2] as number);
+          seamLen.push(len);
         }
       }
     }

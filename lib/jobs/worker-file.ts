@@ -13,6 +13,7 @@ const OUT_DIR_REL = path.join('node_modules', '.cache', 'trenchant');
 const OUT_REL = path.join(OUT_DIR_REL, 'analysis-worker.mjs');
 const UPLOAD_OUT_REL = path.join(OUT_DIR_REL, 'upload-worker.mjs');
 const FEATURES_OUT_REL = path.join(OUT_DIR_REL, 'features-thread.mjs');
+const HELPER_OUT_REL = path.join(OUT_DIR_REL, 'analysis-helper-thread.mjs');
 const ENTRY_REL = path.join('lib', 'pipeline', 'worker.ts');
 
 function projectRoot(): string {
@@ -21,7 +22,7 @@ function projectRoot(): string {
 
 /** Null when the compiled worker is up to date, else why it needs building. */
 export function workerStaleReason(root = projectRoot()): string | null {
-  return fileStaleReason(root, OUT_REL) ?? fileStaleReason(root, UPLOAD_OUT_REL) ?? fileStaleReason(root, FEATURES_OUT_REL);
+  return fileStaleReason(root, OUT_REL) ?? fileStaleReason(root, UPLOAD_OUT_REL) ?? fileStaleReason(root, FEATURES_OUT_REL) ?? fileStaleReason(root, HELPER_OUT_REL);
 }
 
 function fileStaleReason(root: string, outRel: string): string | null {

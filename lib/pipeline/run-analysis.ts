@@ -12,8 +12,11 @@
  * Per-opening data stays in columns (FeatureTable, FeatureResultTable): a million objects would cost seconds of
  * garbage collection; `features` builds objects only when read.
  */
-import { effectiveDensity, localWidthFromCoverage, openRegions, rasterizeOpenRegions, windowDensity, type FeatureTable, type Grid, type WindowDensity } from '../geometry';
+import { effectiveDensity, localWidthFromCoverage, rasterizeOpenRegions, windowDensity, type FeatureTable, type Grid, type WindowDensity } from '../geometry';
 import { featureTableInThreads } from '../geometry/parallel-features';
+import { openRegionsInThreads } from '../geometry/parallel-union';
+import type { TaskThread } from '../threads/sync-helper';
+import { startAnalysisHelper } from './analysis-helper';
 import type { ProcessModel } from '../etch';
 import type { FlatLayout } from '../layout/types';
 import { AnalysisAbortedError } from './errors';
@@ -48,7 +51,16 @@ export interface AnalysisHooks {
    * AbortSignal events cannot arrive while it runs; a flag in shared memory (Atomics.load) can.
    */
   isCancelled?(): boolean;
+  /**
+   * A running helper thread for the stages that split their work (analysis-helper.ts; the caller closes it), null
+   * for one thread. Default: runAnalysis starts one for a big layout and closes it at the end. A caller that starts
+   * it before reading the layout hides the thread's start-up behind the read.
+   */
+  helper?: TaskThread | null;
 }
+
+/** Below this many etch-layer polygons the helper thread costs more to start than it saves. */
+const MIN_HELPER_POLYGONS = 50_000;
 
 export interface AnalysisResult {
   summary: AnalysisSummary;
@@ -117,6 +129,22 @@ export interface PrecomputedStages {
 }
 
 export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, model: ProcessModel, hooks: AnalysisHooks = {}, precomputed?: PrecomputedStages): AnalysisResult {
+  const own = hooks.helper === undefined && !precomputed && etchPolygonCount(layout, settings) >= MIN_HELPER_POLYGONS ? startAnalysisHelper() : null;
+  try {
+    return analyse(layout, settings, model, hooks, precomputed, own ?? hooks.helper);
+  } finally {
+    own?.close();
+  }
+}
+
+/** Polygons on the etch layers (0 when a layer is missing: selectEtchLayers then reports it). */
+function etchPolygonCount(layout: FlatLayout, settings: AnalysisSettings): number {
+  let n = 0;
+  for (const ref of settings.etchLayers) n += layout.layers.find((s) => s.layer === ref.layer && s.datatype === ref.datatype)?.count ?? 0;
+  return n;
+}
+
+function analyse(layout: FlatLayout, settings: AnalysisSettings, model: ProcessModel, hooks: AnalysisHooks, precomputed: PrecomputedStages | undefined, helper: TaskThread | null | undefined): AnalysisResult {
   const clock = new StageClock(hooks);
   const limits = resolveLimits(settings, model);
   const kernel = resolveKernel(settings, model);
@@ -131,7 +159,7 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   clock.begin('coverage');
   const regionDbu = layout.bboxDbu ?? undefined;
   // One exact union of the etch layers serves coverage and features (it is the expensive part on big layouts).
-  const regions = set ? openRegions(set, layout.dbuUm, { polarity, regionDbu }) : null;
+  const regions = set ? openRegionsInThreads(set, layout.dbuUm, { polarity, regionDbu }, helper ?? null) : null;
   clock.within(0.7); // cancel check point between the union and the raster (each can take seconds)
   const coverage = regions ? Float32Array.from(rasterizeOpenRegions(regions, grid)) : (precomputed as PrecomputedStages).coverage;
   const globalDensity = dieDensity(coverage, grid, frame.dieBboxUm);
@@ -160,7 +188,7 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   // stitched openings instead (precomputed).
   let localWidth: Float32Array | null = null;
   const featureTable = regions
-    ? featureTableInThreads(regions, { polarity, regionDbu }, {}, () => (localWidth = localWidthFromCoverage(coverage, grid)))
+    ? featureTableInThreads(regions, { polarity, regionDbu }, {}, () => (localWidth = localWidthFromCoverage(coverage, grid)), helper)
     : (precomputed as PrecomputedStages).features;
 
   clock.begin('local-width');
