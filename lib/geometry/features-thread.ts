@@ -4,8 +4,12 @@
  * claim counter alongside the calling thread and posts its rows as a column table (buffers transferred).
  */
 import { workerData } from 'node:worker_threads';
+import { lowerThreadPriority } from '../jobs/thread-priority';
 import { serveTasks, type HelperWorkerData } from '../threads/sync-helper';
 import { featuresHelperTask } from './parallel-features';
 
 const data = workerData as HelperWorkerData | null;
-if (data && data.done instanceof Int32Array) serveTasks(data, { features: featuresHelperTask });
+if (data && data.done instanceof Int32Array) {
+  if (data.lowerPriority) lowerThreadPriority();
+  serveTasks(data, { features: featuresHelperTask });
+}

@@ -25,7 +25,8 @@ import { densityGradientFlags, FlagCollector, windowDensityFlags, type Flag, typ
 import { offerTableFlags } from './table-flags';
 import type { GridMap } from './grid-file';
 import { featureResultList, type FeatureResultTable } from './feature-results';
-import { predictFeatureTable, type FeatureResult } from './predict-features';
+import { type FeatureResult } from './predict-features';
+import { predictInThreads } from './parallel-predict';
 import { featureRisk, paintColumnsOf, paintFeatureColumns, type FeatureMaps } from './result-maps';
 import { resolveKernel, resolveLimits, type AnalysisSettings } from './settings';
 import { buildSummary, type AnalysisSummary } from './summary';
@@ -195,10 +196,10 @@ function analyse(layout: FlatLayout, settings: AnalysisSettings, model: ProcessM
   localWidth ??= localWidthFromCoverage(coverage, grid);
 
   clock.begin('prediction');
-  const results = predictFeatureTable(featureTable, effective, grid, predictionModel, {
+  const results = predictInThreads(featureTable, effective, grid, predictionModel, {
     exposedFraction: globalDensity,
     onTick: (done, total) => clock.within(total > 0 ? done / total : 1),
-  });
+  }, helper ?? null);
 
   clock.begin('maps');
   const n = results.count;

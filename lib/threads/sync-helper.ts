@@ -11,12 +11,14 @@
  */
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { MessageChannel, receiveMessageOnPort, Worker, type MessagePort, type TransferListItem } from 'node:worker_threads';
+import { isMainThread, MessageChannel, receiveMessageOnPort, Worker, type MessagePort, type TransferListItem } from 'node:worker_threads';
 
 /** What the helper thread's entry receives as workerData. */
 export interface HelperWorkerData {
   port: MessagePort;
   done: Int32Array;
+  /** Started from a worker thread (the app's analysis pool, which runs at lowered priority): lower the helper's too. */
+  lowerPriority: boolean;
 }
 
 export interface HelperRequest {
@@ -105,7 +107,7 @@ export class SyncHelper implements TaskThread {
 export function startSyncHelper(built: URL, source: URL): SyncHelper | null {
   const channel = new MessageChannel();
   const done = new Int32Array(new SharedArrayBuffer(4));
-  const data: HelperWorkerData = { port: channel.port2, done };
+  const data: HelperWorkerData = { port: channel.port2, done, lowerPriority: !isMainThread };
   const opts = { workerData: data, transferList: [channel.port2] };
   let worker: Worker | null = null;
   try {
