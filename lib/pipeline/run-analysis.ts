@@ -12,9 +12,10 @@
  * Per-opening data stays in columns (FeatureTable, FeatureResultTable): a million objects would cost seconds of
  * garbage collection; `features` builds objects only when read.
  */
-import { effectiveDensity, localWidthFromCoverage, rasterizeOpenRegions, windowDensity, type FeatureTable, type Grid, type WindowDensity } from '../geometry';
+import { effectiveDensity, localWidthFromCoverage, windowDensity, type FeatureTable, type Grid, type WindowDensity } from '../geometry';
 import { featureTableInThreads } from '../geometry/parallel-features';
 import { openRegionsInThreads } from '../geometry/parallel-union';
+import { coverageInThreads } from '../geometry/parallel-raster';
 import type { TaskThread } from '../threads/sync-helper';
 import { startAnalysisHelper } from './analysis-helper';
 import type { ProcessModel } from '../etch';
@@ -162,7 +163,7 @@ function analyse(layout: FlatLayout, settings: AnalysisSettings, model: ProcessM
   // One exact union of the etch layers serves coverage and features (it is the expensive part on big layouts).
   const regions = set ? openRegionsInThreads(set, layout.dbuUm, { polarity, regionDbu }, helper ?? null) : null;
   clock.within(0.7); // cancel check point between the union and the raster (each can take seconds)
-  const coverage = regions ? Float32Array.from(rasterizeOpenRegions(regions, grid)) : (precomputed as PrecomputedStages).coverage;
+  const coverage = regions ? coverageInThreads(regions, grid, helper ?? null) : (precomputed as PrecomputedStages).coverage;
   const globalDensity = dieDensity(coverage, grid, frame.dieBboxUm);
 
   clock.begin('window-density');
