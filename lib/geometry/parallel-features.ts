@@ -2,9 +2,9 @@
  * Features of big layouts measured on two threads, behind a synchronous call (the pipeline is synchronous): the
  * caller and a worker thread take chunks of the same regions (shared memory, no copy per feature) from a shared
  * counter until none are left — so a thread slowed by a busy machine simply takes fewer — then the caller waits for
- * the worker's column table (transferred buffers; lib/threads/sync-helper.ts). Same features
- * and ids as `featureTableFromRegions`: rows are numbered with their root piece as the last tie-break, so the split
- * does not show. Chunks the worker took but did not deliver (it failed or timed out) are measured by the caller.
+ * the worker's column table (transferred buffers; lib/threads/sync-helper.ts). Each thread sorts its own rows into
+ * id order and the caller merges the two. Same features and ids as `featureTableFromRegions`: rows are ordered with
+ * their root piece as the last tie-break, so the split does not show. Chunks the worker took but did not deliver (it failed or timed out) are measured by the caller.
  *
  * The worker is the caller's helper thread when it has one (the analysis keeps one for all its stages), else
  * features-thread: the compiled sibling `features-thread.mjs` when present (bundles), else the TypeScript source
@@ -14,7 +14,7 @@
 import { availableParallelism } from 'node:os';
 import { startSyncHelper, type TaskThread } from '../threads/sync-helper';
 import { packFeatureTable, unpackFeatureTable } from './feature-pack';
-import { concatFeatureTables, featureList, numberFeatureTable, type FeatureTable } from './feature-table';
+import { featureList, mergeSortedRows, sortKeyedRows, type FeatureTable } from './feature-table';
 import { FEATURE_CHUNK, featureTableFromRegions, measureFeatures, type FeatureClaim, type FeatureOptions } from './features';
 import type { OpenRegions } from './region-builder';
 import type { Feature } from './types';
@@ -44,9 +44,10 @@ interface FeaturesTask {
 /** Helper-thread side: measure chunks from the shared claim counter; the rows go back as transferred columns. */
 export function featuresHelperTask(payload: unknown): { result: unknown; transfer: ArrayBuffer[] } {
   const { regions, opts, claim } = payload as FeaturesTask;
-  const m = measureFeatures(regions, opts, claim);
+  // Sorted here, in parallel with the caller sorting its own rows: the caller then only merges.
+  const m = sortKeyedRows(measureFeatures(regions, opts, claim));
   const { table, transfer } = packFeatureTable(m.table);
-  return { result: { table, roots: m.roots }, transfer: [...transfer, m.roots.buffer as ArrayBuffer] };
+  return { result: { table, roots: m.roots, sorted: true }, transfer: [...transfer, m.roots.buffer as ArrayBuffer] };
 }
 
 /** `chunk`: piece indices per claimed chunk (default FEATURE_CHUNK; tests use small ones to exercise the split). */
@@ -103,16 +104,15 @@ export function featureTableInThreads(
       meanwhile();
       info.meanwhileRan = true;
     }
-    const mine = measureFeatures(regions, featureOpts, { next, owner, me: ME, chunk });
-    const parts = [mine];
+    const parts = [sortKeyedRows(measureFeatures(regions, featureOpts, { next, owner, me: ME, chunk }))];
     let theirs = 0;
     for (let c = 0; c < chunks; c++) if (Atomics.load(owner, c) === WORKER) theirs++;
     // The worker is at most one chunk behind unless it is stuck; allow generous slack (start-up, a busy machine).
-    const msg = theirs > 0 ? (thread.wait(id, Math.max(60_000, 4 * (performance.now() - t0))) as { table?: unknown; roots?: unknown } | null) : null;
+    const msg = theirs > 0 ? (thread.wait(id, Math.max(60_000, 4 * (performance.now() - t0))) as { table?: unknown; roots?: unknown; sorted?: unknown } | null) : null;
     if (msg?.table && msg.roots instanceof Float64Array) {
       const table = unpackFeatureTable(msg.table);
       if (msg.roots.length !== table.count) throw new Error('features thread: roots and rows differ in number');
-      parts.push({ table, roots: msg.roots });
+      parts.push(msg.sorted === true ? { table, roots: msg.roots } : sortKeyedRows({ table, roots: msg.roots }));
       info.threads = 2;
     }
     // Chunks nobody delivered (the worker failed, timed out, or had claimed without recording it yet): stop further
@@ -123,14 +123,8 @@ export function featureTableInThreads(
       const o = Atomics.load(owner, c);
       if (o !== ME && !(o === WORKER && info.threads === 2)) todo.push(c);
     }
-    if (todo.length) parts.push(measureFeatures(regions, featureOpts, { only: Uint32Array.from(todo), chunk }));
-    const roots = new Float64Array(parts.reduce((s, p) => s + p.roots.length, 0));
-    let at = 0;
-    for (const p of parts) {
-      roots.set(p.roots, at);
-      at += p.roots.length;
-    }
-    return numberFeatureTable(concatFeatureTables(parts.map((p) => p.table)), roots);
+    if (todo.length) parts.push(sortKeyedRows(measureFeatures(regions, featureOpts, { only: Uint32Array.from(todo), chunk })));
+    return mergeSortedRows(parts);
   } finally {
     if (!helper) thread.close();
   }
