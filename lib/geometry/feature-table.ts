@@ -55,9 +55,10 @@ export interface FeatureRow {
   pieces: number;
 }
 
-export function emptyFeatureTable(capacity = 0): FeatureTable {
-  const t = { count: 0, id: new Uint32Array(capacity), kind: new Uint8Array(capacity), widthExact: new Uint8Array(capacity), pieces: new Uint32Array(capacity) } as FeatureTable;
-  for (const c of FEATURE_F64_COLUMNS) t[c] = new Float64Array(capacity);
+/** `alloc` supplies the columns' memory (shared memory when another thread reads the table). */
+export function emptyFeatureTable(capacity = 0, alloc: (bytes: number) => ArrayBufferLike = (b) => new ArrayBuffer(b)): FeatureTable {
+  const t = { count: 0, id: new Uint32Array(alloc(4 * capacity)), kind: new Uint8Array(alloc(capacity)), widthExact: new Uint8Array(alloc(capacity)), pieces: new Uint32Array(alloc(4 * capacity)) } as FeatureTable;
+  for (const c of FEATURE_F64_COLUMNS) t[c] = new Float64Array(alloc(8 * capacity));
   return t;
 }
 
@@ -279,9 +280,10 @@ function keyOrder(a: number, b: number): number {
 /**
  * Parts each sorted by `sortKeyedRows`, merged into one table numbered 1..n: the same table as
  * `numberFeatureTable(concatFeatureTables(tables), concatenated roots)` (the order is total: roots are unique), at
- * the cost of a merge instead of a sort of all rows — threads sort their own parts at the same time.
+ * the cost of a merge instead of a sort of all rows — threads sort their own parts at the same time. `alloc`: as
+ * for emptyFeatureTable.
  */
-export function mergeSortedRows(parts: readonly KeyedRows[]): FeatureTable {
+export function mergeSortedRows(parts: readonly KeyedRows[], alloc?: (bytes: number) => ArrayBufferLike): FeatureTable {
   const live = parts.filter((p) => p.table.count > 0);
   const n = live.reduce((s, p) => s + p.table.count, 0);
   const from = new Uint8Array(n), row = new Uint32Array(n);
@@ -306,7 +308,7 @@ export function mergeSortedRows(parts: readonly KeyedRows[]): FeatureTable {
     row[k] = at[best] as number;
     at[best]!++;
   }
-  const out = emptyFeatureTable(n);
+  const out = emptyFeatureTable(n, alloc);
   out.count = n;
   const gather = <A extends Float64Array | Uint32Array | Uint8Array>(pick: (t: FeatureTable) => A, dst: A) => {
     const srcs = live.map((p) => pick(p.table));

@@ -124,7 +124,8 @@ export function featureTableInThreads(
       if (o !== ME && !(o === WORKER && info.threads === 2)) todo.push(c);
     }
     if (todo.length) parts.push(sortKeyedRows(measureFeatures(regions, featureOpts, { only: Uint32Array.from(todo), chunk })));
-    return mergeSortedRows(parts);
+    // In shared memory: the prediction stage shares these columns with the helper thread without a copy.
+    return mergeSortedRows(parts, (bytes) => new SharedArrayBuffer(bytes));
   } finally {
     if (!helper) thread.close();
   }

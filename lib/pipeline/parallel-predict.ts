@@ -35,6 +35,7 @@ interface PredictTask {
 const sab = (bytes: number): SharedArrayBuffer => new SharedArrayBuffer(bytes);
 
 function sharedCopy<T extends Float64Array | Float32Array | Uint32Array | Uint8Array>(a: T, n = a.length): T {
+  if (a.buffer instanceof SharedArrayBuffer) return a; // already shared (the two-thread features' table, the raster)
   const Ctor = a.constructor as { new (b: SharedArrayBuffer): T; BYTES_PER_ELEMENT: number };
   const out = new Ctor(sab(n * Ctor.BYTES_PER_ELEMENT));
   out.set(a.subarray(0, n));
