@@ -12,7 +12,7 @@
  * Per-opening data stays in columns (FeatureTable, FeatureResultTable): a million objects would cost seconds of
  * garbage collection; `features` builds objects only when read.
  */
-import { effectiveDensity, localWidthFromCoverage, windowDensity, type FeatureTable, type Grid, type WindowDensity } from '../geometry';
+import { localWidthFromCoverage, windowDensity, type FeatureTable, type Grid, type WindowDensity } from '../geometry';
 import { featureTableInThreads } from '../geometry/parallel-features';
 import { openRegionsInThreads } from '../geometry/parallel-union';
 import { coverageInThreads } from '../geometry/parallel-raster';
@@ -28,7 +28,8 @@ import type { GridMap } from './grid-file';
 import { featureResultList, type FeatureResultTable } from './feature-results';
 import { type FeatureResult } from './predict-features';
 import { predictInThreads } from './parallel-predict';
-import { featureRisk, paintColumnsOf, paintFeatureColumns, type FeatureMaps } from './result-maps';
+import { featureRisk, paintColumnsOf, type FeatureMaps } from './result-maps';
+import { effectiveOffloaded, paintOffloaded } from './offload';
 import { resolveKernel, resolveLimits, type AnalysisSettings } from './settings';
 import { buildSummary, type AnalysisSummary } from './summary';
 
@@ -166,7 +167,12 @@ function analyse(layout: FlatLayout, settings: AnalysisSettings, model: ProcessM
   const coverage = regions ? coverageInThreads(regions, grid, helper ?? null) : (precomputed as PrecomputedStages).coverage;
   const globalDensity = dieDensity(coverage, grid, frame.dieBboxUm);
 
+  // Whole computations go to the helper only for big layouts (small ones are done before a message would arrive).
+  const offloadTo = helper && set && set.count >= MIN_HELPER_POLYGONS ? helper : null;
+
   clock.begin('window-density');
+  // The convolution runs on the helper thread while this thread computes the windows.
+  const effectiveLater = effectiveOffloaded(offloadTo, coverage, grid, { lengthUm: kernel.lengthUm, kernel: kernel.kind, outside: kernel.outside });
   const regionCoverage = dieRegionCoverage(grid, frame.dieBboxUm);
   const windows: WindowDensity[] = settings.densityWindows.map((w, n) => {
     clock.within(n / settings.densityWindows.length);
@@ -182,7 +188,7 @@ function analyse(layout: FlatLayout, settings: AnalysisSettings, model: ProcessM
   });
 
   clock.begin('effective-density');
-  const effective = effectiveDensity(coverage, grid, { lengthUm: kernel.lengthUm, kernel: kernel.kind, outside: kernel.outside });
+  const effective = effectiveLater();
 
   clock.begin('features');
   // Two threads on big layouts, same result. The local-width map (needs only the coverage) is computed on this
@@ -204,7 +210,7 @@ function analyse(layout: FlatLayout, settings: AnalysisSettings, model: ProcessM
 
   clock.begin('maps');
   const n = results.count;
-  const risks = new Float64Array(n);
+  const risks = new Float64Array(offloadTo ? new SharedArrayBuffer(8 * n) : new ArrayBuffer(8 * n));
   const riskInput = { depthUm: 0, overEtchUm: 0, widthUm: 0 };
   for (let k = 0; k < n; k++) {
     riskInput.depthUm = results.depthUm[k] as number;
@@ -212,7 +218,8 @@ function analyse(layout: FlatLayout, settings: AnalysisSettings, model: ProcessM
     riskInput.widthUm = results.widthUm[k] as number;
     risks[k] = featureRisk(riskInput, limits);
   }
-  const painted = paintFeatureColumns(paintColumnsOf(results), risks, coverage, grid);
+  // Painted on the helper thread while this thread collects the flags.
+  const paintedLater = paintOffloaded(offloadTo, paintColumnsOf(results), risks, coverage, grid);
 
   clock.begin('flags');
   const collector = new FlagCollector(settings.maxListedFlags);
@@ -226,6 +233,7 @@ function analyse(layout: FlatLayout, settings: AnalysisSettings, model: ProcessM
   const flags = collector.list(resolve);
 
   clock.begin('summary');
+  const painted = paintedLater();
   const maps = buildMaps(grid, coverage, windows, effective, localWidth, painted, { kernelLengthUm: kernel.lengthUm, kernel: kernel.kind, modelName: model.name, modelVersion: model.version });
   const summary = buildSummary({
     layout,
