@@ -77,7 +77,7 @@ export function coverageInThreads(regions: OpenRegions, grid: Grid, helper: Task
   const n = Math.max(1, Math.min(tune.bands ?? BANDS, grid.ny));
   const bounds = Uint32Array.from({ length: n + 1 }, (_, b) => Math.round((b * grid.ny) / n));
   const task: RasterTask = {
-    regions: { ...regions, coords: shared(regions.coords), ringOffsets: shared(regions.ringOffsets), pieceRings: shared(regions.pieceRings), pieceCoverage: shared(regions.pieceCoverage), seamA: new Uint32Array(0), seamB: new Uint32Array(0), seamLen: new Float64Array(0) },
+    regions: { ...regions, coords: shared(regions.coords), ringOffsets: shared(regions.ringOffsets), pieceRings: shared(regions.pieceRings), pieceCoverage: shared(regions.pieceCoverage), ...(regions.pieceY ? { pieceY: shared(regions.pieceY) } : {}), seamA: new Uint32Array(0), seamB: new Uint32Array(0), seamLen: new Float64Array(0) },
     grid,
     out: new Float32Array(sab(4 * grid.nx * grid.ny)),
     bounds,

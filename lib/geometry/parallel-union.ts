@@ -29,6 +29,8 @@ export interface UnionChunk {
   lines: Map<string, number[]>;
   covCoords: Float64Array;
   covRingOffsets: Uint32Array;
+  /** Lowest and highest y of each piece's points (OpenRegions.pieceY). */
+  pieceY: Float64Array;
 }
 
 /** What the helper receives (all typed arrays over shared memory). */
@@ -75,7 +77,22 @@ export function unionChunk(set: PolygonSet, plan: UnionPlan, t0: number, t1: num
   }
   const b = new Builder(2 * points);
   unionTileRange(set, plan, t0, t1, b);
+  const pieces = b.pieceRings.length - 1;
+  const pieceY = new Float64Array(2 * pieces);
+  const rings = b.ringOffsets.data, starts = b.pieceRings.data, xy = b.coords;
+  for (let q = 0; q < pieces; q++) {
+    let lo = Infinity, hi = -Infinity;
+    const e = rings[starts[q + 1] as number] as number;
+    for (let k = rings[starts[q] as number] as number; k < e; k++) {
+      const y = xy[2 * k + 1] as number;
+      if (y < lo) lo = y;
+      if (y > hi) hi = y;
+    }
+    pieceY[2 * q] = lo;
+    pieceY[2 * q + 1] = hi;
+  }
   return {
+    pieceY,
     coords: b.coords.subarray(0, b.coordLen),
     ringOffsets: b.ringOffsets.data.subarray(0, b.ringOffsets.length),
     pieceRings: b.pieceRings.data.subarray(0, b.pieceRings.length),
@@ -104,7 +121,7 @@ export function unionHelperTask(payload: unknown): { result: unknown; transfer: 
   const done = claimUnionChunks(payload as UnionTask, HELPER);
   const transfer: ArrayBuffer[] = [];
   for (const { out } of done) {
-    for (const a of [out.coords, out.ringOffsets, out.pieceRings, out.pieceCoverage, out.covCoords, out.covRingOffsets]) transfer.push(a.buffer as ArrayBuffer);
+    for (const a of [out.coords, out.ringOffsets, out.pieceRings, out.pieceCoverage, out.covCoords, out.covRingOffsets, out.pieceY]) transfer.push(a.buffer as ArrayBuffer);
   }
   return { result: done, transfer };
 }
@@ -119,7 +136,9 @@ function isChunk(x: unknown): x is UnionChunk {
     o.pieceCoverage instanceof Uint8Array &&
     o.lines instanceof Map &&
     o.covCoords instanceof Float64Array &&
-    o.covRingOffsets instanceof Uint32Array
+    o.covRingOffsets instanceof Uint32Array &&
+    o.pieceY instanceof Float64Array &&
+    o.pieceY.length === 2 * (o.pieceRings.length - 1)
   );
 }
 
@@ -137,6 +156,7 @@ export function joinUnionChunks(outs: readonly UnionChunk[], dbuUm: number, plan
   const ringOffsets = new Uint32Array(sharedAlloc((rings + 1) * 4));
   const pieceRings = new Uint32Array(sharedAlloc((pieces + 1) * 4));
   const pieceCoverage = new Uint8Array(sharedAlloc(Math.max(1, pieces))).subarray(0, pieces);
+  const pieceY = new Float64Array(sharedAlloc(16 * pieces));
   const coverageCoords = new Float64Array(covLen);
   const coverageRingOffsets = new Uint32Array(covRings + 1);
   const lines = new Map<string, number[]>();
@@ -146,6 +166,7 @@ export function joinUnionChunks(outs: readonly UnionChunk[], dbuUm: number, plan
     for (let r = 1; r < o.ringOffsets.length; r++) ringOffsets[ringBase + r] = (o.ringOffsets[r] as number) + pointBase;
     for (let q = 1; q < o.pieceRings.length; q++) pieceRings[pieceBase + q] = (o.pieceRings[q] as number) + ringBase;
     pieceCoverage.set(o.pieceCoverage, pieceBase);
+    pieceY.set(o.pieceY, 2 * pieceBase);
     for (const [key, list] of o.lines) {
       let to = lines.get(key);
       if (!to) lines.set(key, (to = []));
@@ -177,6 +198,7 @@ export function joinUnionChunks(outs: readonly UnionChunk[], dbuUm: number, plan
     pieceCoverage,
     coverageCoords,
     coverageRingOffsets,
+    pieceY,
   };
 }
 

@@ -29,6 +29,11 @@ export interface OpenRegions {
   /** Per piece: 1 when its rings are rasterised for coverage. Tiles where a slanted edge crosses the tile boundary
    * give 0 here and supply `coverageRings` instead (see processTile). */
   pieceCoverage: Uint8Array;
+  /**
+   * Optional: per piece the lowest and highest y of its points (dbu), two per piece. The two-thread union provides
+   * it (each thread for its own tiles), so row bands of the raster skip pieces without reading their points.
+   */
+  pieceY?: Float64Array;
   /** Coverage-only rings (signed: counter-clockwise adds, clockwise subtracts), dbu, float coordinates. */
   coverageCoords: Float64Array;
   coverageRingOffsets: Uint32Array;

@@ -8,11 +8,18 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openRegions, rasterizeOpenRegions, type Grid } from '@/lib/geometry';
 import { accumulateRegions, coverageFromDifferences } from '@/lib/geometry/raster';
 import { coverageInThreads } from '@/lib/geometry/parallel-raster';
+import { openRegionsInThreads } from '@/lib/geometry/parallel-union';
 import { startAnalysisHelper } from '@/lib/pipeline/analysis-helper';
 import type { TaskThread } from '@/lib/threads/sync-helper';
 import { makeSet, mulberry32, ngon, rect, type Ring } from './make-set';
 
+const layoutOpts = { regionDbu: [0, 0, 310_000, 310_000] as [number, number, number, number], tileDbu: 11_000 };
+
 function layout(seed: number) {
+  return openRegions(layoutSet(seed), 0.001, layoutOpts);
+}
+
+function layoutSet(seed: number) {
   const rnd = mulberry32(seed);
   const rings: Ring[] = [];
   for (let k = 0; k < 2_500; k++) {
@@ -20,7 +27,7 @@ function layout(seed: number) {
     if (k % 6 === 0) rings.push(ngon(x, y, 400 + Math.floor(rnd() * 4_000), 24, rnd()));
     else rings.push(rect(x, y, x + 200 + Math.floor(rnd() * 9_000), y + 200 + Math.floor(rnd() * 2_000)));
   }
-  return openRegions(makeSet(rings), 0.001, { regionDbu: [0, 0, 310_000, 310_000], tileDbu: 11_000 });
+  return makeSet(rings);
 }
 
 let helper: TaskThread | null = null;
@@ -41,6 +48,10 @@ describe('coverageInThreads', () => {
         expect(Array.from(coverageInThreads(regions, grid, helper, { bands, minPieces: 0 })), `${bands} bands`).toEqual(Array.from(want));
       }
       expect(Array.from(coverageInThreads(regions, grid, null))).toEqual(Array.from(want));
+      // The two-thread union's regions carry each piece's y extent; bands then skip pieces by it.
+      const withY = openRegionsInThreads(layoutSet(1), 0.001, layoutOpts, helper, { minPolygons: 0, chunks: 5 });
+      expect(withY.pieceY).toBeInstanceOf(Float64Array);
+      for (const bands of [3, grid.ny]) expect(Array.from(coverageInThreads(withY, grid, helper, { bands, minPieces: 0 }))).toEqual(Array.from(want));
     }
   });
 

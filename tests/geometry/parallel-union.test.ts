@@ -14,9 +14,24 @@ import { startAnalysisHelper } from '@/lib/pipeline/analysis-helper';
 import type { TaskThread } from '@/lib/threads/sync-helper';
 import { makeSet, mulberry32, ngon, rect, type Ring } from './make-set';
 
-/** Every field as plain values, so shared and ordinary typed arrays compare by content. */
+/**
+ * Every field as plain values, so shared and ordinary typed arrays compare by content. `pieceY` (only the
+ * two-thread union provides it) is checked against the pieces' own points and left out of the comparison.
+ */
 function plain(r: OpenRegions): Record<string, unknown> {
-  return Object.fromEntries(Object.entries(r).map(([k, v]) => [k, ArrayBuffer.isView(v) ? Array.from(v as unknown as ArrayLike<number>) : v]));
+  const { pieceY, ...rest } = r;
+  if (pieceY) {
+    expect(pieceY.length).toBe(2 * r.pieceCount);
+    for (let p = 0; p < r.pieceCount; p++) {
+      let lo = Infinity, hi = -Infinity;
+      for (let k = r.ringOffsets[r.pieceRings[p] as number] as number; k < (r.ringOffsets[r.pieceRings[p + 1] as number] as number); k++) {
+        lo = Math.min(lo, r.coords[2 * k + 1] as number);
+        hi = Math.max(hi, r.coords[2 * k + 1] as number);
+      }
+      if (pieceY[2 * p] !== lo || pieceY[2 * p + 1] !== hi) throw new Error(`pieceY of piece ${p}: ${pieceY[2 * p]}..${pieceY[2 * p + 1]}, points ${lo}..${hi}`);
+    }
+  }
+  return Object.fromEntries(Object.entries(rest).map(([k, v]) => [k, ArrayBuffer.isView(v) ? Array.from(v as unknown as ArrayLike<number>) : v]));
 }
 
 /** Holes, trenches that overlap into clusters, 24-gons (slanted edges), a few long lines crossing many tiles. */
