@@ -25,6 +25,18 @@ export function workerStaleReason(root = projectRoot()): string | null {
   return fileStaleReason(root, OUT_REL) ?? fileStaleReason(root, UPLOAD_OUT_REL) ?? fileStaleReason(root, FEATURES_OUT_REL) ?? fileStaleReason(root, HELPER_OUT_REL);
 }
 
+/**
+ * The compiled analysis helper thread (analysis-helper-thread.mjs) when it is built and up to date, else null:
+ * code run from source (the CLI) starts it from there instead of through tsx, which loads in a fraction of the time.
+ */
+export function freshHelperThreadFile(root = projectRoot()): string | null {
+  try {
+    return fileStaleReason(root, HELPER_OUT_REL) === null ? path.join(/*turbopackIgnore: true*/ root, HELPER_OUT_REL) : null;
+  } catch {
+    return null;
+  }
+}
+
 function fileStaleReason(root: string, outRel: string): string | null {
   const out = path.join(/*turbopackIgnore: true*/ root, outRel);
   const manifest = `${out}.inputs.json`;
