@@ -9,7 +9,8 @@ import { featuresHelperTask } from '../geometry/parallel-features';
 import { unionHelperTask } from '../geometry/parallel-union';
 import { rasterHelperTask } from '../geometry/parallel-raster';
 import { lowerThreadPriority } from '../jobs/thread-priority';
-import { serveTasks, type HelperWorkerData } from '../threads/sync-helper';
+import { secondCoreFree, serveTasks, type HelperWorkerData } from '../threads/sync-helper';
+import { warmUpGeometry } from '../geometry/warm-up';
 import { effectiveHelperTask, paintHelperTask } from './offload';
 import { predictHelperTask } from './parallel-predict';
 
@@ -17,5 +18,8 @@ const data = workerData as HelperWorkerData | null;
 if (data && data.done instanceof Int32Array) {
   // Under the app's analysis pool the request thread must keep winning the CPU (lib/jobs/thread-priority.ts).
   if (data.lowerPriority) lowerThreadPriority();
+  // Tasks posted meanwhile wait in the port's queue; the caller does their shares alone until this is done. Only
+  // when the union will be split (run-analysis.ts asks the same question).
+  if (secondCoreFree()) warmUpGeometry();
   serveTasks(data, { union: unionHelperTask, raster: rasterHelperTask, features: featuresHelperTask, predict: predictHelperTask, effective: effectiveHelperTask, paint: paintHelperTask });
 }

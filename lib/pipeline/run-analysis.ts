@@ -16,7 +16,7 @@ import { localWidthFromCoverage, windowDensity, type FeatureTable, type Grid, ty
 import { featureTableInThreads } from '../geometry/parallel-features';
 import { openRegionsInThreads } from '../geometry/parallel-union';
 import { coverageInThreads } from '../geometry/parallel-raster';
-import type { TaskThread } from '../threads/sync-helper';
+import { secondCoreFree, type TaskThread } from '../threads/sync-helper';
 import { startAnalysisHelper } from './analysis-helper';
 import type { ProcessModel } from '../etch';
 import type { FlatLayout } from '../layout/types';
@@ -162,9 +162,11 @@ function analyse(layout: FlatLayout, settings: AnalysisSettings, model: ProcessM
   clock.begin('coverage');
   const regionDbu = layout.bboxDbu ?? undefined;
   // One exact union of the etch layers serves coverage and features (it is the expensive part on big layouts).
-  const regions = set ? openRegionsInThreads(set, layout.dbuUm, { polarity, regionDbu }, helper ?? null) : null;
+  // The union and raster splits have a large fixed cost: only when the machine has a core to spare.
+  const coverageHelper = helper && secondCoreFree() ? helper : null;
+  const regions = set ? openRegionsInThreads(set, layout.dbuUm, { polarity, regionDbu }, coverageHelper) : null;
   clock.within(0.7); // cancel check point between the union and the raster (each can take seconds)
-  const coverage = regions ? coverageInThreads(regions, grid, helper ?? null) : (precomputed as PrecomputedStages).coverage;
+  const coverage = regions ? coverageInThreads(regions, grid, coverageHelper) : (precomputed as PrecomputedStages).coverage;
   const globalDensity = dieDensity(coverage, grid, frame.dieBboxUm);
 
   // Whole computations go to the helper only for big layouts (small ones are done before a message would arrive).
