@@ -4,6 +4,8 @@
 //   lib/uploads/check-worker.ts  → upload-worker.mjs   (the upload check pool)
 //   lib/geometry/features-thread.ts → features-thread.mjs (the second thread that measures openings; the analysis
 //                                   worker finds it beside itself)
+//   lib/pipeline/analysis-helper-thread.ts → analysis-helper-thread.mjs (the analysis's second thread for the
+//                                   union, features and other split stages; found beside the analysis worker)
 //   lib/viewer/index-worker.ts   → viewer-index-worker.mjs (the canvas viewer's polygon indexes, off the main thread)
 //   lib/pipeline/tiled/tile-thread.ts → tile-thread.mjs (tile jobs of a tiled analysis on worker threads; the
 //                                   analysis worker finds it beside itself, as it finds features-thread.mjs)
@@ -22,6 +24,7 @@ const ENTRIES = [
   { entry: 'lib/pipeline/worker.ts', out: 'analysis-worker.mjs' },
   { entry: 'lib/uploads/check-worker.ts', out: 'upload-worker.mjs' },
   { entry: 'lib/geometry/features-thread.ts', out: 'features-thread.mjs' },
+  { entry: 'lib/pipeline/analysis-helper-thread.ts', out: 'analysis-helper-thread.mjs' },
   { entry: 'lib/viewer/index-worker.ts', out: 'viewer-index-worker.mjs' },
   { entry: 'lib/pipeline/tiled/tile-thread.ts', out: 'tile-thread.mjs' },
 ];

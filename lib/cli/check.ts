@@ -21,6 +21,7 @@ import { layerOption, numberOption, parseCommandArgs, printLayoutWarnings, runCo
 import { openLayoutTileSource } from '../layout/open-tile-source';
 import type { TileSource } from '../layout/tile-source';
 import { runTiledAnalysis } from '../pipeline/tiled/run-tiled';
+import { startAnalysisHelper } from '../pipeline/analysis-helper';
 
 const HELP = `usage: npm run --silent cli -- check FILE --layer L/D --model MODEL.json [options]
 
@@ -242,10 +243,13 @@ async function check(values: Values, positionals: string[]): Promise<number> {
   // Tiled: the file is indexed on disk and read one tile at a time (GDSII larger than memory); else read whole.
   let source: TileSource | null = null;
   let layout: FlatLayout | null = null;
+  // The analysis's helper thread starts now, so its start-up (module loading) overlaps reading the file.
+  const helper = str('tiles') === undefined ? startAnalysisHelper() : null;
   try {
     if (str('tiles') !== undefined) source = await openLayoutTileSource(file, topCell !== undefined ? { topCell } : {});
     else layout = await readLayoutFile(file, topCell !== undefined ? { topCell } : {});
   } catch (err) {
+    helper?.close();
     throw layoutError(err);
   }
   printLayoutWarnings(file, source ? source.header.warnings : layout?.warnings);
@@ -272,10 +276,12 @@ async function check(values: Values, positionals: string[]): Promise<number> {
       tiledNote = `tiles            ${t.tiles} of ${num(t.plan.tileUm)} µm, margin ${num(t.plan.marginDbu * t.plan.dbuUm)} µm, ${t.growJobs} re-read(s) for wider openings, ${t.threads || 'no'} worker thread(s), ${num(t.tilePhaseMs / 1000)} s`;
       const { marginReason, ...plan } = t.plan;
       tiledJson = { ...t, plan: { ...plan, marginReason } };
-    } else result = runAnalysis(layout as FlatLayout, settings.settings, model);
+    } else result = runAnalysis(layout as FlatLayout, settings.settings, model, { helper });
   } catch (err) {
     if (err instanceof AnalysisInputError) throw new CheckInputError(err.code, `${file}: ${err.message}`);
     throw err;
+  } finally {
+    helper?.close();
   }
 
   const outDir = str('out-dir');

@@ -55,9 +55,10 @@ export interface FeatureRow {
   pieces: number;
 }
 
-export function emptyFeatureTable(capacity = 0): FeatureTable {
-  const t = { count: 0, id: new Uint32Array(capacity), kind: new Uint8Array(capacity), widthExact: new Uint8Array(capacity), pieces: new Uint32Array(capacity) } as FeatureTable;
-  for (const c of FEATURE_F64_COLUMNS) t[c] = new Float64Array(capacity);
+/** `alloc` supplies the columns' memory (shared memory when another thread reads the table). */
+export function emptyFeatureTable(capacity = 0, alloc: (bytes: number) => ArrayBufferLike = (b) => new ArrayBuffer(b)): FeatureTable {
+  const t = { count: 0, id: new Uint32Array(alloc(4 * capacity)), kind: new Uint8Array(alloc(capacity)), widthExact: new Uint8Array(alloc(capacity)), pieces: new Uint32Array(alloc(4 * capacity)) } as FeatureTable;
+  for (const c of FEATURE_F64_COLUMNS) t[c] = new Float64Array(alloc(8 * capacity));
   return t;
 }
 
@@ -243,6 +244,80 @@ export function featureIdOrder(t: FeatureTable, tieBreak?: Float64Array): Uint32
 export function numberFeatureTable(t: FeatureTable, tieBreak?: Float64Array): FeatureTable {
   const n = t.count;
   const out = permuteFeatureTable(t, featureIdOrder(t, tieBreak));
+  for (let k = 0; k < n; k++) out.id[k] = k + 1;
+  return out;
+}
+
+/** Rows and their tie-break keys (the root piece: unique per row), as measured or sorted. */
+export interface KeyedRows {
+  table: FeatureTable;
+  roots: Float64Array;
+}
+
+/** The rows in id order (featureIdOrder with the roots as tie-break), ids left as they are. */
+export function sortKeyedRows(part: KeyedRows): KeyedRows {
+  const order = featureIdOrder(part.table, part.roots);
+  const roots = new Float64Array(order.length);
+  for (let k = 0; k < order.length; k++) roots[k] = part.roots[order[k] as number] as number;
+  return { table: permuteFeatureTable(part.table, order), roots };
+}
+
+const cmpBits = new Float64Array(2);
+const cmpWords = new Uint32Array(cmpBits.buffer);
+/** The radix sort's order on one key: numeric, -0 equal to 0, NaN placed by its sortable bit pattern. */
+function keyOrder(a: number, b: number): number {
+  if (a < b) return -1;
+  if (a > b) return 1;
+  if (a === b) return 0;
+  cmpBits[0] = a + 0;
+  cmpBits[1] = b + 0;
+  const sortable = (hi: number, lo: number) => (hi & 0x80000000 ? [~hi >>> 0, ~lo >>> 0] : [(hi | 0x80000000) >>> 0, lo]);
+  const [ah, al] = sortable(cmpWords[1] as number, cmpWords[0] as number) as [number, number];
+  const [bh, bl] = sortable(cmpWords[3] as number, cmpWords[2] as number) as [number, number];
+  return ah !== bh ? (ah < bh ? -1 : 1) : al !== bl ? (al < bl ? -1 : 1) : 0;
+}
+
+/**
+ * Parts each sorted by `sortKeyedRows`, merged into one table numbered 1..n: the same table as
+ * `numberFeatureTable(concatFeatureTables(tables), concatenated roots)` (the order is total: roots are unique), at
+ * the cost of a merge instead of a sort of all rows — threads sort their own parts at the same time. `alloc`: as
+ * for emptyFeatureTable.
+ */
+export function mergeSortedRows(parts: readonly KeyedRows[], alloc?: (bytes: number) => ArrayBufferLike): FeatureTable {
+  const live = parts.filter((p) => p.table.count > 0);
+  const n = live.reduce((s, p) => s + p.table.count, 0);
+  const from = new Uint8Array(n), row = new Uint32Array(n);
+  const at = live.map(() => 0);
+  const before = (a: number, b: number): boolean => {
+    const A = live[a] as KeyedRows, B = live[b] as KeyedRows, i = at[a] as number, j = at[b] as number;
+    const ta = A.table, tb = B.table;
+    return (
+      (keyOrder(ta.y0Um[i] as number, tb.y0Um[j] as number) ||
+        keyOrder(ta.x0Um[i] as number, tb.x0Um[j] as number) ||
+        keyOrder(ta.centroidXUm[i] as number, tb.centroidXUm[j] as number) ||
+        keyOrder(A.roots[i] as number, B.roots[j] as number)) < 0
+    );
+  };
+  for (let k = 0; k < n; k++) {
+    let best = -1;
+    for (let p = 0; p < live.length; p++) {
+      if ((at[p] as number) >= (live[p] as KeyedRows).table.count) continue;
+      if (best < 0 || before(p, best)) best = p;
+    }
+    from[k] = best;
+    row[k] = at[best] as number;
+    at[best]!++;
+  }
+  const out = emptyFeatureTable(n, alloc);
+  out.count = n;
+  const gather = <A extends Float64Array | Uint32Array | Uint8Array>(pick: (t: FeatureTable) => A, dst: A) => {
+    const srcs = live.map((p) => pick(p.table));
+    for (let k = 0; k < n; k++) dst[k] = (srcs[from[k] as number] as A)[row[k] as number] as number;
+  };
+  gather((t) => t.kind, out.kind);
+  gather((t) => t.widthExact, out.widthExact);
+  gather((t) => t.pieces, out.pieces);
+  for (const c of FEATURE_F64_COLUMNS) gather((t) => t[c], out[c]);
   for (let k = 0; k < n; k++) out.id[k] = k + 1;
   return out;
 }

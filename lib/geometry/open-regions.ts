@@ -36,13 +36,29 @@ export function setBbox(set: PolygonSet): Box | null {
 }
 
 /**
- * Compute the open area of `set` as tiled non-overlapping pieces (see module doc).
- * Fill rule nonzero. Tile clipping adds vertices on tile lines but no area.
+ * Everything the tiles need, computed once: per-polygon boxes, the region, the tile grid and the polygons of each
+ * tile (bucket[counts[t] .. counts[t + 1]) for tile t, row-major). `alloc` makes the arrays (shared memory when the
+ * tiles are split between threads, parallel-union.ts).
  */
-export function openRegions(set: PolygonSet, dbuUm: number, opts: OpenRegionsOptions = {}): OpenRegions {
+export interface UnionPlan {
+  polarity: Polarity;
+  region: Box;
+  tile: number;
+  ntx: number;
+  nty: number;
+  polyBox: Float64Array;
+  counts: Uint32Array;
+  bucket: Uint32Array;
+}
+
+type Alloc = (bytes: number) => ArrayBufferLike;
+const plainAlloc: Alloc = (bytes) => new ArrayBuffer(bytes);
+
+/** The plan of the union, or `{ empty }` (the region to report) when there is no region to tile. */
+export function planUnion(set: PolygonSet, opts: OpenRegionsOptions = {}, alloc: Alloc = plainAlloc): UnionPlan | { empty: Box } {
   const polarity = opts.polarity ?? 'clear';
   // Per-polygon boxes first; the set's bbox (default region) comes from them, saving a pass over the points.
-  const polyBox = new Float64Array(set.count * 4);
+  const polyBox = new Float64Array(alloc(set.count * 4 * 8));
   let X0 = Infinity, Y0 = Infinity, X1 = -Infinity, Y1 = -Infinity;
   const c = set.coords, off = set.offsets;
   for (let p = 0; p < set.count; p++) {
@@ -66,14 +82,13 @@ export function openRegions(set: PolygonSet, dbuUm: number, opts: OpenRegionsOpt
   }
   const bbox: Box | null = X0 <= X1 ? [X0, Y0, X1, Y1] : null;
   const region: Box | null = opts.regionDbu ?? bbox;
-  const b = new Builder(set.coords.length);
-  if (!region || region[2] <= region[0] || region[3] <= region[1]) return finishRegions(b, dbuUm, region ?? [0, 0, 0, 0], 1);
+  if (!region || region[2] <= region[0] || region[3] <= region[1]) return { empty: region ?? [0, 0, 0, 0] };
   const w = region[2] - region[0], h = region[3] - region[1];
   const tile = opts.tileDbu ?? Math.max(1, Math.ceil(Math.sqrt((w * h * 64) / Math.max(1, set.count))));
   const ntx = Math.max(1, Math.ceil(w / tile)), nty = Math.max(1, Math.ceil(h / tile));
 
   // Bucket polygon indices per tile (closed bbox test so touching polygons meet in some tile).
-  const counts = new Uint32Array(ntx * nty + 1);
+  const counts = new Uint32Array(alloc((ntx * nty + 1) * 4));
   const forEachTile = (p: number, fn: (t: number) => void) => {
     const bx0 = polyBox[4 * p] as number, by0 = polyBox[4 * p + 1] as number;
     const bx1 = polyBox[4 * p + 2] as number, by1 = polyBox[4 * p + 3] as number;
@@ -84,20 +99,34 @@ export function openRegions(set: PolygonSet, dbuUm: number, opts: OpenRegionsOpt
   };
   for (let p = 0; p < set.count; p++) forEachTile(p, (t) => { counts[t + 1]!++; });
   for (let t = 0; t < ntx * nty; t++) counts[t + 1]! += counts[t] as number;
-  const bucket = new Uint32Array(counts[ntx * nty] as number);
+  const bucket = new Uint32Array(alloc(Math.max(1, counts[ntx * nty] as number) * 4)).subarray(0, counts[ntx * nty] as number);
   const fill = counts.slice(0, ntx * nty);
   for (let p = 0; p < set.count; p++) forEachTile(p, (t) => { bucket[fill[t]!++] = p; });
+  return { polarity, region, tile, ntx, nty, polyBox, counts, bucket };
+}
 
-  for (let tj = 0; tj < nty; tj++) {
-    for (let ti = 0; ti < ntx; ti++) {
-      const t = tj * ntx + ti;
-      const tb: Box = [region[0] + ti * tile, region[1] + tj * tile, Math.min(region[2], region[0] + (ti + 1) * tile), Math.min(region[3], region[1] + (tj + 1) * tile)];
-      const members = bucket.subarray(counts[t] as number, counts[t + 1] as number);
-      processTile(set, polyBox, members, tb, polarity, b);
-    }
+/** Tiles t0 .. t1 − 1 (row-major) of the plan, written to `b` in that order. */
+export function unionTileRange(set: PolygonSet, plan: UnionPlan, t0: number, t1: number, b: Builder): void {
+  const { region, tile, ntx, counts, bucket, polyBox, polarity } = plan;
+  for (let t = t0; t < t1; t++) {
+    const ti = t % ntx, tj = (t - ti) / ntx;
+    const tb: Box = [region[0] + ti * tile, region[1] + tj * tile, Math.min(region[2], region[0] + (ti + 1) * tile), Math.min(region[3], region[1] + (tj + 1) * tile)];
+    const members = bucket.subarray(counts[t] as number, counts[t + 1] as number);
+    processTile(set, polyBox, members, tb, polarity, b);
   }
+}
+
+/**
+ * Compute the open area of `set` as tiled non-overlapping pieces (see module doc).
+ * Fill rule nonzero. Tile clipping adds vertices on tile lines but no area.
+ */
+export function openRegions(set: PolygonSet, dbuUm: number, opts: OpenRegionsOptions = {}): OpenRegions {
+  const plan = planUnion(set, opts);
+  const b = new Builder(set.coords.length);
+  if ('empty' in plan) return finishRegions(b, dbuUm, plan.empty, 1);
+  unionTileRange(set, plan, 0, plan.ntx * plan.nty, b);
   matchSeams(b);
-  return finishRegions(b, dbuUm, region, tile);
+  return finishRegions(b, dbuUm, plan.region, plan.tile);
 }
 
 /**

@@ -109,8 +109,32 @@ export function accumulateRegions(regions: OpenRegions, grid: Grid, win: AccWind
       }
     }
   };
+  // A window of some rows only (the two-thread raster, tiles): skip pieces whose points all lie outside its rows.
+  // An edge only adds to rows between its end points' rows (computed from the same transformed values); the
+  // extra row of margin covers an edge split at the grid's side, whose split point may round past an end point.
+  const someRows = win.j0 > 0 || win.j0 + win.ny < ny;
+  const jLo = win.j0, jHi = win.j0 + win.ny;
+  const pieceY = regions.pieceY;
   for (let p = 0; p < regions.pieceCount; p++) {
-    if (regions.pieceCoverage[p]) ringsOf(c, regions.ringOffsets, regions.pieceRings[p] as number, regions.pieceRings[p + 1] as number);
+    if (!regions.pieceCoverage[p]) continue;
+    const r0 = regions.pieceRings[p] as number, r1 = regions.pieceRings[p + 1] as number;
+    if (someRows) {
+      let ylo = Infinity, yhi = -Infinity;
+      if (pieceY) {
+        // The transform is monotone, so the extremes transform to the extremes of the transformed points.
+        ylo = (pieceY[2 * p] as number) * scale - oy;
+        yhi = (pieceY[2 * p + 1] as number) * scale - oy;
+      } else {
+        const e = regions.ringOffsets[r1] as number;
+        for (let k = regions.ringOffsets[r0] as number; k < e; k++) {
+          const y = (c[2 * k + 1] as number) * scale - oy;
+          if (y < ylo) ylo = y;
+          if (y > yhi) yhi = y;
+        }
+      }
+      if (Math.ceil(yhi) + 1 <= jLo || Math.floor(ylo) - 1 >= jHi) continue;
+    }
+    ringsOf(c, regions.ringOffsets, r0, r1);
   }
   ringsOf(regions.coverageCoords, regions.coverageRingOffsets, 0, regions.coverageRingOffsets.length - 1);
   return acc;

@@ -29,6 +29,11 @@ export interface OpenRegions {
   /** Per piece: 1 when its rings are rasterised for coverage. Tiles where a slanted edge crosses the tile boundary
    * give 0 here and supply `coverageRings` instead (see processTile). */
   pieceCoverage: Uint8Array;
+  /**
+   * Optional: per piece the lowest and highest y of its points (dbu), two per piece. The two-thread union provides
+   * it (each thread for its own tiles), so row bands of the raster skip pieces without reading their points.
+   */
+  pieceY?: Float64Array;
   /** Coverage-only rings (signed: counter-clockwise adds, clockwise subtracts), dbu, float coordinates. */
   coverageCoords: Float64Array;
   coverageRingOffsets: Uint32Array;
@@ -188,7 +193,12 @@ function push(b: Builder, key: string, lo: number, hi: number, piece: number, si
 
 /** Pair stretches from the two sides of each tile line that overlap with positive length. */
 export function matchSeams(b: Builder): void {
-  for (const list of b.lines.values()) {
+  matchSeamLines(b.lines, b.seamA, b.seamB, b.seamLen);
+}
+
+/** `matchSeams` over a map of tile-line stretches (pieces numbered as in the map), appending to the seam lists. */
+export function matchSeamLines(lines: Map<string, number[]>, seamA: number[], seamB: number[], seamLen: number[]): void {
+  for (const list of lines.values()) {
     const n = list.length / 4;
     const lows: number[] = [], highs: number[] = [];
     for (let k = 0; k < n; k++) (list[4 * k + 3] === 0 ? lows : highs).push(k);
@@ -206,9 +216,9 @@ export function matchSeams(b: Builder): void {
         if (k0 >= l1) break;
         const len = Math.min(l1, list[4 * k + 1] as number) - Math.max(l0, k0);
         if (len > 0) {
-          b.seamA.push(list[4 * l + 2] as number);
-          b.seamB.push(list[4 * k + 2] as number);
-          b.seamLen.push(len);
+          seamA.push(list[4 * l + 2] as number);
+          seamB.push(list[4 * k + 2] as number);
+          seamLen.push(len);
         }
       }
     }

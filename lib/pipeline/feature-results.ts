@@ -47,21 +47,22 @@ export interface FeatureResultTable extends Record<ResultF64Column, Float64Array
   range: CalibratedRange | null;
 }
 
-export function emptyFeatureResultTable(features: FeatureTable, range: CalibratedRange | null): FeatureResultTable {
+/** Zeroed columns for the rows of `features`; `alloc` supplies their memory (shared when threads fill the rows). */
+export function emptyFeatureResultTable(features: FeatureTable, range: CalibratedRange | null, alloc: (bytes: number) => ArrayBufferLike = (b) => new ArrayBuffer(b)): FeatureResultTable {
   const n = features.count;
   const t = {
     count: n,
     features,
-    modelKind: new Uint8Array(n),
-    reachesTarget: new Uint8Array(n),
-    stopped: new Uint8Array(n),
-    nulls: new Uint8Array(n),
-    notes: new Uint32Array(n),
+    modelKind: new Uint8Array(alloc(n)),
+    reachesTarget: new Uint8Array(alloc(n)),
+    stopped: new Uint8Array(alloc(n)),
+    nulls: new Uint8Array(alloc(n)),
+    notes: new Uint32Array(alloc(4 * n)),
     noteLists: [Object.freeze([]) as readonly string[]],
-    excursions: new Uint8Array(n),
+    excursions: new Uint8Array(alloc(n)),
     range,
   } as unknown as FeatureResultTable;
-  for (const c of RESULT_F64_COLUMNS) t[c] = new Float64Array(n);
+  for (const c of RESULT_F64_COLUMNS) t[c] = new Float64Array(alloc(8 * n));
   return t;
 }
 

@@ -141,102 +141,126 @@ export function predictFeatures(features: Feature[], effective: Float32Array, gr
  * [from, to) (the other rows stay zero), so callers can split a table between threads.
  */
 export function predictFeatureTable(features: FeatureTable, effective: Float32Array, grid: Grid, model: ProcessModel, opts: PredictOptions & { rows?: [number, number] }): FeatureResultTable {
-  const predict = createFeaturePredictor(model);
-  const uncertainty = createDepthUncertainty(model);
-  const sigmaCache = new Map<string, number>();
-  const noteCache = new Map<string, string>();
-  // Cyclic mode steps every cycle (~10 µs per opening), so repeated openings are predicted once there.
-  const cache = model.mode === 'cyclic' ? new Map<string, FeaturePrediction>() : null;
-  const meanWidthNote = 'no measurable smallest width: the mean width 2·area/perimeter was used';
-  // The sampled width lattice can step over a short narrow stub (widths.ts, known limit): say so on each opening
-  // measured that way, since its narrowest width can then read too large and its aspect ratio too small.
-  const sampledWidthNote = 'width sampled on a lattice: a narrow part one or two lattice steps wide may be missed, so the width can read too large';
-  const range = calibratedRangeOf(model);
-  const every = opts.every ?? 2048;
-  const t = emptyFeatureResultTable(features, range);
-  // Distinct note lists by their raw warnings (and whether the mean width was used): index into t.noteLists.
-  const lists: (readonly string[])[] = [t.noteLists[0] as readonly string[]];
-  const listOf = new Map<string, number>();
-  const byContent = new Map<string, number>();
-  const f = features;
-  const [from, to] = opts.rows ?? [0, f.count];
-  const total = to - from;
-  const input: FeatureInput = { widthUm: 0, kind: 'trench', effectiveDensity: 0, exposedFraction: opts.exposedFraction };
-  for (let n = from; n < to; n++) {
-    if (opts.onTick && (n - from) % every === 0) opts.onTick(n - from, total);
-    const shape = FEATURE_KINDS[f.kind[n] as number] as Feature['kind'];
-    const modelKind = modelKindOf(shape);
-    const minWidthUm = f.minWidthUm[n] as number, perimeterUm = f.perimeterUm[n] as number;
-    // A sliver can come out of width extraction with no measurable width; fall back to its mean width
-    // 2·area/perimeter so one odd shape cannot stop the whole analysis.
-    const measurable = minWidthUm > 0;
-    const widthUm = measurable ? minWidthUm : perimeterUm > 0 ? (2 * (f.areaUm2[n] as number)) / perimeterUm : 0;
-    if (!(widthUm > 0)) throw new RangeError(`opening #${f.id[n]} at (${f.centroidXUm[n]}, ${f.centroidYUm[n]}) µm has no measurable width`);
-    const rho = Math.round(sampleGrid(effective, grid, f.centroidXUm[n] as number, f.centroidYUm[n] as number) * 1e4) / 1e4;
-    input.widthUm = widthUm;
-    input.kind = modelKind;
-    input.effectiveDensity = rho;
-    let p: FeaturePrediction | undefined;
-    if (cache) {
-      const key = `${modelKind}|${widthUm}|${rho}`;
-      p = cache.get(key);
-      if (!p) cache.set(key, (p = predict({ ...input })));
-    } else {
-      p = predict(input);
-    }
-    let nulls = 0;
-    if (uncertainty) {
-      // Repeated openings (same kind, width, density) are common: evaluate their σ once.
-      const key = `${modelKind}|${widthUm}|${rho}`;
-      let sigma = sigmaCache.get(key);
-      if (sigma === undefined) {
-        sigma = uncertainty.sigmaUm({ ...input });
-        if (sigmaCache.size < 200_000) sigmaCache.set(key, sigma);
-      }
-      t.depthSigmaUm[n] = sigma;
-    } else {
-      t.depthSigmaUm[n] = Number.NaN;
-      nulls |= NULL_DEPTH_SIGMA;
-    }
-    t.modelKind[n] = modelKind === 'hole' ? 1 : 0;
-    t.widthUm[n] = widthUm;
-    t.effectiveDensity[n] = rho;
-    t.depthUm[n] = p.depthUm;
-    t.aspectRatio[n] = p.aspectRatio;
-    t.marginUm[n] = p.marginUm;
-    t.overEtchUm[n] = p.overEtchUm;
-    if (p.timeToTargetMin === null) {
-      nulls |= NULL_TIME_TO_TARGET;
-      t.timeToTargetMin[n] = Number.NaN;
-    } else t.timeToTargetMin[n] = p.timeToTargetMin;
-    if (p.maskRemainingUm === null) {
-      nulls |= NULL_MASK_REMAINING;
-      t.maskRemainingUm[n] = Number.NaN;
-    } else t.maskRemainingUm[n] = p.maskRemainingUm;
-    t.nulls[n] = nulls;
-    t.reachesTarget[n] = p.reachesTarget ? 1 : 0;
-    t.stopped[n] = p.stopped ? 1 : 0;
-    const sampled = measurable && f.widthExact[n] === 0;
-    if (measurable && !sampled && p.warnings.length === 0) t.notes[n] = 0;
-    else {
-      const key = (measurable ? (sampled ? '\u0002' : '') : '\u0001') + p.warnings.join('\u0000');
-      let li = listOf.get(key);
-      if (li === undefined) {
-        const own = notesOf(p.warnings, noteCache);
-        const notes = !measurable ? [...own, meanWidthNote] : sampled ? [...own, sampledWidthNote] : own;
-        // Raw warnings differ in their numbers; the notes do not: one list per distinct content.
-        const content = notes.join('\u0000');
-        li = notes.length === 0 ? 0 : byContent.get(content);
-        if (li === undefined) byContent.set(content, (li = lists.push(Object.freeze(notes)) - 1));
-        listOf.set(key, li);
-      }
-      t.notes[n] = li;
-    }
-    if (range) t.excursions[n] = excursionBits(range, widthUm, p.aspectRatio, rho);
-  }
-  t.noteLists = lists;
-  opts.onTick?.(total, total);
+  const t = emptyFeatureResultTable(features, calibratedRangeOf(model));
+  const rows = new RowPredictor(model, opts.exposedFraction);
+  const [from, to] = opts.rows ?? [0, features.count];
+  rows.predict(features, t, effective, grid, from, to, opts);
+  t.noteLists = rows.lists;
   return t;
+}
+
+/**
+ * The prediction of rows into a result table, with its caches and its own note lists (`lists`; t.notes holds
+ * indices into them, entry 0 the empty list, one list per distinct content in order of first use). One per thread
+ * when a table is split (parallel-predict.ts joins the lists).
+ */
+export class RowPredictor {
+  readonly lists: (readonly string[])[] = [Object.freeze([]) as readonly string[]];
+  private readonly predictor;
+  private readonly uncertainty;
+  private readonly sigmaCache = new Map<string, number>();
+  private readonly noteCache = new Map<string, string>();
+  // Cyclic mode steps every cycle (~10 µs per opening), so repeated openings are predicted once there.
+  private readonly cache: Map<string, FeaturePrediction> | null;
+  private readonly range: CalibratedRange | null;
+  // Distinct note lists by their raw warnings (and whether the mean width was used): index into lists.
+  private readonly listOf = new Map<string, number>();
+  private readonly byContent = new Map<string, number>();
+
+  constructor(
+    model: ProcessModel,
+    private readonly exposedFraction: number,
+  ) {
+    this.predictor = createFeaturePredictor(model);
+    this.uncertainty = createDepthUncertainty(model);
+    this.cache = model.mode === 'cyclic' ? new Map<string, FeaturePrediction>() : null;
+    this.range = calibratedRangeOf(model);
+  }
+
+  /** Rows [from, to) of `f` into the same rows of `t`. */
+  predict(f: FeatureTable, t: FeatureResultTable, effective: Float32Array, grid: Grid, from: number, to: number, opts: Pick<PredictOptions, 'onTick' | 'every'> = {}): void {
+    const { predictor: predict, uncertainty, sigmaCache, noteCache, cache, range, lists, listOf, byContent } = this;
+    const meanWidthNote = 'no measurable smallest width: the mean width 2·area/perimeter was used';
+    // The sampled width lattice can step over a short narrow stub (widths.ts, known limit): say so on each opening
+    // measured that way, since its narrowest width can then read too large and its aspect ratio too small.
+    const sampledWidthNote = 'width sampled on a lattice: a narrow part one or two lattice steps wide may be missed, so the width can read too large';
+    const every = opts.every ?? 2048;
+    const total = to - from;
+    const input: FeatureInput = { widthUm: 0, kind: 'trench', effectiveDensity: 0, exposedFraction: this.exposedFraction };
+    for (let n = from; n < to; n++) {
+      if (opts.onTick && (n - from) % every === 0) opts.onTick(n - from, total);
+      const shape = FEATURE_KINDS[f.kind[n] as number] as Feature['kind'];
+      const modelKind = modelKindOf(shape);
+      const minWidthUm = f.minWidthUm[n] as number, perimeterUm = f.perimeterUm[n] as number;
+      // A sliver can come out of width extraction with no measurable width; fall back to its mean width
+      // 2·area/perimeter so one odd shape cannot stop the whole analysis.
+      const measurable = minWidthUm > 0;
+      const widthUm = measurable ? minWidthUm : perimeterUm > 0 ? (2 * (f.areaUm2[n] as number)) / perimeterUm : 0;
+      if (!(widthUm > 0)) throw new RangeError(`opening #${f.id[n]} at (${f.centroidXUm[n]}, ${f.centroidYUm[n]}) µm has no measurable width`);
+      const rho = Math.round(sampleGrid(effective, grid, f.centroidXUm[n] as number, f.centroidYUm[n] as number) * 1e4) / 1e4;
+      input.widthUm = widthUm;
+      input.kind = modelKind;
+      input.effectiveDensity = rho;
+      let p: FeaturePrediction | undefined;
+      if (cache) {
+        const key = `${modelKind}|${widthUm}|${rho}`;
+        p = cache.get(key);
+        if (!p) cache.set(key, (p = predict({ ...input })));
+      } else {
+        p = predict(input);
+      }
+      let nulls = 0;
+      if (uncertainty) {
+        // Repeated openings (same kind, width, density) are common: evaluate their σ once.
+        const key = `${modelKind}|${widthUm}|${rho}`;
+        let sigma = sigmaCache.get(key);
+        if (sigma === undefined) {
+          sigma = uncertainty.sigmaUm({ ...input });
+          if (sigmaCache.size < 200_000) sigmaCache.set(key, sigma);
+        }
+        t.depthSigmaUm[n] = sigma;
+      } else {
+        t.depthSigmaUm[n] = Number.NaN;
+        nulls |= NULL_DEPTH_SIGMA;
+      }
+      t.modelKind[n] = modelKind === 'hole' ? 1 : 0;
+      t.widthUm[n] = widthUm;
+      t.effectiveDensity[n] = rho;
+      t.depthUm[n] = p.depthUm;
+      t.aspectRatio[n] = p.aspectRatio;
+      t.marginUm[n] = p.marginUm;
+      t.overEtchUm[n] = p.overEtchUm;
+      if (p.timeToTargetMin === null) {
+        nulls |= NULL_TIME_TO_TARGET;
+        t.timeToTargetMin[n] = Number.NaN;
+      } else t.timeToTargetMin[n] = p.timeToTargetMin;
+      if (p.maskRemainingUm === null) {
+        nulls |= NULL_MASK_REMAINING;
+        t.maskRemainingUm[n] = Number.NaN;
+      } else t.maskRemainingUm[n] = p.maskRemainingUm;
+      t.nulls[n] = nulls;
+      t.reachesTarget[n] = p.reachesTarget ? 1 : 0;
+      t.stopped[n] = p.stopped ? 1 : 0;
+      const sampled = measurable && f.widthExact[n] === 0;
+      if (measurable && !sampled && p.warnings.length === 0) t.notes[n] = 0;
+      else {
+        const key = (measurable ? (sampled ? '\u0002' : '') : '\u0001') + p.warnings.join('\u0000');
+        let li = listOf.get(key);
+        if (li === undefined) {
+          const own = notesOf(p.warnings, noteCache);
+          const notes = !measurable ? [...own, meanWidthNote] : sampled ? [...own, sampledWidthNote] : own;
+          // Raw warnings differ in their numbers; the notes do not: one list per distinct content.
+          const content = notes.join('\u0000');
+          li = notes.length === 0 ? 0 : byContent.get(content);
+          if (li === undefined) byContent.set(content, (li = lists.push(Object.freeze(notes)) - 1));
+          listOf.set(key, li);
+        }
+        t.notes[n] = li;
+      }
+      if (range) t.excursions[n] = excursionBits(range, widthUm, p.aspectRatio, rho);
+    }
+    opts.onTick?.(total, total);
+  }
 }
 
 /** EXCURSION_BITS of excursionsOf(range, …) without building the list. */

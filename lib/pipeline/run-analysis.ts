@@ -12,8 +12,12 @@
  * Per-opening data stays in columns (FeatureTable, FeatureResultTable): a million objects would cost seconds of
  * garbage collection; `features` builds objects only when read.
  */
-import { effectiveDensity, localWidthFromCoverage, openRegions, rasterizeOpenRegions, windowDensity, type FeatureTable, type Grid, type WindowDensity } from '../geometry';
+import { localWidthFromCoverage, windowDensity, type FeatureTable, type Grid, type WindowDensity } from '../geometry';
 import { featureTableInThreads } from '../geometry/parallel-features';
+import { openRegionsInThreads } from '../geometry/parallel-union';
+import { coverageInThreads } from '../geometry/parallel-raster';
+import { secondCoreFree, type TaskThread } from '../threads/sync-helper';
+import { startAnalysisHelper } from './analysis-helper';
 import type { ProcessModel } from '../etch';
 import type { FlatLayout } from '../layout/types';
 import { AnalysisAbortedError } from './errors';
@@ -22,8 +26,10 @@ import { densityGradientFlags, FlagCollector, windowDensityFlags, type Flag, typ
 import { offerTableFlags } from './table-flags';
 import type { GridMap } from './grid-file';
 import { featureResultList, type FeatureResultTable } from './feature-results';
-import { predictFeatureTable, type FeatureResult } from './predict-features';
-import { featureRisk, paintColumnsOf, paintFeatureColumns, type FeatureMaps } from './result-maps';
+import { type FeatureResult } from './predict-features';
+import { predictInThreads } from './parallel-predict';
+import { featureRisk, paintColumnsOf, type FeatureMaps } from './result-maps';
+import { effectiveOffloaded, paintOffloaded } from './offload';
 import { resolveKernel, resolveLimits, type AnalysisSettings } from './settings';
 import { buildSummary, type AnalysisSummary } from './summary';
 
@@ -48,7 +54,16 @@ export interface AnalysisHooks {
    * AbortSignal events cannot arrive while it runs; a flag in shared memory (Atomics.load) can.
    */
   isCancelled?(): boolean;
+  /**
+   * A running helper thread for the stages that split their work (analysis-helper.ts; the caller closes it), null
+   * for one thread. Default: runAnalysis starts one for a big layout and closes it at the end. A caller that starts
+   * it before reading the layout hides the thread's start-up behind the read.
+   */
+  helper?: TaskThread | null;
 }
+
+/** Below this many etch-layer polygons the helper thread costs more to start than it saves. */
+const MIN_HELPER_POLYGONS = 50_000;
 
 export interface AnalysisResult {
   summary: AnalysisSummary;
@@ -117,6 +132,22 @@ export interface PrecomputedStages {
 }
 
 export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, model: ProcessModel, hooks: AnalysisHooks = {}, precomputed?: PrecomputedStages): AnalysisResult {
+  const own = hooks.helper === undefined && !precomputed && etchPolygonCount(layout, settings) >= MIN_HELPER_POLYGONS ? startAnalysisHelper() : null;
+  try {
+    return analyse(layout, settings, model, hooks, precomputed, own ?? hooks.helper);
+  } finally {
+    own?.close();
+  }
+}
+
+/** Polygons on the etch layers (0 when a layer is missing: selectEtchLayers then reports it). */
+function etchPolygonCount(layout: FlatLayout, settings: AnalysisSettings): number {
+  let n = 0;
+  for (const ref of settings.etchLayers) n += layout.layers.find((s) => s.layer === ref.layer && s.datatype === ref.datatype)?.count ?? 0;
+  return n;
+}
+
+function analyse(layout: FlatLayout, settings: AnalysisSettings, model: ProcessModel, hooks: AnalysisHooks, precomputed: PrecomputedStages | undefined, helper: TaskThread | null | undefined): AnalysisResult {
   const clock = new StageClock(hooks);
   const limits = resolveLimits(settings, model);
   const kernel = resolveKernel(settings, model);
@@ -131,12 +162,19 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   clock.begin('coverage');
   const regionDbu = layout.bboxDbu ?? undefined;
   // One exact union of the etch layers serves coverage and features (it is the expensive part on big layouts).
-  const regions = set ? openRegions(set, layout.dbuUm, { polarity, regionDbu }) : null;
+  // The union and raster splits have a large fixed cost: only when the machine has a core to spare.
+  const coverageHelper = helper && secondCoreFree() ? helper : null;
+  const regions = set ? openRegionsInThreads(set, layout.dbuUm, { polarity, regionDbu }, coverageHelper) : null;
   clock.within(0.7); // cancel check point between the union and the raster (each can take seconds)
-  const coverage = regions ? Float32Array.from(rasterizeOpenRegions(regions, grid)) : (precomputed as PrecomputedStages).coverage;
+  const coverage = regions ? coverageInThreads(regions, grid, coverageHelper) : (precomputed as PrecomputedStages).coverage;
   const globalDensity = dieDensity(coverage, grid, frame.dieBboxUm);
 
+  // Whole computations go to the helper only for big layouts (small ones are done before a message would arrive).
+  const offloadTo = helper && set && set.count >= MIN_HELPER_POLYGONS ? helper : null;
+
   clock.begin('window-density');
+  // The convolution runs on the helper thread while this thread computes the windows.
+  const effectiveLater = effectiveOffloaded(offloadTo, coverage, grid, { lengthUm: kernel.lengthUm, kernel: kernel.kind, outside: kernel.outside });
   const regionCoverage = dieRegionCoverage(grid, frame.dieBboxUm);
   const windows: WindowDensity[] = settings.densityWindows.map((w, n) => {
     clock.within(n / settings.densityWindows.length);
@@ -152,7 +190,7 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   });
 
   clock.begin('effective-density');
-  const effective = effectiveDensity(coverage, grid, { lengthUm: kernel.lengthUm, kernel: kernel.kind, outside: kernel.outside });
+  const effective = effectiveLater();
 
   clock.begin('features');
   // Two threads on big layouts, same result. The local-width map (needs only the coverage) is computed on this
@@ -160,21 +198,21 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   // stitched openings instead (precomputed).
   let localWidth: Float32Array | null = null;
   const featureTable = regions
-    ? featureTableInThreads(regions, { polarity, regionDbu }, {}, () => (localWidth = localWidthFromCoverage(coverage, grid)))
+    ? featureTableInThreads(regions, { polarity, regionDbu }, {}, () => (localWidth = localWidthFromCoverage(coverage, grid)), helper)
     : (precomputed as PrecomputedStages).features;
 
   clock.begin('local-width');
   localWidth ??= localWidthFromCoverage(coverage, grid);
 
   clock.begin('prediction');
-  const results = predictFeatureTable(featureTable, effective, grid, predictionModel, {
+  const results = predictInThreads(featureTable, effective, grid, predictionModel, {
     exposedFraction: globalDensity,
     onTick: (done, total) => clock.within(total > 0 ? done / total : 1),
-  });
+  }, helper ?? null);
 
   clock.begin('maps');
   const n = results.count;
-  const risks = new Float64Array(n);
+  const risks = new Float64Array(offloadTo ? new SharedArrayBuffer(8 * n) : new ArrayBuffer(8 * n));
   const riskInput = { depthUm: 0, overEtchUm: 0, widthUm: 0 };
   for (let k = 0; k < n; k++) {
     riskInput.depthUm = results.depthUm[k] as number;
@@ -182,7 +220,8 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
     riskInput.widthUm = results.widthUm[k] as number;
     risks[k] = featureRisk(riskInput, limits);
   }
-  const painted = paintFeatureColumns(paintColumnsOf(results), risks, coverage, grid);
+  // Painted on the helper thread while this thread collects the flags.
+  const paintedLater = paintOffloaded(offloadTo, paintColumnsOf(results), risks, coverage, grid);
 
   clock.begin('flags');
   const collector = new FlagCollector(settings.maxListedFlags);
@@ -196,6 +235,7 @@ export function runAnalysis(layout: FlatLayout, settings: AnalysisSettings, mode
   const flags = collector.list(resolve);
 
   clock.begin('summary');
+  const painted = paintedLater();
   const maps = buildMaps(grid, coverage, windows, effective, localWidth, painted, { kernelLengthUm: kernel.lengthUm, kernel: kernel.kind, modelName: model.name, modelVersion: model.version });
   const summary = buildSummary({
     layout,

@@ -4,6 +4,7 @@
  * order), on seeded data with negative coordinates, -0, repeated keys and NaN-free floats.
  */
 import { describe, expect, it } from 'vitest';
+import { mergeSortedRows, sortKeyedRows } from '@/lib/geometry/feature-table';
 import { concatFeatureTables, extractFeatures, extractFeatureTable, featureAt, featureIdOrder, featureList, FeatureTableBuilder, featureTableOf, numberFeatureTable, sliceFeatureTable, type Feature, type FeatureRow } from '@/lib/geometry';
 import { makeSet, mulberry32, ngon, rect, type Ring } from './make-set';
 
@@ -43,6 +44,35 @@ describe('FeatureTable', () => {
       const numbered = numberFeatureTable(t);
       expect(Array.from(numbered.id)).toEqual(want.map((_, k) => k + 1));
       expect(Array.from(numbered.y0Um)).toEqual(want.map((k) => t.y0Um[k]));
+    }
+  });
+
+  it('parts sorted on their own and merged equal one sort of all rows (the two-thread features path)', () => {
+    for (const [n, parts, seed] of [[0, 2, 1], [1, 2, 2], [9, 3, 3], [20_000, 2, 4], [20_000, 3, 5]] as const) {
+      const rnd = mulberry32(seed + 100);
+      const b = new FeatureTableBuilder(4);
+      for (const r of randomRows(n, seed)) b.push(r);
+      const t = b.finish();
+      // Unique roots in a shuffled order (as piece indices come from threads), rows dealt to parts at random.
+      const roots = Float64Array.from({ length: n }, (_, k) => k * 7 + 3);
+      for (let k = n - 1; k > 0; k--) {
+        const j = Math.floor(rnd() * (k + 1));
+        [roots[k], roots[j]] = [roots[j] as number, roots[k] as number];
+      }
+      const dealt = Array.from({ length: parts }, () => [] as number[]);
+      for (let k = 0; k < n; k++) dealt[Math.floor(rnd() * parts)]!.push(k);
+      const keyed = dealt.map((rows) => {
+        const sub = new FeatureTableBuilder(rows.length);
+        for (const k of rows) sub.append(sliceFeatureTable(t, k, k + 1));
+        return sortKeyedRows({ table: sub.finish(), roots: Float64Array.from(rows, (k) => roots[k] as number) });
+      });
+      const reorderedRoots = Float64Array.from(dealt.flat(), (k) => roots[k] as number);
+      const all = concatFeatureTables(dealt.map((rows) => {
+        const sub = new FeatureTableBuilder(rows.length);
+        for (const k of rows) sub.append(sliceFeatureTable(t, k, k + 1));
+        return sub.finish();
+      }));
+      expect(mergeSortedRows(keyed)).toEqual(numberFeatureTable(all, reorderedRoots));
     }
   });
 
