@@ -7,12 +7,14 @@
 //   POST /__proxy/reset             forget them
 //   POST /__proxy/cut-next-get?after=N   the next GET of an object sends N body bytes, then the socket is destroyed
 //   POST /__proxy/delay?ms=N        every GET waits N ms before it is forwarded
+//   POST /__proxy/fail-writes?match=S   PUT/POST requests whose path contains S get a 500 InternalError (empty S: none)
 import http from 'node:http';
 
 const upstream = new URL(process.argv[2] ?? '');
 let seen = [];
 let cutAfter = null;
 let delayMs = 0;
+let failWrites = '';
 
 const server = http.createServer((req, res) => {
   const url = new URL(req.url ?? '/', 'http://proxy');
@@ -21,10 +23,17 @@ const server = http.createServer((req, res) => {
     else if (url.pathname === '/__proxy/reset') (seen = []), res.end('{}');
     else if (url.pathname === '/__proxy/cut-next-get') (cutAfter = Number(url.searchParams.get('after') ?? 0)), res.end('{}');
     else if (url.pathname === '/__proxy/delay') (delayMs = Number(url.searchParams.get('ms') ?? 0)), res.end('{}');
+    else if (url.pathname === '/__proxy/fail-writes') (failWrites = url.searchParams.get('match') ?? ''), res.end('{}');
     else (res.statusCode = 404), res.end('{}');
     return;
   }
   seen.push({ method: req.method, path: url.pathname });
+  if (failWrites && (req.method === 'PUT' || req.method === 'POST') && url.pathname.includes(failWrites)) {
+    req.resume();
+    res.writeHead(500, { 'content-type': 'application/xml' });
+    res.end('<?xml version="1.0" encoding="UTF-8"?><Error><Code>InternalError</Code><Message>injected by the test proxy</Message></Error>');
+    return;
+  }
   const cut = req.method === 'GET' && cutAfter !== null && url.pathname.split('/').filter(Boolean).length > 1 ? cutAfter : null;
   if (cut !== null) cutAfter = null;
   const forward = () => {

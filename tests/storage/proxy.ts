@@ -12,6 +12,7 @@ export type CountingProxy = {
   reset: () => Promise<void>;
   cutNextGet: (afterBytes: number) => Promise<void>;
   delayGets: (ms: number) => Promise<void>;
+  failWrites: (match: string) => Promise<void>;
   stop: () => void;
 };
 
@@ -34,6 +35,7 @@ export async function startCountingProxy(upstream: string): Promise<CountingProx
     reset: async () => void (await call('reset')),
     cutNextGet: async (after) => void (await call(`cut-next-get?after=${after}`)),
     delayGets: async (ms) => void (await call(`delay?ms=${ms}`)),
+    failWrites: async (match) => void (await call(`fail-writes?match=${encodeURIComponent(match)}`)),
     stop: () => void child.kill('SIGTERM'),
   };
 }
