@@ -12,7 +12,7 @@ import { migrateToS3, STORED_ROOTS, type MigrateEvent } from '../lib/storage/mig
 import { describeS3, s3ConfigFromEnv } from '../lib/storage/s3-config';
 import { S3ObjectStore } from '../lib/storage/s3-store';
 
-const mb = (n: number) => (n >= 1024 * 1024 ? `${(n / 1024 / 1024).toFixed(1)} MiB` : `${(n / 1024).toFixed(1)} KiB`);
+const mb = (n: number) => (n >= 1024 * 1024 ? `${(n / 1024 / 1024).toFixed(1)} MiB` : n >= 1024 ? `${(n / 1024).toFixed(1)} KiB` : `${n} B`);
 
 function usage(message: string): never {
   console.error(`storage:migrate: ${message}`);
