@@ -140,7 +140,10 @@ describe('layouts and results on S3 (fake server)', () => {
     const all = decodePolygons(new Uint8Array(await res.arrayBuffer()));
     expect(all.total).toBe(info.polygonCount);
     expect(all.total).toBe(4); // die outline + three trenches
-    expect(filesUnder(cacheDir)).toEqual([path.join('layouts', PROJECT, `${revisionId}.gds`)]);
+    // The layout copy for the polygon index; the viewer's map reads (result files) are cached beside it.
+    const cached = filesUnder(cacheDir);
+    expect(cached).toContain(path.join('layouts', PROJECT, `${revisionId}.gds`));
+    expect(cached.filter((f) => !f.startsWith(`analyses${path.sep}${analysisId}${path.sep}`) && !f.startsWith(`layouts${path.sep}`))).toEqual([]);
   });
 
   it('keeps no layout or result file in the data folder', async () => {

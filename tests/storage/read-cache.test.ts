@@ -7,11 +7,11 @@
  *     fetches it again (one more GET) and gets the right bytes;
  *   - the caching store (what storage() gives on S3) serves whole reads, ranges and stat of a cached result file
  *     with no request, and drops the copy on delete and on overwrite;
- *   - completion warms the cache: a result recorded for a worker without the database (remote-results.ts ->
+ *   - completion warms the cache: an embedded run's files are moved into it as they are uploaded; a result recorded for a worker without the database (remote-results.ts ->
  *     finishJob) fetches every result file once; the next reads of the map and of the column file make no request.
  */
 import { createHash } from 'node:crypto';
-import { existsSync, mkdtempSync, readdirSync, rmSync } from 'node:fs';
+import { existsSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, beforeEach, describe, expect, it, vi } from 'vitest';
@@ -22,6 +22,7 @@ import { recordResult } from '@/lib/jobs/remote-results';
 import { warmResultCache } from '@/lib/jobs/warm-results';
 import { storage } from '@/lib/storage';
 import { CachedS3ObjectStore } from '@/lib/storage/cached-s3-store';
+import { resultStaging } from '@/lib/storage/job-files';
 import { cachedPath, downloadsInFlight, readablePath, readablePathSync } from '@/lib/storage/read-cache';
 import { s3ConfigFromEnv } from '@/lib/storage/s3-config';
 import { S3ObjectStore } from '@/lib/storage/s3-store';
@@ -164,6 +165,20 @@ describe('caching store (storage() on S3)', () => {
 });
 
 describe('completion warms the cache', () => {
+  it('an embedded run: committed result files go into the cache as they are uploaded; reads make no request', async () => {
+    const staging = await resultStaging(cached, 'analyses/emb-1');
+    writeFileSync(path.join(staging.dir, 'risk.trgrid'), pattern(40_000, 8));
+    writeFileSync(path.join(staging.dir, FEATURE_FILE_NAME), pattern(9_000, 9));
+    const keys = await staging.commit({ cache: () => true });
+    expect(keys.sort()).toEqual([`analyses/emb-1/${FEATURE_FILE_NAME}`, 'analyses/emb-1/risk.trgrid']);
+    expect(existsSync(staging.dir)).toBe(false);
+    expect(await proxy.count('GET')).toBe(0);
+    expect(sha(await cached.getBytes('analyses/emb-1/risk.trgrid'))).toBe(sha(pattern(40_000, 8)));
+    expect(readablePathSync(cached, `analyses/emb-1/${FEATURE_FILE_NAME}`)).toBe(cachedPath(cached, `analyses/emb-1/${FEATURE_FILE_NAME}`));
+    expect(await proxy.count('GET')).toBe(0);
+    expect(sha(await direct.getBytes('analyses/emb-1/risk.trgrid'))).toBe(sha(pattern(40_000, 8))); // and it is in the bucket
+  });
+
   it('a result recorded for a worker without the database is fetched once; the next reads make no request', async () => {
     const id = 'warm-1';
     const rows = inventedResults(2000, 11);
