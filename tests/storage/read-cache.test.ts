@@ -7,7 +7,8 @@
  *     fetches it again (one more GET) and gets the right bytes;
  *   - the caching store (what storage() gives on S3) serves whole reads, ranges and stat of a cached result file
  *     with no request, and drops the copy on delete and on overwrite;
- *   - completion warms the cache: an embedded run's files are moved into it as they are uploaded; a result recorded for a worker without the database (remote-results.ts ->
+ *   - completion warms the cache: a worker with the database announcing "done" over Redis makes the server fetch the
+ *     files once; an embedded run's files are moved into it as they are uploaded; a result recorded for a worker without the database (remote-results.ts ->
  *     finishJob) fetches every result file once; the next reads of the map and of the column file make no request.
  */
 import { createHash } from 'node:crypto';
@@ -16,6 +17,8 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, beforeEach, describe, expect, it, vi } from 'vitest';
 import { setDbForTesting, type Db } from '@/db/client';
+import { BullJobQueue } from '@/lib/jobs/bullmq-queue';
+import { eventsChannel, openRedis } from '@/lib/jobs/bullmq-shared';
 import { readFeatureColumns } from '@/lib/jobs/feature-columns';
 import { encodeFeatureFile, FEATURE_FILE_NAME, featureFileBytes } from '@/lib/jobs/feature-file';
 import { recordResult } from '@/lib/jobs/remote-results';
@@ -28,6 +31,7 @@ import { s3ConfigFromEnv } from '@/lib/storage/s3-config';
 import { S3ObjectStore } from '@/lib/storage/s3-store';
 import type { AnalysisSummary } from '@/lib/pipeline/summary';
 import { startTestS3, type TestS3 } from '../support/fake-s3';
+import { startTestRedis } from '../jobs/redis-server';
 import { inventedResults, tempDb } from '../jobs/results-store';
 import { startCountingProxy, type CountingProxy } from './proxy';
 
@@ -165,6 +169,45 @@ describe('caching store (storage() on S3)', () => {
 });
 
 describe('completion warms the cache', () => {
+  it('a worker with the database reports done over Redis: the server fetches the files once', async () => {
+    const redis = await startTestRedis();
+    process.env.TRENCHANT_REDIS_PREFIX = `warm-${process.pid}`;
+    const queue = new BullJobQueue(redis.url);
+    const pub = openRedis(redis.url, 'test-worker');
+    try {
+      const id = 'warm-db-worker';
+      const mapBytes = pattern(120_000, 12);
+      await direct.putBytes(`analyses/${id}/risk.trgrid`, mapBytes);
+      // What the worker wrote into the shared database before it published its final event.
+      db.$client
+        .prepare(
+          `INSERT INTO analyses (id, project_id, revision_id, created_at, settings, model, model_name, model_version, model_source, status, progress, result_dir)
+           VALUES (?, 'p', 'r', 0, '{}', '{}', 'm', '1', 'test', 'done', 1, ?)`,
+        )
+        .run(id, `analyses/${id}`);
+      db.$client
+        .prepare('INSERT INTO analysis_maps (analysis_id, name, kind, unit, file, x0_um, y0_um, pixel_um, nx, ny, meta, bytes) VALUES (?,?,?,?,?,?,?,?,?,?,?,?)')
+        .run(id, 'risk', 'risk', 'score', 'risk.trgrid', 0, 0, 1, 10, 10, '{}', mapBytes.length);
+      await proxy.reset();
+      await vi.waitFor(async () => {
+        // Published until the server's subscription is up (a message sent before it is lost, as in production).
+        if (!existsSync(cachedPath(cached, `analyses/${id}/risk.trgrid`))) {
+          await pub.publish(eventsChannel(), JSON.stringify({ analysisId: id, status: 'done', stage: 'done', progress: 1, errorMessage: null }));
+        }
+        expect(existsSync(cachedPath(cached, `analyses/${id}/risk.trgrid`))).toBe(true);
+      }, { timeout: 15_000, interval: 200 });
+      expect(await proxy.count('GET', `analyses/${id}/risk.trgrid`)).toBe(1);
+      await proxy.reset();
+      expect(sha(await storage().getBytes(`analyses/${id}/risk.trgrid`))).toBe(sha(mapBytes));
+      expect(await proxy.requests()).toEqual([]);
+    } finally {
+      pub.disconnect();
+      await queue.close();
+      await redis.stop();
+      delete process.env.TRENCHANT_REDIS_PREFIX;
+    }
+  });
+
   it('an embedded run: committed result files go into the cache as they are uploaded; reads make no request', async () => {
     const staging = await resultStaging(cached, 'analyses/emb-1');
     writeFileSync(path.join(staging.dir, 'risk.trgrid'), pattern(40_000, 8));
