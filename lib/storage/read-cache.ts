@@ -135,12 +135,17 @@ export async function keepInCache(store: ObjectStore, key: string, srcPath: stri
   await prune(store, dest);
 }
 
-/** Drops cached copies of keys starting with `prefix` (call after deleting the objects). */
+/**
+ * Drops cached copies of keys starting with `prefix` (call after deleting the objects). Downloads of such keys
+ * still running are waited for first, so none puts a copy back after it was dropped.
+ */
 export async function forgetCached(store: ObjectStore, prefix: string): Promise<void> {
   if (store.kind === 'local') return;
   const base = cacheDir(store);
   const target = path.join(base, ...prefix.replace(/\/$/, '').split('/'));
   if (!target.startsWith(base + path.sep)) return;
+  const running = [...inFlight].filter(([dest]) => dest === target || dest.startsWith(target + path.sep)).map(([, d]) => d.done.catch(() => undefined));
+  await Promise.all(running);
   if (prefix.endsWith('/')) await rm(target, { recursive: true, force: true });
   else await unlink(target).catch(() => undefined);
 }

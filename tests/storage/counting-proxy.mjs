@@ -7,6 +7,7 @@
 //   POST /__proxy/reset             forget them
 //   POST /__proxy/cut-next-get?after=N   the next GET of an object sends N body bytes, then the socket is destroyed
 //   POST /__proxy/delay?ms=N        every GET waits N ms before it is forwarded
+//   POST /__proxy/delay-body?ms=N&match=S   the body of a GET whose path contains S is held N ms after its headers
 //   POST /__proxy/fail-writes?match=S   PUT/POST requests whose path contains S get a 500 InternalError (empty S: none)
 import http from 'node:http';
 
@@ -14,6 +15,8 @@ const upstream = new URL(process.argv[2] ?? '');
 let seen = [];
 let cutAfter = null;
 let delayMs = 0;
+let bodyDelayMs = 0;
+let bodyDelayMatch = '';
 let failWrites = '';
 
 const server = http.createServer((req, res) => {
@@ -23,6 +26,7 @@ const server = http.createServer((req, res) => {
     else if (url.pathname === '/__proxy/reset') (seen = []), res.end('{}');
     else if (url.pathname === '/__proxy/cut-next-get') (cutAfter = Number(url.searchParams.get('after') ?? 0)), res.end('{}');
     else if (url.pathname === '/__proxy/delay') (delayMs = Number(url.searchParams.get('ms') ?? 0)), res.end('{}');
+    else if (url.pathname === '/__proxy/delay-body') (bodyDelayMs = Number(url.searchParams.get('ms') ?? 0)), (bodyDelayMatch = url.searchParams.get('match') ?? ''), res.end('{}');
     else if (url.pathname === '/__proxy/fail-writes') (failWrites = url.searchParams.get('match') ?? ''), res.end('{}');
     else (res.statusCode = 404), res.end('{}');
     return;
@@ -40,7 +44,10 @@ const server = http.createServer((req, res) => {
     const out = http.request({ host: upstream.hostname, port: upstream.port, method: req.method, path: req.url, headers: req.headers }, (up) => {
       res.writeHead(up.statusCode ?? 502, up.headers);
       if (cut === null) {
-        up.pipe(res);
+        if (req.method === 'GET' && bodyDelayMs > 0 && url.pathname.includes(bodyDelayMatch)) {
+          up.pause();
+          setTimeout(() => up.pipe(res), bodyDelayMs);
+        } else up.pipe(res);
         return;
       }
       let sent = 0;

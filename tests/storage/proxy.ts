@@ -12,6 +12,7 @@ export type CountingProxy = {
   reset: () => Promise<void>;
   cutNextGet: (afterBytes: number) => Promise<void>;
   delayGets: (ms: number) => Promise<void>;
+  delayBodies: (ms: number, match?: string) => Promise<void>;
   failWrites: (match: string) => Promise<void>;
   stop: () => void;
 };
@@ -35,6 +36,7 @@ export async function startCountingProxy(upstream: string): Promise<CountingProx
     reset: async () => void (await call('reset')),
     cutNextGet: async (after) => void (await call(`cut-next-get?after=${after}`)),
     delayGets: async (ms) => void (await call(`delay?ms=${ms}`)),
+    delayBodies: async (ms, match = '') => void (await call(`delay-body?ms=${ms}&match=${encodeURIComponent(match)}`)),
     failWrites: async (match) => void (await call(`fail-writes?match=${encodeURIComponent(match)}`)),
     stop: () => void child.kill('SIGTERM'),
   };

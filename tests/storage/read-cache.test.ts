@@ -80,6 +80,7 @@ afterAll(async () => {
 });
 beforeEach(async () => {
   await proxy.delayGets(0);
+  await proxy.delayBodies(0);
   await proxy.reset();
 });
 
@@ -156,6 +157,18 @@ describe('caching store (storage() on S3)', () => {
     expect(existsSync(cachedPath(cached, key))).toBe(false);
     expect(sha(await cached.getBytes(key))).toBe(sha(next));
     await cached.deletePrefix('analyses/cs1/');
+    expect(existsSync(cachedPath(cached, key))).toBe(false);
+    expect(await cached.stat(key)).toBeNull();
+  });
+
+  it('a delete during a download of the same key leaves no copy behind', async () => {
+    const key = 'analyses/del1/risk.trgrid';
+    await direct.putBytes(key, pattern(400_000, 13));
+    await proxy.delayBodies(600, '/analyses/del1/'); // the GET reaches the bucket, its body arrives after the delete
+    const pending = readablePath(cached, key);
+    await vi.waitFor(async () => expect(await proxy.count('GET', key)).toBe(1), { timeout: 5_000, interval: 20 });
+    await cached.deletePrefix('analyses/del1/');
+    await pending; // the download that was running completed (the bytes were already on their way)
     expect(existsSync(cachedPath(cached, key))).toBe(false);
     expect(await cached.stat(key)).toBeNull();
   });
