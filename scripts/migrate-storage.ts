@@ -4,10 +4,15 @@
 //   --data-dir DIR     the data folder (default: TRENCHANT_DATA_DIR, else the folder of TRENCHANT_DB, else ./data)
 //   --concurrency N    files copied at once (default 4)
 //   --quiet            no line per file, only the summary
+//   --db FILE          the database, to report files it refers to that the data folder lacks (default TRENCHANT_DB)
 // Exit status: 0 every file is in the bucket and checked; 1 some failed (each is named); 2 bad settings;
 // 130 stopped by Ctrl-C (run it again to finish).
+import { existsSync } from 'node:fs';
 import path from 'node:path';
+import Database from 'better-sqlite3';
+import { databasePath } from '../db/client';
 import { dataDir } from '../lib/jobs/paths';
+import { storedKeysOf } from '../lib/jobs/warm-results';
 import { migrateToS3, STORED_ROOTS, type MigrateEvent } from '../lib/storage/migrate';
 import { describeS3, s3ConfigFromEnv } from '../lib/storage/s3-config';
 import { S3ObjectStore } from '../lib/storage/s3-store';
@@ -16,7 +21,7 @@ const mb = (n: number) => (n >= 1024 * 1024 ? `${(n / 1024 / 1024).toFixed(1)} M
 
 function usage(message: string): never {
   console.error(`storage:migrate: ${message}`);
-  console.error('usage: npm run storage:migrate -- [--data-dir DIR] [--concurrency N] [--quiet]');
+  console.error('usage: npm run storage:migrate -- [--data-dir DIR] [--db FILE] [--concurrency N] [--quiet]');
   process.exit(2);
 }
 
@@ -24,6 +29,7 @@ const args = process.argv.slice(2);
 let folder = '';
 let concurrency = 4;
 let quiet = false;
+let dbFile = '';
 for (let i = 0; i < args.length; i++) {
   const a = args[i];
   if (a === '--data-dir') folder = args[++i] ?? usage('--data-dir needs a folder');
@@ -31,6 +37,7 @@ for (let i = 0; i < args.length; i++) {
     concurrency = Number(args[++i]);
     if (!Number.isInteger(concurrency) || concurrency < 1 || concurrency > 16) usage('--concurrency takes a whole number from 1 to 16');
   } else if (a === '--quiet') quiet = true;
+  else if (a === '--db') dbFile = args[++i] ?? usage('--db needs a file');
   else usage(`unknown option ${JSON.stringify(a)}`);
 }
 
@@ -86,6 +93,7 @@ console.log(
 );
 if (summary.temporary) console.log(`  ${summary.temporary} temporary file(s) of writes in progress were not copied (stop the server before migrating)`);
 if (summary.leftAlone.length) console.log(`  left in the data folder, not stored objects: ${summary.leftAlone.join(', ')}`);
+reportUnbacked(dbFile || databasePath(), source);
 if (summary.failed.length) {
   console.error('\nstorage:migrate: these files are NOT in the bucket; fix the cause and run it again (copied files are skipped):');
   for (const f of summary.failed) console.error(`  ${f.key}: ${f.message}`);
@@ -100,3 +108,27 @@ console.log(
     ` set, check a few analyses, then remove ${STORED_ROOTS.map((d) => path.join(source, d)).join(' and ')} yourself.`,
 );
 
+
+/** Files the database refers to that the data folder does not have (already missing before the move). */
+function reportUnbacked(file: string, folder: string): void {
+  if (!existsSync(file)) {
+    console.log(`  no database at ${file}: not checked which files it refers to (--db FILE)`);
+    return;
+  }
+  let keys: string[];
+  try {
+    const sqlite = new Database(file, { readonly: true, fileMustExist: true });
+    try {
+      keys = storedKeysOf(sqlite);
+    } finally {
+      sqlite.close();
+    }
+  } catch (err) {
+    console.log(`  could not read the database ${file} to check the files it refers to: ${err instanceof Error ? err.message : String(err)}`);
+    return;
+  }
+  const missing = keys.filter((k) => !existsSync(path.join(folder, ...k.split('/'))));
+  console.log(`  the database refers to ${keys.length} stored files; ${missing.length === 0 ? 'all were in the data folder' : `${missing.length} were NOT in the data folder (they were missing before the move, and stay missing):`}`);
+  for (const k of missing.slice(0, 50)) console.log(`    ${k}`);
+  if (missing.length > 50) console.log(`    ... and ${missing.length - 50} more`);
+}

@@ -56,3 +56,20 @@ export function warmResultCache(analysisId: string, options: { db?: Db; store?: 
   warming.set(analysisId, job);
   return job;
 }
+
+/**
+ * Every storage key the database refers to: each revision's layout and each analysis's result files. For
+ * `npm run storage:migrate`, which reports the ones missing from the data folder. Takes the raw SQLite handle so
+ * the script can open the database read-only.
+ */
+export function storedKeysOf(sqlite: Db['$client']): string[] {
+  const layouts = sqlite.prepare('SELECT stored_path AS k FROM layout_revisions').all() as { k: string }[];
+  const results = sqlite
+    .prepare(
+      `SELECT COALESCE(a.result_dir, 'analyses/' || a.id) || '/' || m.file AS k FROM analysis_maps m JOIN analyses a ON a.id = m.analysis_id
+       UNION ALL
+       SELECT COALESCE(a.result_dir, 'analyses/' || a.id) || '/' || f.file AS k FROM analysis_feature_files f JOIN analyses a ON a.id = f.analysis_id`,
+    )
+    .all() as { k: string }[];
+  return [...new Set([...layouts, ...results].map((r) => r.k.split('\\').join('/')))].sort();
+}

@@ -7,7 +7,8 @@
  *   - a second run copies nothing (no PUT or POST reaches the bucket, and no GET: equality is settled by HEAD);
  *   - an object that differs from the local file (same size, other bytes) is copied again;
  *   - a run stopped part-way resumes: the next run skips what was copied and copies the rest;
- *   - the script exits 1 naming a file whose upload failed (injected 500s), and 0 on the re-run.
+ *   - the script exits 1 naming a file whose upload failed (injected 500s), and 0 on the re-run; it names a file the
+ *     database refers to that the data folder lacks.
  * Checksums (checksums.ts) are checked against published test vectors: MD5 of "abc" from RFC 1321 §A.5, SHA-256 of
  * "abc" from FIPS 180-2 Appendix B.1; the multipart ETag against its definition (MD5 of the parts' MD5 digests,
  * "-<parts>"; AWS S3 user guide, "Checking object integrity") computed here on slices of the buffer.
@@ -18,6 +19,7 @@ import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import { openDatabase } from '@/db/client';
 import { encodeFeatureFile, featureFileBytes } from '@/lib/jobs/feature-file';
 import { CachedS3ObjectStore } from '@/lib/storage/cached-s3-store';
 import { fileSums } from '@/lib/storage/checksums';
@@ -35,6 +37,7 @@ const savedCache = process.env.TRENCHANT_CACHE_DIR;
 let fake: TestS3;
 let proxy: CountingProxy;
 const opened: S3ObjectStore[] = [];
+let dbBytes: Buffer;
 
 function pattern(n: number, seed: number): Buffer {
   const b = Buffer.alloc(n);
@@ -73,7 +76,21 @@ beforeAll(async () => {
     writeFileSync(path.join(dataDir, key), bytes);
   }
   // Not stored objects: the database, an upload in flight, and a result file being written.
-  writeFileSync(path.join(dataDir, 'trenchant.db'), 'SQLite format 3\0');
+  // The installation's database, referring to one result file that is there and one that is not.
+  const db = openDatabase(path.join(dataDir, 'trenchant.db'));
+  db.$client.pragma('foreign_keys = OFF');
+  db.$client
+    .prepare(
+      `INSERT INTO analyses (id, project_id, revision_id, created_at, settings, model, model_name, model_version, model_source, status, progress, result_dir)
+       VALUES ('a1', 'p', 'r', 0, '{}', '{}', 'm', '1', 'test', 'done', 1, 'analyses/a1')`,
+    )
+    .run();
+  const map = db.$client.prepare('INSERT INTO analysis_maps (analysis_id, name, kind, unit, file, x0_um, y0_um, pixel_um, nx, ny, meta, bytes) VALUES (?,?,?,?,?,?,?,?,?,?,?,?)');
+  map.run('a1', 'risk', 'risk', 'score', 'risk.trgrid', 0, 0, 1, 10, 10, '{}', 1);
+  map.run('a1', 'lost', 'risk', 'score', 'lost.trgrid', 0, 0, 1, 10, 10, '{}', 1);
+  db.$client.pragma('wal_checkpoint(TRUNCATE)');
+  db.$client.close();
+  dbBytes = readFileSync(path.join(dataDir, 'trenchant.db'));
   mkdirSync(path.join(dataDir, 'tmp'), { recursive: true });
   writeFileSync(path.join(dataDir, 'tmp', 'upload-1.part'), 'x');
   writeFileSync(path.join(dataDir, 'analyses', 'a1', 'risk.trgrid.tmp-77-abcd1234'), 'half');
@@ -122,7 +139,7 @@ describe('storage:migrate', () => {
     const app = storeAt('m1', 'direct', true);
     for (const [key, bytes] of Object.entries(SEED)) expect(Buffer.from(await app.getBytes(key)).equals(bytes), key).toBe(true);
     for (const key of Object.keys(SEED)) expect(existsSync(path.join(dataDir, key))).toBe(true);
-    expect(readFileSync(path.join(dataDir, 'trenchant.db'), 'utf8')).toBe('SQLite format 3\0');
+    expect(readFileSync(path.join(dataDir, 'trenchant.db')).equals(dbBytes)).toBe(true);
   });
 
   it('a second run copies nothing and reads nothing back', async () => {
@@ -157,7 +174,7 @@ describe('storage:migrate', () => {
 
   it('the script names a failed upload and exits 1; run again, it finishes and exits 0', async () => {
     const env = { ...process.env, ...fake.env, TRENCHANT_S3_ENDPOINT: proxy.endpoint, TRENCHANT_S3_PREFIX: 'm5' };
-    const run = () => spawnSync(process.execPath, ['--import', 'tsx', 'scripts/migrate-storage.ts', '--data-dir', dataDir], { cwd: PROJECT_ROOT, env, encoding: 'utf8', timeout: 120_000 });
+    const run = () => spawnSync(process.execPath, ['--import', 'tsx', 'scripts/migrate-storage.ts', '--data-dir', dataDir, '--db', path.join(dataDir, 'trenchant.db')], { cwd: PROJECT_ROOT, env, encoding: 'utf8', timeout: 120_000 });
     await proxy.failWrites('/analyses/a1/features.trfeat');
     const bad = run();
     expect(bad.status, bad.stderr).toBe(1);
@@ -165,6 +182,7 @@ describe('storage:migrate', () => {
     expect(bad.stderr).toMatch(/these files are NOT in the bucket[\s\S]*analyses\/a1\/features\.trfeat/);
     expect(bad.stdout).toMatch(/6 files: 5 copied .*, 0 already present .*, 1 failed/);
     expect(bad.stdout).toMatch(/left in the data folder, not stored objects: tmp\/, trenchant\.db/);
+    expect(bad.stdout).toMatch(/the database refers to 2 stored files; 1 were NOT in the data folder[^\n]*\n\s+analyses\/a1\/lost\.trgrid/);
     await proxy.failWrites('');
     const good = run();
     expect(good.status, good.stderr).toBe(0);
