@@ -4,6 +4,7 @@
 //   --data-dir DIR     the data folder (default: TRENCHANT_DATA_DIR, else the folder of TRENCHANT_DB, else ./data)
 //   --concurrency N    files copied at once (default 4)
 //   --quiet            no line per file, only the summary
+//   --dry-run          only compare: list what would be copied, write nothing
 //   --db FILE          the database, to report files it refers to that the data folder lacks (default TRENCHANT_DB)
 // Exit status: 0 every file is in the bucket and checked; 1 some failed (each is named); 2 bad settings;
 // 130 stopped by Ctrl-C (run it again to finish).
@@ -21,7 +22,7 @@ const mb = (n: number) => (n >= 1024 * 1024 ? `${(n / 1024 / 1024).toFixed(1)} M
 
 function usage(message: string): never {
   console.error(`storage:migrate: ${message}`);
-  console.error('usage: npm run storage:migrate -- [--data-dir DIR] [--db FILE] [--concurrency N] [--quiet]');
+  console.error('usage: npm run storage:migrate -- [--data-dir DIR] [--db FILE] [--concurrency N] [--quiet] [--dry-run]');
   process.exit(2);
 }
 
@@ -30,6 +31,7 @@ let folder = '';
 let concurrency = 4;
 let quiet = false;
 let dbFile = '';
+let dryRun = false;
 for (let i = 0; i < args.length; i++) {
   const a = args[i];
   if (a === '--data-dir') folder = args[++i] ?? usage('--data-dir needs a folder');
@@ -37,6 +39,7 @@ for (let i = 0; i < args.length; i++) {
     concurrency = Number(args[++i]);
     if (!Number.isInteger(concurrency) || concurrency < 1 || concurrency > 16) usage('--concurrency takes a whole number from 1 to 16');
   } else if (a === '--quiet') quiet = true;
+  else if (a === '--dry-run') dryRun = true;
   else if (a === '--db') dbFile = args[++i] ?? usage('--db needs a file');
   else usage(`unknown option ${JSON.stringify(a)}`);
 }
@@ -73,12 +76,13 @@ const onEvent = (e: MigrateEvent) => {
   const where = `[${e.index}/${e.total}, ${mb(bytesDone)}]`;
   if (e.type === 'copied') console.log(`${where} copied  ${e.key} (${mb(e.bytes)}, checked by ${e.verifiedBy === 'etag' ? 'ETag' : 'reading it back'})`);
   else if (e.type === 'skipped') console.log(`${where} present ${e.key} (same size and checksum)`);
+  else if (e.type === 'would-copy') console.log(`${where} to copy ${e.key} (${mb(e.bytes)}; missing from the bucket or different there)`);
   else console.error(`${where} FAILED  ${e.key}: ${e.message}`);
 };
 
 let summary;
 try {
-  summary = await migrateToS3(source, target, { concurrency, signal: controller.signal, onEvent });
+  summary = await migrateToS3(source, target, { concurrency, signal: controller.signal, onEvent, dryRun });
 } catch (err) {
   console.error(`storage:migrate: ${err instanceof Error ? err.message : String(err)}`);
   process.exit(2);
@@ -98,6 +102,10 @@ if (summary.failed.length) {
   console.error('\nstorage:migrate: these files are NOT in the bucket; fix the cause and run it again (copied files are skipped):');
   for (const f of summary.failed) console.error(`  ${f.key}: ${f.message}`);
   process.exit(1);
+}
+if (dryRun) {
+  console.log(`storage:migrate: dry run: ${summary.wouldCopy} file(s) would be copied; nothing was written`);
+  process.exit(0);
 }
 if (summary.notStarted) {
   console.error('storage:migrate: stopped before every file was copied; run it again to finish');

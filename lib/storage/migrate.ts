@@ -25,12 +25,15 @@ export type MigrateFile = { key: string; file: string; size: number };
 export type MigrateEvent =
   | { type: 'copied'; key: string; bytes: number; verifiedBy: 'etag' | 'read-back'; index: number; total: number }
   | { type: 'skipped'; key: string; bytes: number; index: number; total: number }
+  | { type: 'would-copy'; key: string; bytes: number; index: number; total: number }
   | { type: 'failed'; key: string; bytes: number; message: string; index: number; total: number };
 
 export type MigrateSummary = {
   files: number;
   copied: number;
   skipped: number;
+  /** Dry run: files that would be copied (missing from the bucket or different there). */
+  wouldCopy: number;
   failed: { key: string; message: string }[];
   /** Files not started because the run was stopped (signal). */
   notStarted: number;
@@ -46,6 +49,8 @@ export type MigrateOptions = {
   concurrency?: number;
   signal?: AbortSignal;
   onEvent?: (event: MigrateEvent) => void;
+  /** Only compare: report what would be copied, write nothing. */
+  dryRun?: boolean;
 };
 
 /** The stored files of a data folder, sorted by key; temporary files are counted, not listed. */
@@ -82,7 +87,7 @@ export async function listStoredFiles(dataDir: string): Promise<{ files: Migrate
 /** Copies every stored file of `dataDir` into the bucket of `target`. Never throws for one file's failure. */
 export async function migrateToS3(dataDir: string, target: S3ObjectStore, options: MigrateOptions = {}): Promise<MigrateSummary> {
   const { files, leftAlone, temporary } = await listStoredFiles(dataDir);
-  const summary: MigrateSummary = { files: files.length, copied: 0, skipped: 0, failed: [], notStarted: 0, bytesCopied: 0, bytesSkipped: 0, leftAlone, temporary };
+  const summary: MigrateSummary = { files: files.length, copied: 0, skipped: 0, wouldCopy: 0, failed: [], notStarted: 0, bytesCopied: 0, bytesSkipped: 0, leftAlone, temporary };
   const total = files.length;
   let next = 0;
   let done = 0;
@@ -92,9 +97,12 @@ export async function migrateToS3(dataDir: string, target: S3ObjectStore, option
       const f = files[next++];
       if (!f) return;
       try {
-        const outcome = await copyOne(target, f);
+        const outcome = await copyOne(target, f, options.dryRun === true);
         done++;
-        if (outcome === 'skipped') {
+        if (outcome === 'would-copy') {
+          summary.wouldCopy++;
+          options.onEvent?.({ type: 'would-copy', key: f.key, bytes: f.size, index: done, total });
+        } else if (outcome === 'skipped') {
           summary.skipped++;
           summary.bytesSkipped += f.size;
           options.onEvent?.({ type: 'skipped', key: f.key, bytes: f.size, index: done, total });
@@ -147,10 +155,11 @@ async function sameBytes(target: S3ObjectStore, key: string, h: Head, sums: File
   return (await remoteSha256(target, key)) === sums.sha256 ? 'read-back' : null;
 }
 
-async function copyOne(target: S3ObjectStore, f: MigrateFile): Promise<'skipped' | 'etag' | 'read-back'> {
+async function copyOne(target: S3ObjectStore, f: MigrateFile, dryRun: boolean): Promise<'skipped' | 'would-copy' | 'etag' | 'read-back'> {
   const sums = await fileSums(f.file, PART_BYTES);
   if (sums.size !== f.size) throw new Error(`${f.file} changed size while it was being read (${f.size} → ${sums.size} bytes); is the server still writing? Run again when it is stopped`);
   if (await sameBytes(target, f.key, await head(target, f.key), sums, true)) return 'skipped';
+  if (dryRun) return 'would-copy';
   const up = new Upload({
     client: target.client,
     params: { Bucket: target.config.bucket, Key: target.config.prefix + f.key, Body: createReadStream(f.file), Metadata: { [SHA256_METADATA]: sums.sha256 } },

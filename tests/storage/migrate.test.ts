@@ -142,6 +142,13 @@ describe('storage:migrate', () => {
     expect(readFileSync(path.join(dataDir, 'trenchant.db')).equals(dbBytes)).toBe(true);
   });
 
+  it('a dry run writes nothing and lists what a real run would copy', async () => {
+    const dry = await migrateToS3(dataDir, storeAt('m6', 'proxy'), { dryRun: true });
+    expect(dry).toMatchObject({ files: 6, copied: 0, skipped: 0, wouldCopy: 6, failed: [] });
+    expect(await fake.keys('m6/')).toEqual([]);
+    expect((await proxy.requests()).filter((r) => r.method !== 'HEAD')).toEqual([]);
+  });
+
   it('a second run copies nothing and reads nothing back', async () => {
     await migrateToS3(dataDir, storeAt('m2', 'proxy'));
     await proxy.reset();
