@@ -1,10 +1,12 @@
 /**
- * Downloads of S3 objects into the read cache, each on a short-lived worker thread, so that one download can be
- * awaited by asynchronous readers and waited for by synchronous ones alike (the per-opening column file is read
- * with positional reads from code that is synchronous all the way up: lib/jobs/feature-columns.ts). The thread
- * streams the body to a temporary file beside the destination and renames it into place, so neither thread ever
- * holds the object in memory and a failed download leaves no partial file under the destination's name.
- * The outcome is written to shared memory (Atomics.wait for synchronous waiters) and posted (for the promise).
+ * Downloads of S3 objects into the read cache, on one long-lived download thread per process, so that one download
+ * can be awaited by asynchronous readers and waited for by synchronous ones alike (the per-opening column file is
+ * read with positional reads from code that is synchronous all the way up: lib/jobs/feature-columns.ts). The thread
+ * keeps one SDK client per configuration and runs its downloads concurrently; each streams the body to a temporary
+ * file beside the destination and renames it into place, so no thread holds the object in memory and a failed
+ * download leaves no partial file under the destination's name. Each outcome is written to memory shared with the
+ * caller (Atomics.wait for synchronous waiters) and posted (for the promise). The thread keeps the process alive
+ * only while downloads are running; if it stops, its downloads fail and the next download starts a new one.
  */
 import path from 'node:path';
 import { Worker } from 'node:worker_threads';
@@ -17,37 +19,73 @@ const { workerData, parentPort } = require('node:worker_threads');
 const { createRequire } = require('node:module');
 const fs = require('node:fs');
 const { pipeline } = require('node:stream/promises');
-const state = new Int32Array(workerData.shared, 0, 2);
-const text = new Uint8Array(workerData.shared, 8);
-const finish = (code, message) => {
-  const bytes = Buffer.from(String(message).slice(0, 2000));
-  const n = Math.min(bytes.length, text.length);
-  text.set(bytes.subarray(0, n));
-  Atomics.store(state, 1, n);
-  Atomics.store(state, 0, code);
-  Atomics.notify(state, 0);
-  parentPort.postMessage(code);
-};
-(async () => {
-  const req = createRequire(workerData.requireFrom);
-  const { S3Client, GetObjectCommand } = req('@aws-sdk/client-s3');
-  const client = new S3Client(workerData.client);
-  try {
-    const res = await client.send(new GetObjectCommand({ Bucket: workerData.bucket, Key: workerData.key }));
-    await pipeline(res.Body, fs.createWriteStream(workerData.tmp));
-    fs.renameSync(workerData.tmp, workerData.dest);
-  } finally {
-    client.destroy();
+const req = createRequire(workerData.requireFrom);
+let sdk = null;
+const clients = new Map();
+const clientFor = (options) => {
+  const id = JSON.stringify(options);
+  let c = clients.get(id);
+  if (!c) {
+    sdk = sdk || req('@aws-sdk/client-s3');
+    c = new sdk.S3Client(options);
+    clients.set(id, c);
   }
-})().then(
-  () => finish(1, ''),
-  (err) => {
-    try { fs.unlinkSync(workerData.tmp); } catch {}
-    const missing = err && (err.name === 'NoSuchKey' || err.name === 'NotFound' || (err.$metadata && err.$metadata.httpStatusCode === 404));
-    finish(missing ? 3 : 2, (err && err.message) || String(err));
-  },
-);
+  return c;
+};
+parentPort.on('message', (job) => {
+  const state = new Int32Array(job.shared, 0, 2);
+  const text = new Uint8Array(job.shared, 8);
+  const finish = (code, message) => {
+    const bytes = Buffer.from(String(message).slice(0, 2000));
+    const n = Math.min(bytes.length, text.length);
+    text.set(bytes.subarray(0, n));
+    Atomics.store(state, 1, n);
+    Atomics.store(state, 0, code);
+    Atomics.notify(state, 0);
+    parentPort.postMessage(job.id);
+  };
+  (async () => {
+    const client = clientFor(job.client);
+    const res = await client.send(new sdk.GetObjectCommand({ Bucket: job.bucket, Key: job.key }));
+    await pipeline(res.Body, fs.createWriteStream(job.tmp));
+    fs.renameSync(job.tmp, job.dest);
+  })().then(
+    () => finish(1, ''),
+    (err) => {
+      try { fs.unlinkSync(job.tmp); } catch {}
+      const missing = err && (err.name === 'NoSuchKey' || err.name === 'NotFound' || (err.$metadata && err.$metadata.httpStatusCode === 404));
+      finish(missing ? 3 : 2, (err && err.message) || String(err));
+    },
+  );
+});
 `;
+
+type Pending = { settle: () => void; fail: (err: Error) => void };
+let thread: { worker: Worker; pending: Map<number, Pending> } | null = null;
+let nextId = 1;
+
+function downloadThread(): NonNullable<typeof thread> {
+  if (thread) return thread;
+  const requireFrom = path.join(process.env.TRENCHANT_ROOT ?? process.cwd(), 'package.json');
+  const worker = new Worker(WORKER_SOURCE, { eval: true, workerData: { requireFrom }, stdout: false, stderr: false });
+  worker.unref(); // kept alive only while downloads are awaited (ref() below)
+  const t = { worker, pending: new Map<number, Pending>() };
+  worker.on('message', (id: number) => {
+    const p = t.pending.get(id);
+    t.pending.delete(id);
+    if (t.pending.size === 0) worker.unref();
+    p?.settle();
+  });
+  const stopped = (why: string) => {
+    if (thread === t) thread = null;
+    for (const p of t.pending.values()) p.fail(new Error(why));
+    t.pending.clear();
+  };
+  worker.on('error', (err) => stopped(`the download thread failed: ${err.message}`));
+  worker.on('exit', () => stopped('the download thread stopped'));
+  thread = t;
+  return t;
+}
 
 const RUNNING = 0;
 const OK = 1;
@@ -70,14 +108,8 @@ export function startDownload(config: S3Config, key: string, dest: string): Down
   const shared = new SharedArrayBuffer(8 + 2048);
   const state = new Int32Array(shared, 0, 2);
   const tmp = `${dest}.tmp-${process.pid}-dl-${Math.random().toString(36).slice(2, 10)}`;
-  const requireFrom = path.join(process.env.TRENCHANT_ROOT ?? process.cwd(), 'package.json');
-  const worker = new Worker(WORKER_SOURCE, {
-    eval: true,
-    workerData: { shared, client: config.client, bucket: config.bucket, key: config.prefix + key, dest, tmp, requireFrom },
-    stdout: false,
-    stderr: false,
-  });
-  worker.unref(); // a download in flight does not keep the process alive
+  const t = downloadThread();
+  const id = nextId++;
   const outcome = (): Error | null => {
     const code = Atomics.load(state, 0);
     if (code === OK) return null;
@@ -86,15 +118,17 @@ export function startDownload(config: S3Config, key: string, dest: string): Down
     return new Error(`could not download ${key} from object storage: ${message || 'the download thread stopped'}`);
   };
   const done = new Promise<void>((resolve, reject) => {
-    const settle = () => {
-      const err = outcome();
-      if (err) reject(err);
-      else resolve();
-    };
-    worker.once('message', settle);
-    worker.once('error', (err) => reject(new Error(`could not download ${key} from object storage: ${err.message}`)));
-    worker.once('exit', () => (Atomics.load(state, 0) === RUNNING ? reject(new Error(`could not download ${key} from object storage: the download thread stopped`)) : settle()));
+    t.pending.set(id, {
+      settle: () => {
+        const err = outcome();
+        if (err) reject(err);
+        else resolve();
+      },
+      fail: (err) => reject(new Error(`could not download ${key} from object storage: ${err.message}`)),
+    });
   });
+  t.worker.ref();
+  t.worker.postMessage({ id, shared, client: config.client, bucket: config.bucket, key: config.prefix + key, dest, tmp });
   done.catch(() => undefined); // a waitSync caller sees the error; no unhandled rejection when nobody awaits
   return {
     done,
