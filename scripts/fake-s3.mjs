@@ -37,7 +37,7 @@ export async function startFakeS3({ directory, bucket = 'trenchant', port = 0, l
 
 // As a program (`node scripts/fake-s3.mjs <directory> [port]`): serve until stopped, printing one JSON line with
 // the endpoint and the TRENCHANT_S3_* variables. Tests run it in its own process, because the synchronous read path
-// (lib/storage/sync-fetch.ts) blocks the calling thread while it waits for the server.
+// (lib/storage/download-thread.ts) blocks the calling thread while it waits for the server.
 if (process.argv[1] && import.meta.url === (await import('node:url')).pathToFileURL(process.argv[1]).href) {
   const [directory, port] = process.argv.slice(2);
   if (!directory) {

@@ -14,6 +14,7 @@ import { finishJob } from './finish-job';
 import type { JobQueue } from './queue';
 import { recordPickup, recordProgress, recordQueueFailure, recordResult, remoteTaskOf } from './remote-results';
 import { isRemoteJobResult } from './remote-task';
+import { warmResultCache } from './warm-results';
 import { jobConcurrency } from './runner';
 
 /** Queued rows are handed to Redis again this often, so one that could not be added (Redis down) is not lost. */
@@ -56,6 +57,8 @@ export class BullJobQueue implements JobQueue {
         console.error(`[trenchant] could not record the progress of ${event.analysisId}:`, err instanceof Error ? err.message : err);
       }
       emitRelayedJobEvent(event);
+      // A worker with the database finished and wrote the rows itself: cache its files here (warm-results.ts).
+      if (event.status === 'done' && remote === null) void warmResultCache(event.analysisId);
     });
     this.eventsConnection = openRedis(url, 'server-queue-events');
     this.queueEvents = new QueueEvents(QUEUE_NAME, { connection: this.eventsConnection, prefix: redisPrefix() });

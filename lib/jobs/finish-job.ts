@@ -1,11 +1,13 @@
 /**
  * The one way a job reaches a terminal state, shared by the embedded runner and the BullMQ backend: the row is
  * updated only while queued or running (so a late result never overwrites a cancel), a job that did not finish
- * loses any partial result rows, and SSE subscribers get the final event.
+ * loses any partial result rows, SSE subscribers get the final event, and a done job's files are fetched into the
+ * read cache when they are on S3 (warm-results.ts).
  */
 import { getDb } from '@/db/client';
 import type { AnalysisStatus } from '@/db/schema';
 import { publishJobEvent } from './events';
+import { warmResultCache } from './warm-results';
 
 /** Writes a terminal state (only over queued/running, so a late result never overwrites a cancel). */
 export function finishJob(
@@ -31,4 +33,6 @@ export function finishJob(
   }
   const row = sqlite.prepare('SELECT progress FROM analyses WHERE id = ?').get(analysisId) as { progress: number } | undefined;
   publishJobEvent({ analysisId, status, stage: status, progress: row?.progress ?? 0, errorMessage: error?.message ?? null });
+  // Results on S3: into this server's read cache now, so the first review page does not wait for the bucket.
+  if (status === 'done') void warmResultCache(analysisId);
 }

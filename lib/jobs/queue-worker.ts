@@ -14,7 +14,8 @@
  *     period as the embedded pool). A cancel key in Redis covers a job that is picked up after the message.
  * Progress and final states go to Redis pub/sub, where the server hands them to its SSE subscribers.
  */
-import { UnrecoverableError, Worker, type Job } from 'bullmq';
+import { UnrecoverableError, Worker, type Job, type WorkerOptions } from 'bullmq';
+import type { Redis } from 'ioredis';
 import { storage } from '@/lib/storage';
 import { cancelChannel, cancelKey, eventsChannel, lockMs, openRedis, QUEUE_NAME, redisPrefix, safeUrl, type AnalysisJobData } from './bullmq-shared';
 import { setJobEventRelay, type JobEvent } from './events';
@@ -27,6 +28,21 @@ export type QueueWorker = { close: () => Promise<void>; concurrency: number };
 /** TRENCHANT_WORKER_DB=none: this worker opens no database (lib/jobs/remote-runner.ts); the server records. */
 export function workerWithoutDatabase(): boolean {
   return process.env.TRENCHANT_WORKER_DB?.trim().toLowerCase() === 'none';
+}
+
+/** The BullMQ Worker options both kinds of worker use: lock, stall checks and the stall cap. */
+export function workerOptions(connection: Redis, concurrency: number): WorkerOptions {
+  const lock = lockMs();
+  return {
+    connection,
+    prefix: redisPrefix(),
+    concurrency,
+    lockDuration: lock,
+    stalledInterval: Math.max(1_000, Math.floor(lock / 2)),
+    // The analyses row counts pick-ups and fails the job past the cap with a clear message; BullMQ allows one
+    // more stall so that check is the one that decides.
+    maxStalledCount: jobMaxAttempts(),
+  };
 }
 
 export async function startQueueWorker(url: string, log: (line: string) => void = (l) => console.log(l)): Promise<QueueWorker> {
@@ -56,17 +72,7 @@ export async function startQueueWorker(url: string, log: (line: string) => void 
     return { ran: true };
   };
 
-  const lock = lockMs();
-  const worker = new Worker<AnalysisJobData>(QUEUE_NAME, processor, {
-    connection,
-    prefix: redisPrefix(),
-    concurrency: runner.concurrency,
-    lockDuration: lock,
-    stalledInterval: Math.max(1_000, Math.floor(lock / 2)),
-    // The analyses row counts pick-ups and fails the job past the cap with a clear message; BullMQ allows one
-    // more stall so that check is the one that decides.
-    maxStalledCount: jobMaxAttempts(),
-  });
+  const worker = new Worker<AnalysisJobData>(QUEUE_NAME, processor, workerOptions(connection, runner.concurrency));
   worker.on('error', (err) => console.error('[trenchant] worker:', err.message));
   worker.on('failed', (job, err) => {
     if (!job) return;
@@ -130,15 +136,7 @@ async function startRemoteWorker(url: string, log: (line: string) => void): Prom
     return result;
   };
 
-  const lock = lockMs();
-  const worker = new Worker<AnalysisJobData, RemoteJobResult>(QUEUE_NAME, processor, {
-    connection,
-    prefix: redisPrefix(),
-    concurrency: runner.concurrency,
-    lockDuration: lock,
-    stalledInterval: Math.max(1_000, Math.floor(lock / 2)),
-    maxStalledCount: jobMaxAttempts(),
-  });
+  const worker = new Worker<AnalysisJobData, RemoteJobResult>(QUEUE_NAME, processor, workerOptions(connection, runner.concurrency));
   worker.on('error', (err) => console.error('[trenchant] worker:', err.message));
   worker.on('failed', (job, err) => {
     if (job) log(`[trenchant] worker ${process.pid}: analysis ${job.data.analysisId} failed in the worker (${err.message}); the queue retries it or the server marks it failed`);

@@ -23,7 +23,6 @@ import type { AnalysisTask, AnalysisTaskResult, WorkerMessage } from '@/lib/pipe
 import { wholeReadLimitBytes } from '@/lib/layout/whole-read-limit';
 import { isStorageNotFound, storage } from '@/lib/storage';
 import { localInput, resultStaging, type LocalInput, type ResultStaging } from '@/lib/storage/job-files';
-import { FEATURE_FILE_NAME } from './feature-file';
 import { isTerminal, publishJobEvent } from './events';
 import { finishJob } from './finish-job';
 import type { JobQueue } from './queue';
@@ -274,8 +273,9 @@ export class JobRunner implements JobQueue {
         return;
       }
       progress('saving', 0.95);
-      // The server reads the column file synchronously (feature-columns.ts): keep a local copy of it at hand.
-      await staging.commit({ cache: (file) => file === FEATURE_FILE_NAME });
+      // Results on S3: the files go into the read cache as they are uploaded (moved, not downloaded again), so the
+      // review pages never wait for the bucket after an embedded run (lib/jobs/warm-results.ts for other runs).
+      await staging.commit({ cache: () => true });
       await saveResultRows(getDb(), row.id, result, (f) => progress('saving', 0.95 + 0.049 * f));
       if (job.cancelRequested) {
         await discard();

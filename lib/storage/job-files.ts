@@ -58,7 +58,7 @@ export async function resultStaging(store: ObjectStore, prefix: string): Promise
           const key = `${prefix}/${entry.name}`;
           const file = path.join(dir, entry.name);
           await store.putFile(key, file);
-          if (options?.cache?.(entry.name)) await keepInCache(store, key, file);
+          if (options?.cache?.(entry.name)) await keepInCache(store, key, file, { move: true }); // the folder goes next
           keys.push(key);
         }
       } finally {

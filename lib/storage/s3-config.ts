@@ -7,7 +7,7 @@
  *   TRENCHANT_S3_ACCESS_KEY_ID, TRENCHANT_S3_SECRET_ACCESS_KEY   optional; unset = the AWS SDK's usual chain
  *                                  (AWS_ACCESS_KEY_ID / AWS_SECRET_ACCESS_KEY, profiles, instance roles)
  *   TRENCHANT_S3_PREFIX            optional key prefix inside the bucket, e.g. "trenchant/" to share a bucket
- * The options are plain JSON so the synchronous fetch thread (sync-fetch.ts) builds the very same client.
+ * The options are plain JSON so the download thread (download-thread.ts) builds the very same client.
  */
 export type S3Config = {
   bucket: string;

@@ -15,7 +15,8 @@ import { checkKey, checkPrefix } from './keys';
 import { describeS3, type S3Config } from './s3-config';
 import { StorageNotFoundError, type ByteRange, type ObjectStat, type ObjectStore } from './types';
 
-const PART_BYTES = 8 * 1024 * 1024;
+/** Multipart part size of uploads (also what the migration assumes when it checks a multipart ETag). */
+export const PART_BYTES = 8 * 1024 * 1024;
 
 function statusOf(err: unknown): number | undefined {
   return err instanceof S3ServiceException ? err.$metadata.httpStatusCode : (err as { $metadata?: { httpStatusCode?: number } } | null)?.$metadata?.httpStatusCode;
