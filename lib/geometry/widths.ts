@@ -41,6 +41,8 @@ import { polishLocal, refineLargestDisk, seededBest } from './disk-search';
 import { edgeList } from './edge-distance';
 import { convexInscribedRadius, isConvexRing } from './convex-width';
 import { polygonisedCircle } from './circle-width';
+import { manhattanLines } from './manhattan-lines';
+import { manhattanWidths } from './manhattan-widths';
 import type { Box } from './types';
 
 export interface WidthOptions {
@@ -51,6 +53,8 @@ export interface WidthOptions {
   stepsPerWidth?: number;
   /** Measure on the sampled lattice even where the exact Manhattan lattice applies (tests compare the two). */
   sampledLattice?: boolean;
+  /** Skip the compressed Manhattan lattice: the uniform lattices only (tests and benches compare the methods). */
+  uniformLattice?: boolean;
 }
 
 export interface WidthResult {
@@ -166,6 +170,12 @@ function toBboxFrame(coords: ArrayLike<number>, rings: [number, number][], bbox:
   return { coords: out, rings: moved };
 }
 
+/** Refinement step of the compressed Manhattan lattice near vertex lines, per mean width 2·area/perimeter. */
+const COMPRESSED_STEPS_PER_WIDTH = 8;
+
+/** Manhattan openings the compressed lattice declined (node cap) since the process started: benches report it. */
+export let compressedFallbacks = 0;
+
 /** The lattice method of the module doc (shapes that are neither rectangles nor convex). */
 function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbox: Box, area: number, perimeter: number, manhattan: boolean, g: number, opts: WidthOptions): WidthResult {
   const maxNodes = opts.maxNodes ?? 4_096;
@@ -175,6 +185,14 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
   const nodesAt = (s: number) => (Math.ceil(bw / s) + 1) * (Math.ceil(bh / s) + 1);
   const meanWidth = perimeter > 0 ? (2 * area) / perimeter : Math.min(bw, bh);
   const exactCap = 16 * maxNodes;
+  if (manhattan && !opts.sampledLattice && !opts.uniformLattice) {
+    // Compressed lattice (manhattan-lines.ts): exact on any vertex grid; beyond its node cap, the paths below.
+    const h = meanWidth / COMPRESSED_STEPS_PER_WIDTH;
+    const lines = manhattanLines(coords, rings, h, exactCap);
+    const w = lines ? manhattanWidths(lines, edgeList(coords, rings, true)) : null;
+    if (w) return { minWidth: w.minWidth, maxWidth: w.maxWidth, step: h, exact: true };
+    compressedFallbacks++;
+  }
   if (manhattan && g > 0 && nodesAt(g / 2) <= exactCap && !opts.sampledLattice) {
     // Any divisor of g/2 keeps the lattice exact; refine to ≥ 40 nodes per mean width so disks centred near
     // junctions are sampled finely enough to cover their neighbours (the self-centred test is strict here).

@@ -1,0 +1,215 @@
+/**
+ * Exact widths of a Manhattan (axis-parallel) opening on its compressed lattice (manhattan-lines.ts), whatever grid
+ * its vertices lie on. Definitions as in widths.ts (maxWidth, self-centred centres, minWidth).
+ *
+ * - D at the nodes: the squared Euclidean distance transform to the non-interior nodes, by Felzenszwalb &
+ *   Huttenlocher's lower envelope of parabolas, which works on arbitrary sample positions (P. Felzenszwalb,
+ *   D. Huttenlocher, "Distance Transforms of Sampled Functions", Theory of Computing 8, 2012): exact, since every
+ *   node's nearest boundary point is a non-interior node.
+ * - minWidth: nodes in increasing D; the first one that no node with a larger disk covers and that is a true local
+ *   maximum of D (ridge-snap.ts isLocalMaximum, on the exact edges) is self-centred, its 2·D the answer. A centre that
+ *   is not a local maximum is never self-centred (a point a little uphill has a larger disk containing it), so that
+ *   test only removes nodes whose covering disk is centred between nodes (near a convex corner or an off-lattice
+ *   medial-axis vertex, where a non-uniform lattice may have no covering node). The self-centred points of a
+ *   Manhattan opening are plateaus of D (trench midlines, nodes by construction, with lines where they end and where
+ *   the coverage from a wider region stops) and isolated medial-axis vertices, which are larger than the arms
+ *   around them in the shapes tested.
+ * - maxWidth: the largest node D, and the pattern search with ridge snap (disk-search.ts climbToMaximum) from the
+ *   nodes that could lie next to a larger off-lattice maximum (a medial-axis vertex at reflex corners: D there exceeds
+ *   the best node's D by at most the half-diagonal of the cells around the node).
+ */
+import type { ManhattanLines } from './manhattan-lines';
+import { climbToMaximum } from './disk-search';
+import { isLocalMaximum } from './ridge-snap';
+
+let maskS = new Uint8Array(0);
+let d2S = new Float64Array(0);
+let rootS = new Float64Array(0);
+let candS = new Int32Array(0);
+let fS = new Float64Array(0), dS = new Float64Array(0), zS = new Float64Array(0), vS = new Int32Array(0);
+
+/** Interior nodes (all four quadrants inside) from the vertex-grid cells, into module scratch. */
+function interiorMask(L: ManhattanLines): Uint8Array {
+  const { xs, ys, bx, by, cellIn } = L;
+  const nx = xs.length, ny = ys.length, ncx = bx.length - 1, ncy = by.length - 1;
+  if (maskS.length < nx * ny) maskS = new Uint8Array(Math.max(nx * ny, 2 * maskS.length));
+  const mask = maskS.subarray(0, nx * ny).fill(0);
+  // Vertex-grid column left and right of each x line (−1 or ncx outside), rows likewise.
+  const cl = new Int32Array(nx), cr = new Int32Array(nx), rl = new Int32Array(ny), ru = new Int32Array(ny);
+  for (let i = 0, c = 0; i < nx; i++) {
+    const x = xs[i] as number;
+    while (c < ncx && (bx[c + 1] as number) <= x) c++;
+    // bx[c] ≤ x < bx[c+1] (or c = ncx at the last line).
+    cr[i] = c < ncx ? c : -1;
+    cl[i] = x === (bx[c] as number) ? c - 1 : c < ncx ? c : -1;
+  }
+  for (let j = 0, r = 0; j < ny; j++) {
+    const y = ys[j] as number;
+    while (r < ncy && (by[r + 1] as number) <= y) r++;
+    ru[j] = r < ncy ? r : -1;
+    rl[j] = y === (by[r] as number) ? r - 1 : r < ncy ? r : -1;
+  }
+  for (let j = 1; j + 1 < ny; j++) {
+    const a = rl[j] as number, b = ru[j] as number;
+    if (a < 0 || b < 0) continue;
+    for (let i = 1; i + 1 < nx; i++) {
+      const p = cl[i] as number, q = cr[i] as number;
+      if (p < 0 || q < 0) continue;
+      if (cellIn[a * ncx + p] && cellIn[a * ncx + q] && cellIn[b * ncx + p] && cellIn[b * ncx + q]) mask[j * nx + i] = 1;
+    }
+  }
+  return mask;
+}
+
+/** Squared distance from each node to the nearest non-interior node (0 there), positions xs × ys. */
+function distanceTransform(mask: Uint8Array, xs: Float64Array, ys: Float64Array): Float64Array {
+  const nx = xs.length, ny = ys.length;
+  if (d2S.length < nx * ny) d2S = new Float64Array(Math.max(nx * ny, 2 * d2S.length));
+  const out = d2S.subarray(0, nx * ny);
+  // Columns: binary input, so the nearest non-interior node above or below (two scans).
+  for (let i = 0; i < nx; i++) {
+    let last = -1;
+    for (let j = 0; j < ny; j++) {
+      const q = j * nx + i;
+      if (!mask[q]) {
+        last = j;
+        out[q] = 0;
+      } else out[q] = last < 0 ? Infinity : ((ys[j] as number) - (ys[last] as number)) ** 2;
+    }
+    last = -1;
+    for (let j = ny - 1; j >= 0; j--) {
+      const q = j * nx + i;
+      if (!mask[q]) last = j;
+      else if (last >= 0) {
+        const e = ((ys[last] as number) - (ys[j] as number)) ** 2;
+        if (e < (out[q] as number)) out[q] = e;
+      }
+    }
+  }
+  // Rows: lower envelope of the parabolas (x − xs[p])² + f(p) at the sample positions xs (Felzenszwalb–Huttenlocher).
+  if (fS.length < nx) {
+    fS = new Float64Array(2 * nx);
+    dS = new Float64Array(2 * nx);
+    zS = new Float64Array(2 * nx + 1);
+    vS = new Int32Array(2 * nx);
+  }
+  const f = fS, d = dS, z = zS, v = vS;
+  for (let j = 1; j + 1 < ny; j++) {
+    const line = j * nx;
+    let any = false;
+    for (let i = 0; i < nx; i++) {
+      f[i] = out[line + i] as number;
+      if (mask[line + i]) any = true;
+    }
+    if (!any) continue;
+    let k = 0;
+    v[0] = 0;
+    z[0] = -Infinity;
+    z[1] = Infinity;
+    for (let q = 1; q < nx; q++) {
+      const fq = f[q] as number;
+      if (fq === Infinity) continue;
+      const xq = xs[q] as number;
+      let s: number;
+      for (;;) {
+        const p = v[k] as number, xp = xs[p] as number;
+        s = (fq + xq * xq - ((f[p] as number) + xp * xp)) / (2 * (xq - xp));
+        if (s <= (z[k] as number) && k > 0) k--;
+        else break;
+      }
+      k++;
+      v[k] = q;
+      z[k] = s;
+      z[k + 1] = Infinity;
+    }
+    k = 0;
+    for (let q = 0; q < nx; q++) {
+      const xq = xs[q] as number;
+      while ((z[k + 1] as number) < xq) k++;
+      const p = v[k] as number;
+      d[q] = (xq - (xs[p] as number)) ** 2 + (f[p] as number);
+    }
+    for (let i = 0; i < nx; i++) if (mask[line + i]) out[line + i] = d[i] as number;
+  }
+  return out;
+}
+
+/** minWidth and maxWidth (dbu) of the opening whose exact edges are `edges` (edgeList form), on lattice L. */
+export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWidth: number; maxWidth: number } | null {
+  const { xs, ys } = L;
+  const nx = xs.length, ny = ys.length, nodes = nx * ny;
+  const mask = interiorMask(L);
+  const d2 = distanceTransform(mask, xs, ys);
+  if (rootS.length < nodes) rootS = new Float64Array(Math.max(nodes, 2 * rootS.length));
+  const root = rootS.subarray(0, nodes).fill(0);
+  let best = 0;
+  for (let q = 0; q < nodes; q++) {
+    if (!mask[q]) continue;
+    const r = Math.sqrt(d2[q] as number);
+    root[q] = r;
+    if (r > best) best = r;
+  }
+  if (!(best > 0) || best === Infinity) return null;
+  // Maximal centres: interior nodes whose disk is not inside a neighbour's (D(n) ≥ D(c) + |n − c|).
+  if (candS.length < nodes) candS = new Int32Array(Math.max(nodes, 2 * candS.length));
+  let m = 0;
+  for (let j = 1; j + 1 < ny; j++) {
+    for (let i = 1; i + 1 < nx; i++) {
+      const q = j * nx + i;
+      const dc = root[q] as number;
+      if (dc === 0) continue;
+      let inside = false;
+      for (let dj = -1; dj <= 1 && !inside; dj++) {
+        for (let di = -1; di <= 1; di++) {
+          if (di === 0 && dj === 0) continue;
+          const n = q + dj * nx + di;
+          const gap = Math.hypot((xs[i + di] as number) - (xs[i] as number), (ys[j + dj] as number) - (ys[j] as number));
+          if ((root[n] as number) >= dc + gap - 1e-9 * (1 + dc)) {
+            inside = true;
+            break;
+          }
+        }
+      }
+      if (!inside) candS[m++] = q;
+    }
+  }
+  const cand = candS.subarray(0, m);
+  const byD = Array.from(cand).sort((a, b) => (root[a] as number) - (root[b] as number) || a - b);
+  // maxWidth: the best node, and climbs from the centres that could neighbour a larger off-lattice maximum.
+  let maxD = best;
+  for (let k = byD.length - 1; k >= 0; k--) {
+    const q = byD[k] as number;
+    const i = q % nx, j = (q - i) / nx;
+    const hx = Math.max((xs[i + 1] as number) - (xs[i] as number), (xs[i] as number) - (xs[i - 1] as number));
+    const hy = Math.max((ys[j + 1] as number) - (ys[j] as number), (ys[j] as number) - (ys[j - 1] as number));
+    const reach = Math.hypot(hx, hy);
+    if ((root[q] as number) + reach <= maxD * (1 + 1e-12)) continue;
+    if (isLocalMaximum(edges, xs[i] as number, ys[j] as number, root[q] as number)) continue;
+    const d = climbToMaximum(edges, xs[i] as number, ys[j] as number, Math.min(hx, hy));
+    if (d > maxD) maxD = d;
+  }
+  // minWidth: increasing D, first uncovered true local maximum.
+  const tol = 1e-9;
+  let minD = maxD;
+  for (let a = 0; a < byD.length; a++) {
+    const c = byD[a] as number;
+    const dc = root[c] as number;
+    if (dc >= minD) break;
+    const ci = c % nx, cj = (c - ci) / nx;
+    const cx = xs[ci] as number, cy = ys[cj] as number;
+    let covered = false;
+    for (let b = byD.length - 1; b > a && !covered; b--) {
+      const q = byD[b] as number;
+      const db = root[q] as number;
+      if (db <= dc * (1 + tol)) break;
+      const qi = q % nx, qj = (q - qi) / nx;
+      const ex = (xs[qi] as number) - cx, ey = (ys[qj] as number) - cy;
+      if (ex * ex + ey * ey <= db * db * (1 + tol)) covered = true;
+    }
+    if (covered) continue;
+    if (!isLocalMaximum(edges, cx, cy, dc)) continue;
+    minD = dc;
+    break;
+  }
+  return { minWidth: 2 * minD, maxWidth: 2 * maxD };
+}
