@@ -71,11 +71,15 @@ export function climbToMaximum(edges: Float64Array, x: number, y: number, step: 
   let d = distanceToEdges(edges, x, y);
   let h = step;
   let snapAt = step * SNAP_STEP, justSnapped = false;
-  let earlyAt = step * SNAP_EARLY, early = 0;
+  let earlyAt = step * SNAP_EARLY, early = 0, ex = 0, ey = 0;
   for (let it = 0; it < 120 && h > step * 1e-6; it++) {
     if (h < earlyAt) {
       earlyAt = 0;
-      if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) early = snapped[2] as number;
+      if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) {
+        early = snapped[2] as number;
+        ex = snapped[0] as number;
+        ey = snapped[1] as number;
+      }
     }
     if (h < snapAt) {
       snapAt = 0;
@@ -104,8 +108,15 @@ export function climbToMaximum(edges: Float64Array, x: number, y: number, step: 
     if (moved) justSnapped = false;
     else h /= 2;
   }
-  return early > d ? early : d;
+  const useEarly = early > d;
+  climbed[0] = useEarly ? ex : x;
+  climbed[1] = useEarly ? ey : y;
+  climbed[2] = useEarly ? early : d;
+  return climbed[2] as number;
 }
+
+/** Where the last climbToMaximum ended: x, y (dbu) and the exact distance there. */
+export const climbed = new Float64Array(3);
 
 /**
  * Radius found by the last refineLargestDisk from the position-ordered seeds alone (without extraSeeds). widths.ts

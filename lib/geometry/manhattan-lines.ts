@@ -133,6 +133,7 @@ export function manhattanLines(coords: ArrayLike<number>, rings: [number, number
       return;
     }
     lines.push((s0 + s1) / 2);
+    if (s1 - s0 > r) lines.push(s0 + r, s1 - r);
     // Stretch shorter than its width: the plateau end at depth t = (s1 − s0) − r from either end is covered by the
     // disk centred u = (r² − t²)/(2t) outside that end on the midline (radius √(r² + u²) ≥ t + u) when the opening
     // extends there; a line at half that offset puts a node strictly inside the covering range.

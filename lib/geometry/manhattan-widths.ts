@@ -19,8 +19,13 @@
  *   the best node's D by at most the half-diagonal of the cells around the node).
  */
 import type { ManhattanLines } from './manhattan-lines';
-import { climbToMaximum } from './disk-search';
+import { climbed, climbToMaximum } from './disk-search';
+import { distanceAbove, distanceToEdges } from './edge-distance';
 import { isLocalMaximum } from './ridge-snap';
+
+/** The 16 pattern-search directions (cos, sin of k·π/8). */
+const DIR_X = Float64Array.from({ length: 16 }, (_, k) => Math.cos((k * Math.PI) / 8));
+const DIR_Y = Float64Array.from({ length: 16 }, (_, k) => Math.sin((k * Math.PI) / 8));
 
 let maskS = new Uint8Array(0);
 let d2S = new Float64Array(0);
@@ -198,18 +203,103 @@ export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWi
     const ci = c % nx, cj = (c - ci) / nx;
     const cx = xs[ci] as number, cy = ys[cj] as number;
     let covered = false;
+    let near = -1, nearMargin = -Infinity;
     for (let b = byD.length - 1; b > a && !covered; b--) {
       const q = byD[b] as number;
       const db = root[q] as number;
       if (db <= dc * (1 + tol)) break;
       const qi = q % nx, qj = (q - qi) / nx;
       const ex = (xs[qi] as number) - cx, ey = (ys[qj] as number) - cy;
-      if (ex * ex + ey * ey <= db * db * (1 + tol)) covered = true;
+      const e2 = ex * ex + ey * ey;
+      if (e2 <= db * db * (1 + tol)) covered = true;
+      else if (db - Math.sqrt(e2) > nearMargin) {
+        nearMargin = db - Math.sqrt(e2);
+        near = q;
+      }
     }
     if (covered) continue;
     if (!isLocalMaximum(edges, cx, cy, dc)) continue;
+    // A covering disk may be centred between nodes, where the lattice is coarse (the coverage from a wider region
+    // ends within a fraction of a step): searched from the node that came closest to covering.
+    if (near >= 0) {
+      const qi = near % nx, qj = (near - qi) / nx;
+      if (coverFound(edges, cx, cy, dc, xs[qi] as number, ys[qj] as number)) continue;
+    }
     minD = dc;
     break;
   }
+  // Isolated maxima of D between nodes (medial-axis vertices at reflex corners) can be self-centred and narrower than
+  // every plateau in chunky unions: climbed to from the nodes that are local maxima of the lattice but not of D.
+  for (let a = 0; a < byD.length; a++) {
+    const c = byD[a] as number;
+    const dc = root[c] as number;
+    if (dc >= minD) break;
+    const ci = c % nx, cj = (c - ci) / nx;
+    let top = true;
+    for (let dj = -1; dj <= 1 && top; dj++) for (let di = -1; di <= 1; di++) if ((root[c + dj * nx + di] as number) > dc) top = false;
+    if (!top || isLocalMaximum(edges, xs[ci] as number, ys[cj] as number, dc)) continue;
+    const h = Math.min((xs[ci + 1] as number) - (xs[ci] as number), (xs[ci] as number) - (xs[ci - 1] as number), (ys[cj + 1] as number) - (ys[cj] as number), (ys[cj] as number) - (ys[cj - 1] as number));
+    const dv = climbToMaximum(edges, xs[ci] as number, ys[cj] as number, h);
+    const vx = climbed[0] as number, vy = climbed[1] as number;
+    if (!(dv < minD) || !isLocalMaximum(edges, vx, vy, dv)) continue;
+    if (!coveredAt(byD, root, xs, ys, edges, vx, vy, dv)) minD = dv;
+  }
   return { minWidth: 2 * minD, maxWidth: 2 * maxD };
+}
+
+/**
+ * Whether a disk larger than dc contains c = (cx, cy): a pattern search from (sx, sy) (where D > dc) over centres p
+ * with D(p) > dc for D(p) − |p − c| ≥ 0, maximising that margin. Finding one proves c covered; not finding one
+ * leaves c self-centred (a covering disk missed this way makes minWidth smaller, never larger).
+ */
+function coverFound(edges: Float64Array, cx: number, cy: number, dc: number, sx: number, sy: number): boolean {
+  const floor = dc * (1 + 1e-9);
+  let x = sx, y = sy;
+  let d = distanceToEdges(edges, x, y);
+  let m = d - Math.hypot(x - cx, y - cy);
+  if (m >= 0) return true;
+  const h0 = Math.hypot(x - cx, y - cy) / 4;
+  let h = h0;
+  for (let it = 0; it < 400 && h > h0 * 1e-9; it++) {
+    let moved = false;
+    // Moves shorter than the current distance stay inside the opening (D is unsigned outside it too).
+    for (let k = 0; k < 16 && h < d; k++) {
+      const px = x + (DIR_X[k] as number) * h, py = y + (DIR_Y[k] as number) * h;
+      const e = distanceAbove(edges, px, py, floor);
+      if (e < 0) continue;
+      const mm = e - Math.hypot(px - cx, py - cy);
+      if (mm > m) {
+        x = px;
+        y = py;
+        d = e;
+        m = mm;
+        moved = true;
+        break;
+      }
+    }
+    if (m >= 0) return true;
+    if (!moved) h /= 2;
+  }
+  return false;
+}
+
+/** Whether a disk larger than d contains (x, y): a maximal node's, or one found by coverFound from the nearest. */
+function coveredAt(byD: number[], root: Float64Array, xs: Float64Array, ys: Float64Array, edges: Float64Array, x: number, y: number, d: number): boolean {
+  const nx = xs.length;
+  let near = -1, nearMargin = -Infinity;
+  for (let b = byD.length - 1; b >= 0; b--) {
+    const q = byD[b] as number;
+    const db = root[q] as number;
+    if (db <= d * (1 + 1e-9)) break;
+    const qi = q % nx, qj = (q - qi) / nx;
+    const e = Math.hypot((xs[qi] as number) - x, (ys[qj] as number) - y);
+    if (e <= db * (1 + 1e-9)) return true;
+    if (db - e > nearMargin) {
+      nearMargin = db - e;
+      near = q;
+    }
+  }
+  if (near < 0) return false;
+  const qi = near % nx, qj = (near - qi) / nx;
+  return coverFound(edges, x, y, d, xs[qi] as number, ys[qj] as number);
 }
