@@ -34,6 +34,8 @@ export interface ManhattanLines {
   by: Float64Array;
   /** 1 = vertex-grid cell (column c, row r) inside, at r·(bx.length − 1) + c. */
   cellIn: Uint8Array;
+  /** Refinement step: gaps wider than this lie where D does not change along them (far from every vertex line). */
+  h: number;
 }
 
 /** Sorted distinct values of a list. */
@@ -155,7 +157,7 @@ export function manhattanLines(coords: ArrayLike<number>, rings: [number, number
   });
   const xs = refine(xl, bx, reachX, h), ys = refine(yl, by, reachY, h);
   if (xs.length * ys.length > maxNodes) return null;
-  return { xs, ys, bx, by, cellIn };
+  return { xs, ys, bx, by, cellIn, h };
 }
 
 /** Lines within [base[0], base[last]], with gaps over h refined near their ends (see module doc). */
@@ -170,7 +172,7 @@ function refine(lines: number[], base: Float64Array, reach: Float64Array, h: num
     const gap = x1 - x0;
     if (!(gap > h)) continue;
     while (c + 1 < base.length - 1 && (base[c + 1] as number) <= x0) c++;
-    const rch = (reach[c] as number) + h;
+    const rch = (reach[c] as number) * Number(process.env.MW_R ?? 1) + h;
     const n = Math.ceil(gap / h);
     if (gap <= 2 * rch + h) {
       for (let q = 1; q < n; q++) out.push(x0 + (gap * q) / n);

@@ -31,6 +31,7 @@ let maskS = new Uint8Array(0);
 let d2S = new Float64Array(0);
 let rootS = new Float64Array(0);
 let candS = new Int32Array(0);
+let topS = new Uint8Array(0);
 let fS = new Float64Array(0), dS = new Float64Array(0), zS = new Float64Array(0), vS = new Int32Array(0);
 
 /** Interior nodes (all four quadrants inside) from the vertex-grid cells, into module scratch. */
@@ -155,97 +156,87 @@ export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWi
     if (r > best) best = r;
   }
   if (!(best > 0) || best === Infinity) return null;
-  // Maximal centres: interior nodes whose disk is not inside a neighbour's (D(n) ≥ D(c) + |n − c|).
-  if (candS.length < nodes) candS = new Int32Array(Math.max(nodes, 2 * candS.length));
+  // Maximal centres: interior nodes whose disk is not inside a neighbour's (D(n) ≥ D(c) + |n − c|); the others are
+  // covered by that neighbour and never set a width. Also marks which are local maxima of the lattice (≥ neighbours).
+  if (candS.length < nodes) {
+    candS = new Int32Array(Math.max(nodes, 2 * candS.length));
+    topS = new Uint8Array(candS.length);
+  }
   let m = 0;
   for (let j = 1; j + 1 < ny; j++) {
+    const yj = ys[j] as number, dyl = yj - (ys[j - 1] as number), dyu = (ys[j + 1] as number) - yj;
     for (let i = 1; i + 1 < nx; i++) {
       const q = j * nx + i;
       const dc = root[q] as number;
       if (dc === 0) continue;
-      let inside = false;
-      for (let dj = -1; dj <= 1 && !inside; dj++) {
-        for (let di = -1; di <= 1; di++) {
-          if (di === 0 && dj === 0) continue;
-          const n = q + dj * nx + di;
-          const gap = Math.hypot((xs[i + di] as number) - (xs[i] as number), (ys[j + dj] as number) - (ys[j] as number));
-          if ((root[n] as number) >= dc + gap - 1e-9 * (1 + dc)) {
-            inside = true;
-            break;
-          }
-        }
-      }
-      if (!inside) candS[m++] = q;
+      const xi = xs[i] as number, dxl = xi - (xs[i - 1] as number), dxr = (xs[i + 1] as number) - xi;
+      const lim = dc - 1e-9 * (1 + dc);
+      const l = root[q - 1] as number, r = root[q + 1] as number, b = root[q - nx] as number, t = root[q + nx] as number;
+      if (l >= lim + dxl || r >= lim + dxr || b >= lim + dyl || t >= lim + dyu) continue;
+      const bl = root[q - nx - 1] as number, br = root[q - nx + 1] as number, tl = root[q + nx - 1] as number, tr = root[q + nx + 1] as number;
+      if (bl >= lim + Math.sqrt(dxl * dxl + dyl * dyl) || br >= lim + Math.sqrt(dxr * dxr + dyl * dyl) || tl >= lim + Math.sqrt(dxl * dxl + dyu * dyu) || tr >= lim + Math.sqrt(dxr * dxr + dyu * dyu)) continue;
+      topS[m] = l > dc || r > dc || b > dc || t > dc || bl > dc || br > dc || tl > dc || tr > dc ? 0 : 1;
+      candS[m++] = q;
     }
   }
-  const cand = candS.subarray(0, m);
-  const byD = Array.from(cand).sort((a, b) => (root[a] as number) - (root[b] as number) || a - b);
-  // maxWidth: the best node, and climbs from the centres that could neighbour a larger off-lattice maximum.
+  const cand = candS.subarray(0, m), top = topS;
+  // maxWidth: the best node, and climbs from the local maxima of the lattice that could neighbour a larger
+  // off-lattice maximum (D there exceeds the node's by at most the distance to it: allowed two diagonals of the
+  // largest adjacent cell, since the lattice maximum next to it may be a cell away).
+  // Along a gap wider than the refinement step D does not change (manhattan-lines.ts), so such gaps add nothing.
+  const near = L.h * (1 + 1e-9);
+  const nearGap = (a: number, b: number) => (b - a <= near ? b - a : 0);
   let maxD = best;
-  for (let k = byD.length - 1; k >= 0; k--) {
-    const q = byD[k] as number;
+  for (let k = 0; k < m; k++) {
+    if (!top[k]) continue;
+    const q = cand[k] as number;
     const i = q % nx, j = (q - i) / nx;
-    const hx = Math.max((xs[i + 1] as number) - (xs[i] as number), (xs[i] as number) - (xs[i - 1] as number));
-    const hy = Math.max((ys[j + 1] as number) - (ys[j] as number), (ys[j] as number) - (ys[j - 1] as number));
-    const reach = Math.hypot(hx, hy);
-    if ((root[q] as number) + reach <= maxD * (1 + 1e-12)) continue;
+    const hx = Math.max(nearGap(xs[i] as number, xs[i + 1] as number), nearGap(xs[i - 1] as number, xs[i] as number));
+    const hy = Math.max(nearGap(ys[j] as number, ys[j + 1] as number), nearGap(ys[j - 1] as number, ys[j] as number));
+    if ((root[q] as number) + 2 * Math.sqrt(hx * hx + hy * hy) <= maxD * (1 + 1e-12)) continue;
     if (isLocalMaximum(edges, xs[i] as number, ys[j] as number, root[q] as number)) continue;
-    const d = climbToMaximum(edges, xs[i] as number, ys[j] as number, Math.min(hx, hy));
+    const d = climbToMaximum(edges, xs[i] as number, ys[j] as number, Math.max(hx, hy));
     if (d > maxD) maxD = d;
   }
-  // minWidth: increasing D, first uncovered true local maximum.
-  const tol = 1e-9;
+  // minWidth: the nodes that are local maxima of D (certified on the exact edges; no other point is self-centred) in
+  // increasing D; the first that no larger disk covers.
+  const locals: number[] = [];
+  for (let k = 0; k < m; k++) {
+    const q = cand[k] as number;
+    if (!top[k] || !((root[q] as number) < maxD)) continue;
+    const i = q % nx, j = (q - i) / nx;
+    if (isLocalMaximum(edges, xs[i] as number, ys[j] as number, root[q] as number)) locals.push(q);
+    else climbFrom.push(q);
+  }
+  locals.sort((a, b) => (root[a] as number) - (root[b] as number) || a - b);
   let minD = maxD;
-  for (let a = 0; a < byD.length; a++) {
-    const c = byD[a] as number;
+  for (const c of locals) {
     const dc = root[c] as number;
     if (dc >= minD) break;
     const ci = c % nx, cj = (c - ci) / nx;
-    const cx = xs[ci] as number, cy = ys[cj] as number;
-    let covered = false;
-    let near = -1, nearMargin = -Infinity;
-    for (let b = byD.length - 1; b > a && !covered; b--) {
-      const q = byD[b] as number;
-      const db = root[q] as number;
-      if (db <= dc * (1 + tol)) break;
-      const qi = q % nx, qj = (q - qi) / nx;
-      const ex = (xs[qi] as number) - cx, ey = (ys[qj] as number) - cy;
-      const e2 = ex * ex + ey * ey;
-      if (e2 <= db * db * (1 + tol)) covered = true;
-      else if (db - Math.sqrt(e2) > nearMargin) {
-        nearMargin = db - Math.sqrt(e2);
-        near = q;
-      }
+    if (!coveredAt(cand, root, xs, ys, edges, xs[ci] as number, ys[cj] as number, dc)) {
+      minD = dc;
+      break;
     }
-    if (covered) continue;
-    if (!isLocalMaximum(edges, cx, cy, dc)) continue;
-    // A covering disk may be centred between nodes, where the lattice is coarse (the coverage from a wider region
-    // ends within a fraction of a step): searched from the node that came closest to covering.
-    if (near >= 0) {
-      const qi = near % nx, qj = (near - qi) / nx;
-      if (coverFound(edges, cx, cy, dc, xs[qi] as number, ys[qj] as number)) continue;
-    }
-    minD = dc;
-    break;
   }
   // Isolated maxima of D between nodes (medial-axis vertices at reflex corners) can be self-centred and narrower than
   // every plateau in chunky unions: climbed to from the nodes that are local maxima of the lattice but not of D.
-  for (let a = 0; a < byD.length; a++) {
-    const c = byD[a] as number;
+  for (const c of climbFrom) {
     const dc = root[c] as number;
-    if (dc >= minD) break;
+    if (dc >= minD) continue;
     const ci = c % nx, cj = (c - ci) / nx;
-    let top = true;
-    for (let dj = -1; dj <= 1 && top; dj++) for (let di = -1; di <= 1; di++) if ((root[c + dj * nx + di] as number) > dc) top = false;
-    if (!top || isLocalMaximum(edges, xs[ci] as number, ys[cj] as number, dc)) continue;
     const h = Math.min((xs[ci + 1] as number) - (xs[ci] as number), (xs[ci] as number) - (xs[ci - 1] as number), (ys[cj + 1] as number) - (ys[cj] as number), (ys[cj] as number) - (ys[cj - 1] as number));
     const dv = climbToMaximum(edges, xs[ci] as number, ys[cj] as number, h);
     const vx = climbed[0] as number, vy = climbed[1] as number;
     if (!(dv < minD) || !isLocalMaximum(edges, vx, vy, dv)) continue;
-    if (!coveredAt(byD, root, xs, ys, edges, vx, vy, dv)) minD = dv;
+    if (!coveredAt(cand, root, xs, ys, edges, vx, vy, dv)) minD = dv;
   }
+  climbFrom.length = 0;
   return { minWidth: 2 * minD, maxWidth: 2 * maxD };
 }
+
+/** Nodes to climb from for off-lattice maxima (reused). */
+const climbFrom: number[] = [];
 
 /**
  * Whether a disk larger than dc contains c = (cx, cy): a pattern search from (sx, sy) (where D > dc) over centres p
@@ -260,7 +251,7 @@ function coverFound(edges: Float64Array, cx: number, cy: number, dc: number, sx:
   if (m >= 0) return true;
   const h0 = Math.hypot(x - cx, y - cy) / 4;
   let h = h0;
-  for (let it = 0; it < 400 && h > h0 * 1e-9; it++) {
+  for (let it = 0; it < 200 && h > h0 * 1e-7; it++) {
     let moved = false;
     // Moves shorter than the current distance stay inside the opening (D is unsigned outside it too).
     for (let k = 0; k < 16 && h < d; k++) {
@@ -283,19 +274,25 @@ function coverFound(edges: Float64Array, cx: number, cy: number, dc: number, sx:
   return false;
 }
 
-/** Whether a disk larger than d contains (x, y): a maximal node's, or one found by coverFound from the nearest. */
-function coveredAt(byD: number[], root: Float64Array, xs: Float64Array, ys: Float64Array, edges: Float64Array, x: number, y: number, d: number): boolean {
+/**
+ * Whether a disk larger than d contains (x, y): a maximal node's (every node's disk lies in one of theirs), or one
+ * found by coverFound from the node that came closest.
+ */
+function coveredAt(cand: Int32Array, root: Float64Array, xs: Float64Array, ys: Float64Array, edges: Float64Array, x: number, y: number, d: number): boolean {
   const nx = xs.length;
   let near = -1, nearMargin = -Infinity;
-  for (let b = byD.length - 1; b >= 0; b--) {
-    const q = byD[b] as number;
+  const floor = d * (1 + 1e-9);
+  for (let k = 0; k < cand.length; k++) {
+    const q = cand[k] as number;
     const db = root[q] as number;
-    if (db <= d * (1 + 1e-9)) break;
+    if (db <= floor) continue;
     const qi = q % nx, qj = (q - qi) / nx;
-    const e = Math.hypot((xs[qi] as number) - x, (ys[qj] as number) - y);
-    if (e <= db * (1 + 1e-9)) return true;
-    if (db - e > nearMargin) {
-      nearMargin = db - e;
+    const ex = (xs[qi] as number) - x, ey = (ys[qj] as number) - y;
+    const e2 = ex * ex + ey * ey;
+    if (e2 <= db * db * (1 + 1e-9)) return true;
+    const margin = db - Math.sqrt(e2);
+    if (margin > nearMargin) {
+      nearMargin = margin;
       near = q;
     }
   }
