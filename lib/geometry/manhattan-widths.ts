@@ -40,6 +40,18 @@ function interiorMask(L: ManhattanLines): Uint8Array {
   const nx = xs.length, ny = ys.length, ncx = bx.length - 1, ncy = by.length - 1;
   if (maskS.length < nx * ny) maskS = new Uint8Array(Math.max(nx * ny, 2 * maskS.length));
   const mask = maskS.subarray(0, nx * ny).fill(0);
+  if (rowLo.length < ny) {
+    rowLo = new Int32Array(2 * ny);
+    rowHi = new Int32Array(2 * ny);
+  }
+  if (colLo.length < nx) {
+    colLo = new Int32Array(2 * nx);
+    colHi = new Int32Array(2 * nx);
+  }
+  rowLo.fill(nx, 0, ny);
+  rowHi.fill(-1, 0, ny);
+  colLo.fill(ny, 0, nx);
+  colHi.fill(-1, 0, nx);
   // Vertex-grid column left and right of each x line (−1 or ncx outside), rows likewise.
   const cl = new Int32Array(nx), cr = new Int32Array(nx), rl = new Int32Array(ny), ru = new Int32Array(ny);
   for (let i = 0, c = 0; i < nx; i++) {
@@ -61,34 +73,49 @@ function interiorMask(L: ManhattanLines): Uint8Array {
     for (let i = 1; i + 1 < nx; i++) {
       const p = cl[i] as number, q = cr[i] as number;
       if (p < 0 || q < 0) continue;
-      if (cellIn[a * ncx + p] && cellIn[a * ncx + q] && cellIn[b * ncx + p] && cellIn[b * ncx + q]) mask[j * nx + i] = 1;
+      if (cellIn[a * ncx + p] && cellIn[a * ncx + q] && cellIn[b * ncx + p] && cellIn[b * ncx + q]) {
+        mask[j * nx + i] = 1;
+        if (i < (rowLo[j] as number)) rowLo[j] = i;
+        rowHi[j] = i;
+        if (j < (colLo[i] as number)) colLo[i] = j;
+        colHi[i] = j;
+      }
     }
   }
   return mask;
 }
+
+/** First and last interior node per row and per column (set by interiorMask; lo > hi when none). */
+let rowLo = new Int32Array(0), rowHi = new Int32Array(0), colLo = new Int32Array(0), colHi = new Int32Array(0);
 
 /** Squared distance from each node to the nearest non-interior node (0 there), positions xs × ys. */
 function distanceTransform(mask: Uint8Array, xs: Float64Array, ys: Float64Array): Float64Array {
   const nx = xs.length, ny = ys.length;
   if (d2S.length < nx * ny) d2S = new Float64Array(Math.max(nx * ny, 2 * d2S.length));
   const out = d2S.subarray(0, nx * ny);
-  // Columns: binary input, so the nearest non-interior node above or below (two scans).
+  // Columns: binary input, so the nearest non-interior node above or below (two scans), over the column's interior
+  // span and the non-interior node on each side of it (nothing beyond can be nearer).
   for (let i = 0; i < nx; i++) {
-    let last = -1;
-    for (let j = 0; j < ny; j++) {
+    const j0 = colLo[i] as number, j1 = colHi[i] as number;
+    if (j0 > j1) continue;
+    let last = j0 - 1;
+    for (let j = j0; j <= j1; j++) {
       const q = j * nx + i;
       if (!mask[q]) {
         last = j;
         out[q] = 0;
-      } else out[q] = last < 0 ? Infinity : ((ys[j] as number) - (ys[last] as number)) ** 2;
+      } else {
+        const e = (ys[j] as number) - (ys[last] as number);
+        out[q] = e * e;
+      }
     }
-    last = -1;
-    for (let j = ny - 1; j >= 0; j--) {
+    last = j1 + 1;
+    for (let j = j1; j >= j0; j--) {
       const q = j * nx + i;
       if (!mask[q]) last = j;
-      else if (last >= 0) {
-        const e = ((ys[last] as number) - (ys[j] as number)) ** 2;
-        if (e < (out[q] as number)) out[q] = e;
+      else {
+        const g = (ys[last] as number) - (ys[j] as number);
+        if (g * g < (out[q] as number)) out[q] = g * g;
       }
     }
   }
@@ -101,24 +128,22 @@ function distanceTransform(mask: Uint8Array, xs: Float64Array, ys: Float64Array)
   }
   const f = fS, d = dS, z = zS, v = vS;
   for (let j = 1; j + 1 < ny; j++) {
-    const line = j * nx;
-    let any = false;
-    for (let i = 0; i < nx; i++) {
-      f[i] = out[line + i] as number;
-      if (mask[line + i]) any = true;
-    }
-    if (!any) continue;
+    if ((rowLo[j] as number) > (rowHi[j] as number)) continue;
+    // The row's interior span and the non-interior node on each side (f = 0 there), re-based at i0.
+    const i0 = (rowLo[j] as number) - 1, n = (rowHi[j] as number) + 2 - i0;
+    const line = j * nx + i0;
+    for (let i = 0; i < n; i++) f[i] = mask[line + i] ? (out[line + i] as number) : 0;
     let k = 0;
     v[0] = 0;
     z[0] = -Infinity;
     z[1] = Infinity;
-    for (let q = 1; q < nx; q++) {
+    for (let q = 1; q < n; q++) {
       const fq = f[q] as number;
       if (fq === Infinity) continue;
-      const xq = xs[q] as number;
+      const xq = xs[i0 + q] as number;
       let s: number;
       for (;;) {
-        const p = v[k] as number, xp = xs[p] as number;
+        const p = v[k] as number, xp = xs[i0 + p] as number;
         s = (fq + xq * xq - ((f[p] as number) + xp * xp)) / (2 * (xq - xp));
         if (s <= (z[k] as number) && k > 0) k--;
         else break;
@@ -129,13 +154,14 @@ function distanceTransform(mask: Uint8Array, xs: Float64Array, ys: Float64Array)
       z[k + 1] = Infinity;
     }
     k = 0;
-    for (let q = 0; q < nx; q++) {
-      const xq = xs[q] as number;
+    for (let q = 0; q < n; q++) {
+      const xq = xs[i0 + q] as number;
       while ((z[k + 1] as number) < xq) k++;
       const p = v[k] as number;
-      d[q] = (xq - (xs[p] as number)) ** 2 + (f[p] as number);
+      const g = xq - (xs[i0 + p] as number);
+      d[q] = g * g + (f[p] as number);
     }
-    for (let i = 0; i < nx; i++) if (mask[line + i]) out[line + i] = d[i] as number;
+    for (let i = 0; i < n; i++) if (mask[line + i]) out[line + i] = d[i] as number;
   }
   return out;
 }
@@ -201,20 +227,15 @@ export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWi
   // minWidth: the nodes that are local maxima of D (certified on the exact edges; no other point is self-centred) in
   // increasing D; the first that no larger disk covers.
   const locals: number[] = [];
-  for (let k = 0; k < m; k++) {
-    const q = cand[k] as number;
-    if (!top[k] || !((root[q] as number) < maxD)) continue;
-    const i = q % nx, j = (q - i) / nx;
-    if (isLocalMaximum(edges, xs[i] as number, ys[j] as number, root[q] as number)) locals.push(q);
-    else climbFrom.push(q);
-  }
+  for (let k = 0; k < m; k++) if (top[k] && (root[cand[k] as number] as number) < maxD) locals.push(cand[k] as number);
   locals.sort((a, b) => (root[a] as number) - (root[b] as number) || a - b);
   let minD = maxD;
   for (const c of locals) {
     const dc = root[c] as number;
     if (dc >= minD) break;
     const ci = c % nx, cj = (c - ci) / nx;
-    if (!coveredAt(cand, root, xs, ys, edges, xs[ci] as number, ys[cj] as number, dc)) {
+    if (!isLocalMaximum(edges, xs[ci] as number, ys[cj] as number, dc)) climbFrom.push(c);
+    else if (!coveredAt(cand, root, xs, ys, edges, xs[ci] as number, ys[cj] as number, dc)) {
       minD = dc;
       break;
     }
@@ -251,7 +272,7 @@ function coverFound(edges: Float64Array, cx: number, cy: number, dc: number, sx:
   if (m >= 0) return true;
   const h0 = Math.hypot(x - cx, y - cy) / 4;
   let h = h0;
-  for (let it = 0; it < 200 && h > h0 * 1e-7; it++) {
+  for (let it = 0; it < 120 && h > h0 * 1e-5; it++) {
     let moved = false;
     // Moves shorter than the current distance stay inside the opening (D is unsigned outside it too).
     for (let k = 0; k < 16 && h < d; k++) {
