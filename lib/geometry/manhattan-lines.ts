@@ -172,7 +172,7 @@ function refine(lines: number[], base: Float64Array, reach: Float64Array, h: num
     const gap = x1 - x0;
     if (!(gap > h)) continue;
     while (c + 1 < base.length - 1 && (base[c + 1] as number) <= x0) c++;
-    const rch = (reach[c] as number) * Number(process.env.MW_R ?? 1) + h;
+    const rch = (reach[c] as number) / 2 + h;
     const n = Math.ceil(gap / h);
     if (gap <= 2 * rch + h) {
       for (let q = 1; q < n; q++) out.push(x0 + (gap * q) / n);

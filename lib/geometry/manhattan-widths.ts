@@ -21,7 +21,7 @@
 import type { ManhattanLines } from './manhattan-lines';
 import { climbed, climbToMaximum } from './disk-search';
 import { distanceAbove, distanceToEdges } from './edge-distance';
-import { isLocalMaximum } from './ridge-snap';
+import { isLocalMaximum, snapToRidge, snapped } from './ridge-snap';
 
 /** The 16 pattern-search directions (cos, sin of k·π/8). */
 const DIR_X = Float64Array.from({ length: 16 }, (_, k) => Math.cos((k * Math.PI) / 8));
@@ -220,8 +220,12 @@ export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWi
     const hx = Math.max(nearGap(xs[i] as number, xs[i + 1] as number), nearGap(xs[i - 1] as number, xs[i] as number));
     const hy = Math.max(nearGap(ys[j] as number, ys[j + 1] as number), nearGap(ys[j - 1] as number, ys[j] as number));
     if ((root[q] as number) + 2 * Math.sqrt(hx * hx + hy * hy) <= maxD * (1 + 1e-12)) continue;
-    if (isLocalMaximum(edges, xs[i] as number, ys[j] as number, root[q] as number)) continue;
-    const d = climbToMaximum(edges, xs[i] as number, ys[j] as number, Math.max(hx, hy));
+    const x = xs[i] as number, y = ys[j] as number, dq = root[q] as number;
+    if (isLocalMaximum(edges, x, y, dq)) continue;
+    // The maximum next to a node is usually a medial-axis vertex solved directly from the sites near the node
+    // (ridge-snap.ts, certified); otherwise the pattern search climbs to it.
+    const reach = 2 * Math.sqrt(hx * hx + hy * hy);
+    const d = snapToRidge(edges, x, y, dq, reach, dq) ? (snapped[2] as number) : climbToMaximum(edges, x, y, Math.max(hx, hy));
     if (d > maxD) maxD = d;
   }
   // minWidth: the nodes that are local maxima of D (certified on the exact edges; no other point is self-centred) in
@@ -230,15 +234,23 @@ export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWi
   for (let k = 0; k < m; k++) if (top[k] && (root[cand[k] as number] as number) < maxD) locals.push(cand[k] as number);
   locals.sort((a, b) => (root[a] as number) - (root[b] as number) || a - b);
   let minD = maxD;
-  for (const c of locals) {
-    const dc = root[c] as number;
-    if (dc >= minD) break;
-    const ci = c % nx, cj = (c - ci) / nx;
-    if (!isLocalMaximum(edges, xs[ci] as number, ys[cj] as number, dc)) climbFrom.push(c);
-    else if (!coveredAt(cand, root, xs, ys, edges, xs[ci] as number, ys[cj] as number, dc)) {
-      minD = dc;
-      break;
+  for (let g = 0; g < locals.length && minD === maxD; ) {
+    // One group of equal D at a time: a node deep inside a long trench settles it without a cover search.
+    const dc = root[locals[g] as number] as number;
+    let g1 = g;
+    while (g1 < locals.length && root[locals[g1] as number] === dc) g1++;
+    let found = false;
+    for (let k = g; k < g1 && !found; k++) {
+      const c = locals[k] as number, ci = c % nx;
+      if (uncoverable(edges, xs[ci] as number, ys[(c - ci) / nx] as number, dc, 2 * maxD)) found = isLocalMaximum(edges, xs[ci] as number, ys[(c - ci) / nx] as number, dc);
     }
+    for (let k = g; k < g1 && !found; k++) {
+      const c = locals[k] as number, ci = c % nx, cj = (c - ci) / nx;
+      if (!isLocalMaximum(edges, xs[ci] as number, ys[cj] as number, dc)) climbFrom.push(c);
+      else found = !coveredAt(cand, root, xs, ys, edges, xs[ci] as number, ys[cj] as number, dc);
+    }
+    if (found) minD = dc;
+    g = g1;
   }
   // Isolated maxima of D between nodes (medial-axis vertices at reflex corners) can be self-centred and narrower than
   // every plateau in chunky unions: climbed to from the nodes that are local maxima of the lattice but not of D.
@@ -247,8 +259,9 @@ export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWi
     if (dc >= minD) continue;
     const ci = c % nx, cj = (c - ci) / nx;
     const h = Math.min((xs[ci + 1] as number) - (xs[ci] as number), (xs[ci] as number) - (xs[ci - 1] as number), (ys[cj + 1] as number) - (ys[cj] as number), (ys[cj] as number) - (ys[cj - 1] as number));
-    const dv = climbToMaximum(edges, xs[ci] as number, ys[cj] as number, h);
-    const vx = climbed[0] as number, vy = climbed[1] as number;
+    const snap = snapToRidge(edges, xs[ci] as number, ys[cj] as number, dc, 2 * Math.SQRT2 * h, dc);
+    const dv = snap ? (snapped[2] as number) : climbToMaximum(edges, xs[ci] as number, ys[cj] as number, h);
+    const vx = (snap ? snapped[0] : climbed[0]) as number, vy = (snap ? snapped[1] : climbed[1]) as number;
     if (!(dv < minD) || !isLocalMaximum(edges, vx, vy, dv)) continue;
     if (!coveredAt(cand, root, xs, ys, edges, vx, vy, dv)) minD = dv;
   }
@@ -320,4 +333,28 @@ function coveredAt(cand: Int32Array, root: Float64Array, xs: Float64Array, ys: F
   if (near < 0) return false;
   const qi = near % nx, qj = (near - qi) / nx;
   return coverFound(edges, x, y, d, xs[qi] as number, ys[qj] as number);
+}
+
+/**
+ * Whether no larger disk can contain (x, y), at distance d from two opposite parallel edges whose segments run on
+ * beyond reach ≥ 2·maxD on both sides of its feet: a disk containing the point with radius R > d does not fit between
+ * the two lines, so it crosses one of them within 2R of the point, where that edge is.
+ */
+function uncoverable(edges: Float64Array, x: number, y: number, d: number, reach: number): boolean {
+  const tol = 1e-9 * (1 + d);
+  let pos = 0, neg = 0;
+  for (let o = 0; o < edges.length; o += 5) {
+    const ax = edges[o] as number, ay = edges[o + 1] as number, dx = edges[o + 2] as number, dy = edges[o + 3] as number;
+    const len = Math.sqrt(edges[o + 4] as number);
+    if (len === 0) continue;
+    // Signed distance across and position along the edge (unit direction).
+    const ux = dx / len, uy = dy / len;
+    const along = (x - ax) * ux + (y - ay) * uy, across = (x - ax) * uy - (y - ay) * ux;
+    if (Math.abs(Math.abs(across) - d) > tol || along < reach || along > len - reach) continue;
+    // Which side of the point the edge lies on, in a fixed frame (edges of either orientation).
+    const nxs = across > 0 ? -uy : uy, nys = across > 0 ? ux : -ux;
+    if (nxs > 0.5 || nys > 0.5) pos |= nxs > 0.5 ? 1 : 2;
+    else neg |= nxs < -0.5 ? 1 : 2;
+  }
+  return (pos & neg) !== 0;
 }

@@ -171,7 +171,7 @@ function toBboxFrame(coords: ArrayLike<number>, rings: [number, number][], bbox:
 }
 
 /** Refinement step of the compressed Manhattan lattice near vertex lines, per mean width 2·area/perimeter. */
-const COMPRESSED_STEPS_PER_WIDTH = Number(process.env.MW_K ?? 8);
+const COMPRESSED_STEPS_PER_WIDTH = 4;
 
 /** Manhattan openings the compressed lattice declined (node cap) since the process started: benches report it. */
 export let compressedFallbacks = 0;
