@@ -31,6 +31,9 @@ let maskS = new Uint8Array(0);
 let d2S = new Float64Array(0);
 let rootS = new Float64Array(0);
 let candS = new Int32Array(0);
+const doneS = new Float64Array(192);
+/** Most climbs for maxWidth per opening (largest candidates first, each more than its reach from the others). */
+const MAX_CLIMBS = 4;
 let topS = new Uint8Array(0);
 let fS = new Float64Array(0), dS = new Float64Array(0), zS = new Float64Array(0), vS = new Int32Array(0);
 
@@ -213,20 +216,33 @@ export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWi
   const near = L.h * (1 + 1e-9);
   const nearGap = (a: number, b: number) => (b - a <= near ? b - a : 0);
   let maxD = best;
-  for (let k = 0; k < m; k++) {
-    if (!top[k]) continue;
-    const q = cand[k] as number;
+  // Starts already climbed from (x, y, radius of the region they settle): later nodes inside one are skipped.
+  let nDone = 0;
+  // Largest first: the first climbs raise maxD, which prunes the rest.
+  const seeds: number[] = [];
+  for (let k = 0; k < m; k++) if ((root[cand[k] as number] as number) + 4 * L.h * Math.SQRT2 > maxD) seeds.push(cand[k] as number);
+  seeds.sort((a, b) => (root[b] as number) - (root[a] as number) || a - b);
+  for (const q of seeds) {
     const i = q % nx, j = (q - i) / nx;
     const hx = Math.max(nearGap(xs[i] as number, xs[i + 1] as number), nearGap(xs[i - 1] as number, xs[i] as number));
     const hy = Math.max(nearGap(ys[j] as number, ys[j + 1] as number), nearGap(ys[j - 1] as number, ys[j] as number));
-    if ((root[q] as number) + 2 * Math.sqrt(hx * hx + hy * hy) <= maxD * (1 + 1e-12)) continue;
+    const reach = 2 * Math.sqrt(hx * hx + hy * hy);
     const x = xs[i] as number, y = ys[j] as number, dq = root[q] as number;
-    if (isLocalMaximum(edges, x, y, dq)) continue;
+    if (dq + reach <= maxD * (1 + 1e-12)) continue;
+    let seen = false;
+    for (let u = 0; u < nDone && !seen; u++) seen = Math.hypot(x - (doneS[3 * u] as number), y - (doneS[3 * u + 1] as number)) <= (doneS[3 * u + 2] as number);
+    if (seen || isLocalMaximum(edges, x, y, dq)) continue;
+    if (nDone >= MAX_CLIMBS) break;
     // The maximum next to a node is usually a medial-axis vertex solved directly from the sites near the node
     // (ridge-snap.ts, certified); otherwise the pattern search climbs to it.
-    const reach = 2 * Math.sqrt(hx * hx + hy * hy);
     const d = snapToRidge(edges, x, y, dq, reach, dq) ? (snapped[2] as number) : climbToMaximum(edges, x, y, Math.max(hx, hy));
     if (d > maxD) maxD = d;
+    if (nDone < 64) {
+      doneS[3 * nDone] = x;
+      doneS[3 * nDone + 1] = y;
+      doneS[3 * nDone + 2] = reach;
+      nDone++;
+    }
   }
   // minWidth: the nodes that are local maxima of D (certified on the exact edges; no other point is self-centred) in
   // increasing D; the first that no larger disk covers.
