@@ -10,12 +10,21 @@
  * - minWidth = smallest 2·D over self-centred centres: the trench width of a line, the diameter of a hole, the
  *   narrower arm of an L, the wall width of a ring. Convex corners do not count (their corner-branch centres lie in
  *   larger disks). Known limit: in a gradually tapered opening the chain of growing disks covers the narrow end,
- *   so minWidth reports the widest part of the taper. Known limit of the sampled lattice (openings off the exact
- *   Manhattan lattice, e.g. any with vertices on a 1 nm grid): a narrow stub only a node or two wide and long can be
- *   missed, so minWidth reports the next wider part — on seeded unions of 2–4 trenches 12 % of openings differ from
- *   the exact lattice by > 1 % (bench/widths-sampled-vs-exact.ts), which understates aspect ratios there.
+ *   so minWidth reports the widest part of the taper. Known limit of the sampled lattice (non-Manhattan openings that
+ *   are neither convex nor polygonised circles, and Manhattan ones beyond the compressed lattice's node cap): a narrow
+ *   stub only a node or two wide and long can be missed, so minWidth reports the next wider part — on seeded unions of
+ *   2–4 trenches the sampled lattice put 12 % of openings > 1 % off (bench/widths-sampled-vs-exact.ts), which
+ *   understates aspect ratios there.
  *
- * Method: the feature is sampled on a node lattice (lattice.ts), D by the exact Euclidean distance transform to
+ * Manhattan openings (every edge axis-parallel), on any vertex grid: the compressed lattice (manhattan-lines.ts,
+ * manhattan-widths.ts) — lines at every vertex coordinate, at the midline of every pair of facing edges, where those
+ * plateaus end, refined near the vertex lines. D is exact at every node (Felzenszwalb–Huttenlocher distance transform
+ * on the non-uniform positions), every trench midline has nodes, off-lattice maxima are solved or climbed to on the
+ * exact edges, and the self-centred test is finished on the exact distance (a cover search between nodes), so these
+ * widths are exact (widthExact): equal to a brute-force 1/2-dbu grid on seeded 1 nm-grid unions
+ * (tests/geometry/manhattan-widths.test.ts). Above its node cap (16·maxNodes) the uniform paths below are used.
+ *
+ * Uniform paths: the feature is sampled on a node lattice (lattice.ts), D by the exact Euclidean distance transform to
  * the nearest non-interior node, T by painting the maximal disks. For Manhattan features whose vertices lie on
  * a lattice of spacing g/2 (g = gcd of the vertex offsets) every nearest boundary point is a node, so D is exact
  * and so are the widths (widthExact). Otherwise the step is 1/5 of the mean width 2·area/perimeter (stepsPerWidth),
