@@ -57,37 +57,81 @@ function indexOf(a: Float64Array, v: number): number {
   return lo;
 }
 
+/** Stretches found by facingPairs: lo, hi (across), s0, s1 (along), four numbers each (reused). */
+let pairS = new Float64Array(64);
+let curS = new Int32Array(0), nextS = new Int32Array(0);
+
 /**
  * Facing pairs along one axis: for each band (row r of the vertex grid when `rows`, else column), the maximal runs of
- * inside cells; a run continuing over the next band with the same ends extends the stretch. Calls
- * out(lo, hi, s0, s1): the run's ends (coordinates across) and the stretch (coordinates along).
+ * inside cells; a run continuing over the next band with the same ends extends the stretch. Returns the stretch count,
+ * written to pairS as (lo, hi, s0, s1): the run's ends (coordinates across) and the stretch (coordinates along).
  */
-function facingPairs(cellIn: Uint8Array, ncx: number, ncy: number, rows: boolean, across: Float64Array, along: Float64Array, out: (lo: number, hi: number, s0: number, s1: number) => void): void {
+function facingPairs(cellIn: Uint8Array, ncx: number, ncy: number, rows: boolean, across: Float64Array, along: Float64Array): number {
   const nb = rows ? ncy : ncx, nc = rows ? ncx : ncy;
-  // Open stretches keyed by run ends (first cell, last cell): start band.
-  let open = new Map<number, number>();
+  // Open stretches as (first cell, last cell, start band) triples.
+  if (curS.length < 3 * (nc + 1)) {
+    curS = new Int32Array(3 * (nc + 1));
+    nextS = new Int32Array(3 * (nc + 1));
+  }
+  let cur = curS, next = nextS, nCur = 0, nPairs = 0;
   for (let b = 0; b <= nb; b++) {
-    const next = new Map<number, number>();
+    let nNext = 0;
     if (b < nb) {
       for (let c = 0; c < nc; ) {
-        const at = (k: number) => (rows ? cellIn[b * ncx + k] : cellIn[k * ncx + b]) as number;
-        if (!at(c)) {
+        if (!(rows ? cellIn[b * ncx + c] : cellIn[c * ncx + b])) {
           c++;
           continue;
         }
         let e = c;
-        while (e + 1 < nc && at(e + 1)) e++;
-        const key = c * (nc + 1) + e;
-        next.set(key, open.get(key) ?? b);
+        while (e + 1 < nc && (rows ? cellIn[b * ncx + e + 1] : cellIn[(e + 1) * ncx + b])) e++;
+        let start = b;
+        for (let u = 0; u < nCur; u++) if (cur[3 * u] === c && cur[3 * u + 1] === e) start = cur[3 * u + 2] as number;
+        next[3 * nNext] = c;
+        next[3 * nNext + 1] = e;
+        next[3 * nNext + 2] = start;
+        nNext++;
         c = e + 1;
       }
     }
-    for (const [key, start] of open) {
-      if (next.get(key) === start) continue;
-      const c = Math.floor(key / (nc + 1)), e = key - c * (nc + 1);
-      out(across[c] as number, across[e + 1] as number, along[start] as number, along[b] as number);
+    for (let u = 0; u < nCur; u++) {
+      const c = cur[3 * u] as number, e = cur[3 * u + 1] as number, start = cur[3 * u + 2] as number;
+      let goesOn = false;
+      for (let w = 0; w < nNext && !goesOn; w++) goesOn = next[3 * w] === c && next[3 * w + 1] === e && next[3 * w + 2] === start;
+      if (goesOn) continue;
+      if (pairS.length < 4 * (nPairs + 1)) {
+        const grown = new Float64Array(2 * pairS.length);
+        grown.set(pairS);
+        pairS = grown;
+      }
+      pairS[4 * nPairs] = across[c] as number;
+      pairS[4 * nPairs + 1] = across[e + 1] as number;
+      pairS[4 * nPairs + 2] = along[start] as number;
+      pairS[4 * nPairs + 3] = along[b] as number;
+      nPairs++;
     }
-    open = next;
+    const t = cur;
+    cur = next;
+    next = t;
+    nCur = nNext;
+  }
+  return nPairs;
+}
+
+/** Lines where a plateau of half-width r over the stretch [s0, s1] ends or stops being covered (module doc). */
+function pushEnds(lines: number[], s0: number, s1: number, r: number): void {
+  if (s1 - s0 > 2 * r) {
+    lines.push(s0 + r, s1 - r);
+    return;
+  }
+  lines.push((s0 + s1) / 2);
+  if (s1 - s0 > r) lines.push(s0 + r, s1 - r);
+  // Stretch shorter than its width: the plateau end at depth t = (s1 − s0) − r from either end is covered by the
+  // disk centred u = (r² − t²)/(2t) outside that end on the midline (radius √(r² + u²) ≥ t + u) when the opening
+  // extends there; a line at half that offset puts a node strictly inside the covering range.
+  const t = s1 - s0 - r;
+  if (t > 0 && t < r) {
+    const u = (r * r - t * t) / (4 * t);
+    lines.push(s0 - u, s1 + u);
   }
 }
 
@@ -129,32 +173,20 @@ export function manhattanLines(coords: ArrayLike<number>, rings: [number, number
   const xl: number[] = Array.from(bx), yl: number[] = Array.from(by);
   // Largest strip width per vertex-grid column / row: how far disks reach into a gap there.
   const reachX = new Float64Array(ncx), reachY = new Float64Array(ncy);
-  const ends = (lines: number[], s0: number, s1: number, r: number) => {
-    if (s1 - s0 > 2 * r) {
-      lines.push(s0 + r, s1 - r);
-      return;
-    }
-    lines.push((s0 + s1) / 2);
-    if (s1 - s0 > r) lines.push(s0 + r, s1 - r);
-    // Stretch shorter than its width: the plateau end at depth t = (s1 − s0) − r from either end is covered by the
-    // disk centred u = (r² − t²)/(2t) outside that end on the midline (radius √(r² + u²) ≥ t + u) when the opening
-    // extends there; a line at half that offset puts a node strictly inside the covering range.
-    const t = s1 - s0 - r;
-    if (t > 0 && t < r) {
-      const u = (r * r - t * t) / (4 * t);
-      lines.push(s0 - u, s1 + u);
-    }
-  };
-  facingPairs(cellIn, ncx, ncy, true, bx, by, (lo, hi, s0, s1) => {
+  let n = facingPairs(cellIn, ncx, ncy, true, bx, by);
+  for (let k = 0; k < n; k++) {
+    const lo = pairS[4 * k] as number, hi = pairS[4 * k + 1] as number, s0 = pairS[4 * k + 2] as number, s1 = pairS[4 * k + 3] as number;
     xl.push((lo + hi) / 2);
-    ends(yl, s0, s1, (hi - lo) / 2);
+    pushEnds(yl, s0, s1, (hi - lo) / 2);
     for (let r = indexOf(by, s0), r1 = indexOf(by, s1); r < r1; r++) reachY[r] = Math.max(reachY[r] as number, hi - lo);
-  });
-  facingPairs(cellIn, ncx, ncy, false, by, bx, (lo, hi, s0, s1) => {
+  }
+  n = facingPairs(cellIn, ncx, ncy, false, by, bx);
+  for (let k = 0; k < n; k++) {
+    const lo = pairS[4 * k] as number, hi = pairS[4 * k + 1] as number, s0 = pairS[4 * k + 2] as number, s1 = pairS[4 * k + 3] as number;
     yl.push((lo + hi) / 2);
-    ends(xl, s0, s1, (hi - lo) / 2);
+    pushEnds(xl, s0, s1, (hi - lo) / 2);
     for (let c = indexOf(bx, s0), c1 = indexOf(bx, s1); c < c1; c++) reachX[c] = Math.max(reachX[c] as number, hi - lo);
-  });
+  }
   const xs = refine(xl, bx, reachX, h), ys = refine(yl, by, reachY, h);
   if (xs.length * ys.length > maxNodes) return null;
   return { xs, ys, bx, by, cellIn, h };
