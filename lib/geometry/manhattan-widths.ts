@@ -15,8 +15,9 @@
  *   the coverage from a wider region stops) and isolated medial-axis vertices, which are larger than the arms
  *   around them in the shapes tested.
  * - maxWidth: the largest node D, and the pattern search with ridge snap (disk-search.ts climbToMaximum) from the
- *   nodes that could lie next to a larger off-lattice maximum (a medial-axis vertex at reflex corners: D there exceeds
- *   the best node's D by at most the half-diagonal of the cells around the node).
+ *   largest corner of every lattice cell whose Lipschitz bound (largest corner D + half the diagonal, or where the
+ *   corner cones meet) beats the best so far, largest bound first, at most MAX_CLIMBS climbs (a medial-axis vertex at
+ *   reflex corners lies between nodes).
  */
 import type { ManhattanLines } from './manhattan-lines';
 import { climbed, climbToMaximum } from './disk-search';
@@ -31,10 +32,9 @@ let maskS = new Uint8Array(0);
 let d2S = new Float64Array(0);
 let rootS = new Float64Array(0);
 let candS = new Int32Array(0);
-const doneS = new Float64Array(192);
-/** Most climbs for maxWidth per opening (largest candidates first, each more than its reach from the others). */
-const MAX_CLIMBS = 4;
-let topS = new Uint8Array(0);
+/** Most climbs for maxWidth per opening (cells with the largest bound first). */
+const MAX_CLIMBS = 8;
+let topS = new Uint8Array(0), maximalS = new Uint8Array(0);
 let fS = new Float64Array(0), dS = new Float64Array(0), zS = new Float64Array(0), vS = new Int32Array(0);
 
 /** Interior nodes (all four quadrants inside) from the vertex-grid cells, into module scratch. */
@@ -209,40 +209,76 @@ export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWi
     }
   }
   const cand = candS.subarray(0, m), top = topS;
-  // maxWidth: the best node, and climbs from the local maxima of the lattice that could neighbour a larger
-  // off-lattice maximum (D there exceeds the node's by at most the distance to it: allowed two diagonals of the
-  // largest adjacent cell, since the lattice maximum next to it may be a cell away).
+  if (maximalS.length < nodes) maximalS = new Uint8Array(Math.max(nodes, 2 * maximalS.length));
+  const maximal = maximalS.subarray(0, nodes).fill(0);
+  for (let k = 0; k < m; k++) maximal[cand[k] as number] = 1;
+  // maxWidth: the best node, and climbs towards larger off-lattice maxima (medial-axis vertices at reflex corners).
   // Along a gap wider than the refinement step D does not change (manhattan-lines.ts), so such gaps add nothing.
   const near = L.h * (1 + 1e-9);
   const nearGap = (a: number, b: number) => (b - a <= near ? b - a : 0);
   let maxD = best;
-  // Starts already climbed from (x, y, radius of the region they settle): later nodes inside one are skipped.
-  let nDone = 0;
-  // Largest first: the first climbs raise maxD, which prunes the rest.
-  const seeds: number[] = [];
-  for (let k = 0; k < m; k++) if ((root[cand[k] as number] as number) + 4 * L.h * Math.SQRT2 > maxD) seeds.push(cand[k] as number);
-  seeds.sort((a, b) => (root[b] as number) - (root[a] as number) || a - b);
-  for (const q of seeds) {
+  // Cells that could hold a larger off-lattice maximum: D is 1-Lipschitz, so nothing in a cell exceeds its largest
+  // corner D plus half its diagonal (a wide gap counts as 0 across: D does not change along it). Climbed from that
+  // corner, largest bound first, until the bound cannot beat maxD. (Until Dec 2026 at most 4 climbs from the
+  // largest maximal centres, each skipping later starts within its reach: on the 1M bench layout that missed 29
+  // maxima by up to 9 %, where a climb left its start for a plateau on one side or stalled at a neck between two
+  // corners while the larger maximum lay on the other side.)
+  let nc = 0;
+  for (let j = 0; j + 1 < ny; j++) {
+    const gy = nearGap(ys[j] as number, ys[j + 1] as number);
+    for (let i = 0; i + 1 < nx; i++) {
+      const q = j * nx + i;
+      let c = q, dc = root[q] as number;
+      if ((root[q + 1] as number) > dc) dc = root[(c = q + 1)] as number;
+      if ((root[q + nx] as number) > dc) dc = root[(c = q + nx)] as number;
+      if ((root[q + nx + 1] as number) > dc) dc = root[(c = q + nx + 1)] as number;
+      if (dc === 0) continue;
+      const gx = nearGap(xs[i] as number, xs[i + 1] as number);
+      // Along one column of corners the cones meet at most at (D_below + D_above + gap)/2, and a point is at most
+      // half the other gap from its nearer column: the tighter of these and the half-diagonal bound.
+      const d00 = root[q] as number, d10 = root[q + 1] as number, d01 = root[q + nx] as number, d11 = root[q + nx + 1] as number;
+      const byCols = 0.5 * (gx + gy + Math.max(d00 + d01, d10 + d11));
+      const byRows = 0.5 * (gx + gy + Math.max(d00 + d10, d01 + d11));
+      const bound = Math.min(dc + 0.5 * Math.sqrt(gx * gx + gy * gy), byCols, byRows);
+      if (bound <= maxD * (1 + 1e-12)) continue;
+      if (cellBoundS.length <= nc) {
+        const gb = new Float64Array(Math.max(64, 2 * nc)), gq = new Int32Array(gb.length), go = new Int32Array(gb.length);
+        gb.set(cellBoundS);
+        gq.set(cellCornerS);
+        cellBoundS = gb;
+        cellCornerS = gq;
+        cellOrderS = go;
+      }
+      cellBoundS[nc] = bound;
+      cellCornerS[nc] = c;
+      nc++;
+    }
+  }
+  for (let k = 0; k < nc; k++) cellOrderS[k] = k;
+  const order = cellOrderS.subarray(0, nc).sort((a, b) => (cellBoundS[b] as number) - (cellBoundS[a] as number) || a - b);
+  let nClimbs = 0;
+  tried.clear();
+  for (let o = 0; o < nc; o++) {
+    const cell = order[o] as number;
+    if ((cellBoundS[cell] as number) <= maxD * (1 + 1e-12)) break;
+    const q = cellCornerS[cell] as number;
+    // Only maximal centres: a corner whose disk lies in a neighbour's sits on a slope, with a larger corner nearby.
+    if (tried.has(q) || !maximal[q]) continue;
+    tried.add(q);
     const i = q % nx, j = (q - i) / nx;
-    const hx = Math.max(nearGap(xs[i] as number, xs[i + 1] as number), nearGap(xs[i - 1] as number, xs[i] as number));
-    const hy = Math.max(nearGap(ys[j] as number, ys[j + 1] as number), nearGap(ys[j - 1] as number, ys[j] as number));
+    const hx = Math.max(i + 1 < nx ? nearGap(xs[i] as number, xs[i + 1] as number) : 0, i > 0 ? nearGap(xs[i - 1] as number, xs[i] as number) : 0);
+    const hy = Math.max(j + 1 < ny ? nearGap(ys[j] as number, ys[j + 1] as number) : 0, j > 0 ? nearGap(ys[j - 1] as number, ys[j] as number) : 0);
     const reach = 2 * Math.sqrt(hx * hx + hy * hy);
     const x = xs[i] as number, y = ys[j] as number, dq = root[q] as number;
-    if (dq + reach <= maxD * (1 + 1e-12)) continue;
-    let seen = false;
-    for (let u = 0; u < nDone && !seen; u++) seen = Math.hypot(x - (doneS[3 * u] as number), y - (doneS[3 * u + 1] as number)) <= (doneS[3 * u + 2] as number);
-    if (seen || isLocalMaximum(edges, x, y, dq)) continue;
-    if (nDone >= MAX_CLIMBS) break;
+    // A certified local maximum at the corner: the cell's own maximum is that corner or one the neighbours' climbs find.
+    if (isLocalMaximum(edges, x, y, dq)) continue;
+    if (nClimbs >= MAX_CLIMBS) break;
+    nClimbs++;
     // The maximum next to a node is usually a medial-axis vertex solved directly from the sites near the node
     // (ridge-snap.ts, certified); otherwise the pattern search climbs to it.
-    const d = snapToRidge(edges, x, y, dq, reach, dq) ? (snapped[2] as number) : climbToMaximum(edges, x, y, Math.max(hx, hy));
+    const snap = snapToRidge(edges, x, y, dq, reach, dq);
+    const d = snap ? (snapped[2] as number) : climbToMaximum(edges, x, y, Math.max(hx, hy));
     if (d > maxD) maxD = d;
-    if (nDone < 64) {
-      doneS[3 * nDone] = x;
-      doneS[3 * nDone + 1] = y;
-      doneS[3 * nDone + 2] = reach;
-      nDone++;
-    }
   }
   // minWidth: the nodes that are local maxima of D (certified on the exact edges; no other point is self-centred) in
   // increasing D; the first that no larger disk covers.
@@ -285,6 +321,10 @@ export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWi
   return { minWidth: 2 * minD, maxWidth: 2 * maxD };
 }
 
+/** Cells that may hold a larger off-lattice maximum: bound, largest corner, sort order (reused). */
+let cellBoundS = new Float64Array(0), cellCornerS = new Int32Array(0), cellOrderS = new Int32Array(0);
+/** Corners climbed from or rejected for maxWidth in the current opening (reused). */
+const tried = new Set<number>();
 /** Nodes to climb from for off-lattice maxima (reused). */
 const climbFrom: number[] = [];
 

@@ -55,6 +55,29 @@ describe('hand-derived widths on a 1 nm vertex grid (compressed lattice)', () =>
     expect(Math.abs(f.maxWidthUm - 2 * t * DBU)).toBeLessThan(1e-9);
   });
 
+  // Two openings of the 1M-polygon bench layout (bench/make-files.ts mixedLayer) where the earlier maxWidth seeding
+  // (at most 4 climbs, later starts within reach of an earlier one skipped) returned an arm's plateau instead of the
+  // junction disk: 1973 instead of 2175.9 dbu and 2106.7 instead of 2252.2 dbu.
+  it('an L-shaped junction: maxWidth the disk on the reflex corner, not the wider arm plateau', () => {
+    // Trench x ∈ [1624, 3462] (plateau 919), arm y ∈ [15705, 17678] (plateau 986.5) with a 97 dbu step in its top.
+    // Junction disk: right edge x = 3462, top edge y = 17581 and the reflex corner (1624, 15705): centre
+    // (3462 − r, 17581 − r), (1838 − r)² + (1876 − r)² = r² → r² − 7428 r + 1838² + 1876² = 0, smaller root
+    // r = 1087.94 dbu > 986.5.
+    const f = one([[3462, 17581, 1973, 17581, 1973, 17678, 0, 17678, 0, 15705, 1624, 15705, 1624, 0, 3462, 0]]);
+    const r = (7428 - Math.sqrt(7428 ** 2 - 4 * (1838 ** 2 + 1876 ** 2))) / 2;
+    expect(Math.abs(f.maxWidthUm - 2 * r * DBU)).toBeLessThan(1e-9);
+  });
+
+  it('a junction next to a neck between two corners: maxWidth the junction disk', () => {
+    // Arm y ∈ [24000, 26059] whose top steps down to 26050 at x = 2059, trench x ∈ [1798, 3568]. The lattice maximum
+    // (1928.5, 25025) sits at the neck between the corners (1798, 24000) and (2059, 26050), where a pattern search
+    // stalls; the junction disk touches x = 3568, y = 26050 and the corner (1798, 24000):
+    // (1770 − r)² + (2050 − r)² = r² → r = (7640 − √(7640² − 4·(1770² + 2050²)))/2 = 1126.12 dbu.
+    const f = one([[3568, 15857, 3978, 15857, 3978, 17401, 3568, 17401, 3568, 26050, 2059, 26050, 2059, 26059, 0, 26059, 0, 24000, 1798, 24000, 1798, 0, 3568, 0]]);
+    const r = (7640 - Math.sqrt(7640 ** 2 - 4 * (1770 ** 2 + 2050 ** 2))) / 2;
+    expect(Math.abs(f.maxWidthUm - 2 * r * DBU)).toBeLessThan(1e-9);
+  });
+
   it('a T with a stem narrower than the bar: minWidth the stem', () => {
     // Bar 2.003 µm × 20.001 µm, stem 1.201 µm × 10 µm: stem plateau 600.5 dbu, far from the junction (its disks
     // reach < 600.5 dbu into the stem): minWidth 1.201 µm. Junction disk: bar bottom y = 0 and the corners
