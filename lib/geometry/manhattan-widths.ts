@@ -234,6 +234,8 @@ export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWi
       if ((root[q + nx + 1] as number) > dc) dc = root[(c = q + nx + 1)] as number;
       if (dc === 0) continue;
       const gx = nearGap(xs[i] as number, xs[i + 1] as number);
+      // Half the diagonal is at most half the two gaps: most cells fail this cheaper bound already.
+      if (dc + 0.5 * (gx + gy) <= maxD * (1 + 1e-12)) continue;
       // Along one column of corners the cones meet at most at (D_below + D_above + gap)/2, and a point is at most
       // half the other gap from its nearer column: the tighter of these and the half-diagonal bound.
       const d00 = root[q] as number, d10 = root[q + 1] as number, d01 = root[q + nx] as number, d11 = root[q + nx + 1] as number;
