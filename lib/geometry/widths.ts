@@ -23,10 +23,12 @@
  * exact edges, and the self-centred test is finished on the exact distance (a cover search between nodes), so these
  * widths are exact (widthExact): equal to a brute-force 1/2-dbu grid on seeded 1 nm-grid unions
  * (tests/geometry/manhattan-widths.test.ts), where the uniform exact lattice below differs it misses a covering disk in
- * a thin sliver between its nodes. Known limit: maxWidth climbs from at most 4 seeds and can miss a medial-axis vertex
- * slightly larger than a plateau (1 of 123 coarse-grid unions, 0.7 % low). Above the node cap (16·maxNodes) the
- * uniform paths below are used. Cost ≈ 160 µs CPU per opening on the 60 k lattice openings of the bench layout
- * (uniform paths ≈ 86 µs): lines and passes over a few hundred to a few thousand nodes, a few snaps or climbs.
+ * a thin sliver between its nodes. Known limit: maxWidth climbs (at most 8) from the cells whose Lipschitz bound beats
+ * the best node, and a climb can stall at a neck between two corners: on the 60 k lattice openings of the bench layout
+ * 4 maxWidths stay 0.02–0.5 % below a brute-force maximum (29, up to 9 % low, with the earlier 4-seed climbs). Above
+ * the node cap (16·maxNodes) the uniform paths below are used. Cost ≈ 210 µs CPU per opening on those openings at load
+ * 4–5 (uniform paths ≈ 150 µs in the same runs, i.e. ~1.4×; the 4-seed version ≈ 270 µs): lines and passes over a few
+ * hundred to a few thousand nodes, a few snaps or climbs.
  *
  * Uniform paths: the feature is sampled on a node lattice (lattice.ts), D by the exact Euclidean distance transform to
  * the nearest non-interior node, T by painting the maximal disks. For Manhattan features whose vertices lie on
