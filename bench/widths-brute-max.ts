@@ -1,27 +1,29 @@
 /**
  * Checks changed maxWidths against brute force: D on a 500 × 500 grid over the bbox (inside points only), the best
  * point refined by a 64-direction compass search. `node --import tsx bench/widths-brute-max.ts DUMP.bin BEFORE.bin
- * AFTER.bin [every]` (widths-dump / widths-run outputs); checks every `every`-th opening whose maxWidth went up.
+ * AFTER.bin [every] [down]` (widths-dump / widths-run outputs); checks every `every`-th opening whose maxWidth went up
+ * (with `down`: went down).
  */
 import { readFileSync } from 'node:fs';
 import { readDump } from './widths-run';
 import { edgeList, distanceToEdges } from '../lib/geometry/edge-distance';
 const load = (f: string) => { const b = readFileSync(f); return new Float64Array(b.buffer, b.byteOffset, b.byteLength / 8); };
-const [dumpFile, beforeFile, afterFile, everyArg] = process.argv.slice(2);
+const [dumpFile, beforeFile, afterFile, everyArg, dir] = process.argv.slice(2);
+const sign = dir === 'down' ? -1 : 1;
 if (!dumpFile || !beforeFile || !afterFile) throw new Error('usage: widths-brute-max.ts DUMP.bin BEFORE.bin AFTER.bin [every]');
 const every = Number(everyArg ?? 137);
 const ops = readDump(dumpFile);
 const a = load(beforeFile), b = load(afterFile);
 const idx: number[] = [];
-for (let k = 0; k < ops.length; k++) if (b[3*k+1]! > a[3*k+1]! + 1e-6) idx.push(k);
-idx.sort((p, q) => (b[3*q+1]! - a[3*q+1]!) - (b[3*p+1]! - a[3*p+1]!));
+for (let k = 0; k < ops.length; k++) if (sign * (b[3*k+1]! - a[3*k+1]!) > 1e-6) idx.push(k);
+idx.sort((p, q) => sign * ((b[3*q+1]! - a[3*q+1]!) - (b[3*p+1]! - a[3*p+1]!)));
 // inside test: even-odd over rings
 const inside = (c: Float64Array, rings: [number, number][], x: number, y: number) => {
   let w = false;
   for (const [s, e] of rings) for (let k = s; k < e; k++) { const n = k + 1 < e ? k + 1 : s; const yi = c[2*k+1]!, yj = c[2*n+1]!; if ((yi > y) !== (yj > y)) { const xi = c[2*k]! + (y - yi) * (c[2*n]! - c[2*k]!) / (yj - yi); if (x < xi) w = !w; } }
   return w;
 };
-for (const k of idx.filter((_, i) => i % every === 3)) {
+for (const k of idx.filter((_, i) => i % every === Math.min(3, every - 1))) {
   const f = ops[k]!; const e = edgeList(f.coords, f.rings);
   let best = 0, bx = 0, by = 0;
   const N = 500, sx = (f.bbox[2] - f.bbox[0]) / N, sy = (f.bbox[3] - f.bbox[1]) / N;

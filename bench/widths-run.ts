@@ -1,7 +1,7 @@
 /**
  * Measures every opening of a widths-dump.ts file with `featureWidths` (one thread, one shape cache as in the
  * pipeline), prints the time, and writes minWidth, maxWidth, step per opening for widths-diff.ts.
- * `node --import tsx bench/widths-run.ts IN.bin OUT.bin`
+ * `node --import tsx bench/widths-run.ts IN.bin OUT.bin [uniform]` (`uniform`: the uniform lattices only, the old path)
  */
 import { readFileSync, writeFileSync } from 'node:fs';
 import { loadavg } from 'node:os';
@@ -35,11 +35,12 @@ if (import.meta.url === `file://${process.argv[1]}`) {
   if (!inp || !out) throw new Error('usage: widths-run.ts IN.bin OUT.bin');
   const ops = readDump(inp);
   const res = new Float64Array(3 * ops.length);
+  const opts = process.argv[4] === 'uniform' ? { uniformLattice: true } : {};
   const cache: WidthCache = new Map();
   const t0 = performance.now();
   const c0 = process.cpuUsage();
   ops.forEach((f, k) => {
-    const w = featureWidths(f.coords, f.rings, f.bbox, f.area, f.perim, {}, cache);
+    const w = featureWidths(f.coords, f.rings, f.bbox, f.area, f.perim, opts, cache);
     res[3 * k] = w.minWidth;
     res[3 * k + 1] = w.maxWidth;
     res[3 * k + 2] = w.step;

@@ -1,37 +1,136 @@
 /**
- * Sampled lattice vs exact Manhattan lattice on seeded random unions of 2–4 trenches (vertices on a 200 dbu grid, so
- * the exact lattice applies; `sampledLattice: true` forces the sampled one, as 1 nm vertices do in real layouts).
- * Prints how often and by how much the two disagree. `node --import tsx bench/widths-sampled-vs-exact.ts [trials]`
+ * Width methods against exact references on seeded random unions of 2–4 trenches:
+ * 1. vertices on a 200 dbu grid, where the uniform exact Manhattan lattice applies: the compressed lattice (default
+ *    path) and the sampled lattice (`sampledLattice: true`, what 1 nm vertices used to get) against it;
+ * 2. vertices on a 1 dbu grid, small enough for the brute-force 1/2-dbu grid (tests/geometry/brute-widths.ts): the
+ *    compressed lattice and the sampled lattice (`uniformLattice: true`) against it;
+ * 3. optionally the lattice-path openings of a real layout (a bench/widths-dump.ts file): time per opening of the
+ *    compressed and the uniform paths, and how many Manhattan openings fell back to the uniform paths (node cap).
+ * `node --import tsx bench/widths-sampled-vs-exact.ts [trials] [DUMP.bin]`
  */
-import { extractFeatures } from '../lib/geometry';
+import { loadavg } from 'node:os';
+import { openRegions, type Box } from '../lib/geometry';
+import { compressedFallbacks, featureWidths, type WidthOptions, type WidthResult } from '../lib/geometry/widths';
 import { mulberry32 } from '../lib/random';
+import { bruteWidths } from '../tests/geometry/brute-widths';
+import { readDump } from './widths-run';
 
 const rect = (x0: number, y0: number, x1: number, y1: number) => [x0, y0, x1, y0, x1, y1, x0, y1];
 const trials = Number(process.argv[2] ?? 400);
-const rnd = mulberry32(2026);
-const devMin: number[] = [], devMax: number[] = [];
-for (let trial = 0; trial < trials; trial++) {
-  const rings: number[][] = [];
+const dumpFile = process.argv[3];
+
+interface Opening { coords: Float64Array; rings: [number, number][]; bbox: Box; area: number; perim: number; local: number[][] }
+
+function unionOpenings(rnd: () => number, grid: number, pos: number, w: [number, number], len: [number, number]): Opening[] {
+  const pick = (a: number, b: number) => grid * Math.floor((a + rnd() * (b - a)) / grid);
+  const rs: number[][] = [];
   const k = 2 + Math.floor(rnd() * 3);
   for (let q = 0; q < k; q++) {
-    const x = 200 * Math.floor(rnd() * 40), y = 200 * Math.floor(rnd() * 40);
-    const w = 200 * (3 + Math.floor(rnd() * 10)), len = 200 * (10 + Math.floor(rnd() * 40));
-    rings.push(rnd() < 0.5 ? rect(x, y, x + len, y + w) : rect(x, y, x + w, y + len));
+    const x = pick(0, pos), y = pick(0, pos), ww = pick(...w), ll = pick(...len);
+    rs.push(rnd() < 0.5 ? rect(x, y, x + ll, y + ww) : rect(x, y, x + ww, y + ll));
   }
-  const coords = Float64Array.from(rings.flat());
-  const offsets = Uint32Array.from([0, ...rings.map((_, i) => 4 * (i + 1))]);
-  const set = { layer: 1, datatype: 0, coords, offsets, count: rings.length };
-  const exact = extractFeatures(set, 0.001);
-  const sampled = extractFeatures(set, 0.001, { sampledLattice: true });
-  exact.forEach((f, i) => {
-    const s = sampled[i];
-    if (!s || f.widthStepUm === 0 || !f.widthExact) return;
-    devMin.push(s.minWidthUm / f.minWidthUm - 1);
-    devMax.push(s.maxWidthUm / f.maxWidthUm - 1);
-  });
+  const coords = Float64Array.from(rs.flat());
+  const offsets = Uint32Array.from([0, ...rs.map((_, i) => 4 * (i + 1))]);
+  const reg = openRegions({ layer: 1, datatype: 0, coords, offsets, count: rs.length }, 0.001, { tileDbu: 1e9 });
+  const out: Opening[] = [];
+  for (let p = 0; p < reg.pieceCount; p++) {
+    const rings: [number, number][] = [];
+    let area = 0, perim = 0;
+    const bbox: Box = [Infinity, Infinity, -Infinity, -Infinity];
+    for (let r = reg.pieceRings[p]!; r < reg.pieceRings[p + 1]!; r++) {
+      const s = reg.ringOffsets[r]!, e = reg.ringOffsets[r + 1]!;
+      rings.push([s, e]);
+      for (let q = s; q < e; q++) {
+        const n = q + 1 < e ? q + 1 : s;
+        const x = reg.coords[2 * q]!, y = reg.coords[2 * q + 1]!, x2 = reg.coords[2 * n]!, y2 = reg.coords[2 * n + 1]!;
+        area += (x * y2 - x2 * y) / 2;
+        perim += Math.hypot(x2 - x, y2 - y);
+        bbox[0] = Math.min(bbox[0], x);
+        bbox[1] = Math.min(bbox[1], y);
+        bbox[2] = Math.max(bbox[2], x);
+        bbox[3] = Math.max(bbox[3], y);
+      }
+    }
+    const local = rings.map(([s, e]) => Array.from({ length: 2 * (e - s) }, (_, k) => reg.coords[2 * s + k]! - bbox[k % 2]!));
+    out.push({ coords: reg.coords, rings, bbox, area, perim, local });
+  }
+  return out;
 }
+
+const measure = (o: Opening, opts: WidthOptions = {}): WidthResult => featureWidths(o.coords, o.rings, o.bbox, o.area, o.perim, opts);
 const stats = (d: number[]) => {
   const a = d.map(Math.abs).sort((p, q) => p - q);
-  return `n ${a.length}, |rel| max ${(100 * a[a.length - 1]!).toFixed(2)} %, > 1e-6: ${a.filter((v) => v > 1e-6).length} (sampled higher ${d.filter((v) => v > 1e-6).length}, lower ${d.filter((v) => v < -1e-6).length}), > 1 %: ${a.filter((v) => v > 0.01).length}`;
+  return `n ${a.length}, |rel| max ${(100 * (a[a.length - 1] ?? 0)).toFixed(2)} %, > 1e-6: ${a.filter((v) => v > 1e-6).length} (higher ${d.filter((v) => v > 1e-6).length}, lower ${d.filter((v) => v < -1e-6).length}), > 1 %: ${a.filter((v) => v > 0.01).length}`;
 };
-console.log(`minWidth: ${stats(devMin)}\nmaxWidth: ${stats(devMax)}`);
+
+// 1. Coarse grid: against the uniform exact lattice.
+{
+  const rnd = mulberry32(2026);
+  const dev = { cMin: [] as number[], cMax: [] as number[], sMin: [] as number[], sMax: [] as number[] };
+  for (let t = 0; t < trials; t++) {
+    for (const o of unionOpenings(rnd, 200, 8000, [600, 2600], [2000, 10_000])) {
+      const exact = measure(o, { uniformLattice: true });
+      if (exact.step === 0 || !exact.exact) continue;
+      const c = measure(o), s = measure(o, { sampledLattice: true });
+      dev.cMin.push(c.minWidth / exact.minWidth - 1);
+      dev.cMax.push(c.maxWidth / exact.maxWidth - 1);
+      dev.sMin.push(s.minWidth / exact.minWidth - 1);
+      dev.sMax.push(s.maxWidth / exact.maxWidth - 1);
+    }
+  }
+  console.log('vertices on a 200 dbu grid, against the uniform exact lattice:');
+  console.log(`  compressed minWidth: ${stats(dev.cMin)}\n  compressed maxWidth: ${stats(dev.cMax)}`);
+  console.log(`  sampled    minWidth: ${stats(dev.sMin)}\n  sampled    maxWidth: ${stats(dev.sMax)}`);
+}
+
+// 2. 1 dbu grid: against the brute force (slow: a fraction of the trials).
+{
+  const rnd = mulberry32(77);
+  const dev = { cMin: [] as number[], cMax: [] as number[], sMin: [] as number[], sMax: [] as number[] };
+  let tc = 0, n = 0;
+  for (let t = 0; t < Math.max(10, Math.round(trials / 10)); t++) {
+    for (const o of unionOpenings(rnd, 1, 110, [8, 40], [25, 160])) {
+      const t0 = performance.now();
+      const c = measure(o);
+      tc += performance.now() - t0;
+      if (c.step === 0) continue;
+      n++;
+      const b = bruteWidths(o.local, o.bbox[2] - o.bbox[0], o.bbox[3] - o.bbox[1]);
+      const s = measure(o, { uniformLattice: true });
+      dev.cMin.push(c.minWidth / b.minWidth - 1);
+      dev.cMax.push(c.maxWidth / b.maxWidth - 1);
+      dev.sMin.push(s.minWidth / b.minWidth - 1);
+      dev.sMax.push(s.maxWidth / b.maxWidth - 1);
+    }
+  }
+  console.log(`vertices on a 1 dbu grid, against the brute-force 1/2-dbu grid (${n} openings, compressed ${((1000 * tc) / Math.max(1, n)).toFixed(0)} µs each):`);
+  console.log(`  compressed minWidth: ${stats(dev.cMin)}\n  compressed maxWidth: ${stats(dev.cMax)}`);
+  console.log(`  sampled    minWidth: ${stats(dev.sMin)}\n  sampled    maxWidth: ${stats(dev.sMax)}`);
+}
+
+// 3. A real layout's lattice-path openings: time per opening, fallbacks.
+if (dumpFile) {
+  const ops = readDump(dumpFile);
+  const time = (opts: WidthOptions) => {
+    const c0 = process.cpuUsage();
+    for (const f of ops) featureWidths(f.coords, f.rings, f.bbox, f.area, f.perim, opts);
+    const c = process.cpuUsage(c0);
+    return (c.user + c.system) / ops.length;
+  };
+  let manhattan = 0;
+  for (const f of ops) {
+    let m = true;
+    for (const [s, e] of f.rings) for (let k = s; k < e && m; k++) {
+      const n = k + 1 < e ? k + 1 : s;
+      if (f.coords[2 * k] !== f.coords[2 * n] && f.coords[2 * k + 1] !== f.coords[2 * n + 1]) m = false;
+    }
+    if (m) manhattan++;
+  }
+  time({}); // warm up both paths once
+  time({ uniformLattice: true });
+  const before = compressedFallbacks;
+  const tc = time({});
+  const fallbacks = compressedFallbacks - before;
+  const tu = time({ uniformLattice: true });
+  console.log(`${dumpFile}: ${ops.length} lattice-path openings, ${manhattan} Manhattan; compressed path ${tc.toFixed(1)} µs CPU each (${fallbacks} fell back to the uniform paths), uniform paths ${tu.toFixed(1)} µs each; load ${loadavg()[0]!.toFixed(2)}`);
+}

@@ -55,49 +55,68 @@ export function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64
     if (u === firstStarts) seededBest = best;
     const q = starts[u] as number;
     const i = q % lat.nx, j = (q - i) / lat.nx;
-    let x = lat.x0 + i * lat.step, y = lat.y0 + j * lat.step;
-    let d = distanceToEdges(edges, x, y);
-    let h = lat.step;
-    let snapAt = lat.step * SNAP_STEP, justSnapped = false;
-    let earlyAt = lat.step * SNAP_EARLY, early = 0;
-    for (let it = 0; it < 120 && h > lat.step * 1e-6; it++) {
-      if (h < earlyAt) {
-        earlyAt = 0;
-        if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) early = snapped[2] as number;
-      }
-      if (h < snapAt) {
-        snapAt = 0;
-        if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) {
-          x = snapped[0] as number;
-          y = snapped[1] as number;
-          d = snapped[2] as number;
-          justSnapped = true;
-        }
-      }
-      let moved = false;
-      for (let k = 0; k < 16; k++) {
-        if (!(h < d)) break;
-        const nxp = x + (DIR_X[k] as number) * h, nyp = y + (DIR_Y[k] as number) * h;
-        const nd = distanceAbove(edges, nxp, nyp, d + 1e-12);
-        if (nd > d + 1e-12) {
-          x = nxp;
-          y = nyp;
-          d = nd;
-          moved = true;
-          break;
-        }
-      }
-      // On the snapped maximum no probe improves: done. Otherwise the snap was not the maximum; search on.
-      if (!moved && justSnapped) break;
-      if (moved) justSnapped = false;
-      else h /= 2;
-    }
-    if (early > d) d = early;
+    const d = climbToMaximum(edges, lat.x0 + i * lat.step, lat.y0 + j * lat.step, lat.step);
     if (d > best) best = d;
   }
   if (nStarts === firstStarts) seededBest = best;
   return best;
 }
+
+/**
+ * Exact distance (dbu) at the local maximum of D reached from (x, y): the 16-direction pattern search with halving
+ * steps from `step` (moves shorter than the current distance never leave the opening), landing on the maximum by
+ * ridge-snap.ts once the step is small. Used from lattice nodes, uniform (refineLargestDisk) or not (manhattan-widths.ts).
+ */
+export function climbToMaximum(edges: Float64Array, x: number, y: number, step: number): number {
+  let d = distanceToEdges(edges, x, y);
+  let h = step;
+  let snapAt = step * SNAP_STEP, justSnapped = false;
+  let earlyAt = step * SNAP_EARLY, early = 0, ex = 0, ey = 0;
+  for (let it = 0; it < 120 && h > step * 1e-6; it++) {
+    if (h < earlyAt) {
+      earlyAt = 0;
+      if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) {
+        early = snapped[2] as number;
+        ex = snapped[0] as number;
+        ey = snapped[1] as number;
+      }
+    }
+    if (h < snapAt) {
+      snapAt = 0;
+      if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) {
+        x = snapped[0] as number;
+        y = snapped[1] as number;
+        d = snapped[2] as number;
+        justSnapped = true;
+      }
+    }
+    let moved = false;
+    for (let k = 0; k < 16; k++) {
+      if (!(h < d)) break;
+      const nxp = x + (DIR_X[k] as number) * h, nyp = y + (DIR_Y[k] as number) * h;
+      const nd = distanceAbove(edges, nxp, nyp, d + 1e-12);
+      if (nd > d + 1e-12) {
+        x = nxp;
+        y = nyp;
+        d = nd;
+        moved = true;
+        break;
+      }
+    }
+    // On the snapped maximum no probe improves: done. Otherwise the snap was not the maximum; search on.
+    if (!moved && justSnapped) break;
+    if (moved) justSnapped = false;
+    else h /= 2;
+  }
+  const useEarly = early > d;
+  climbed[0] = useEarly ? ex : x;
+  climbed[1] = useEarly ? ey : y;
+  climbed[2] = useEarly ? early : d;
+  return climbed[2] as number;
+}
+
+/** Where the last climbToMaximum ended: x, y (dbu) and the exact distance there. */
+export const climbed = new Float64Array(3);
 
 /**
  * Radius found by the last refineLargestDisk from the position-ordered seeds alone (without extraSeeds). widths.ts

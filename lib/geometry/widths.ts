@@ -10,12 +10,27 @@
  * - minWidth = smallest 2·D over self-centred centres: the trench width of a line, the diameter of a hole, the
  *   narrower arm of an L, the wall width of a ring. Convex corners do not count (their corner-branch centres lie in
  *   larger disks). Known limit: in a gradually tapered opening the chain of growing disks covers the narrow end,
- *   so minWidth reports the widest part of the taper. Known limit of the sampled lattice (openings off the exact
- *   Manhattan lattice, e.g. any with vertices on a 1 nm grid): a narrow stub only a node or two wide and long can be
- *   missed, so minWidth reports the next wider part — on seeded unions of 2–4 trenches 12 % of openings differ from
- *   the exact lattice by > 1 % (bench/widths-sampled-vs-exact.ts), which understates aspect ratios there.
+ *   so minWidth reports the widest part of the taper. Known limit of the sampled lattice (non-Manhattan openings that
+ *   are neither convex nor polygonised circles, and Manhattan ones beyond the compressed lattice's node cap): a narrow
+ *   stub only a node or two wide and long can be missed, so minWidth reports the next wider part — on seeded unions of
+ *   2–4 trenches the sampled lattice put 12 % of openings > 1 % off (bench/widths-sampled-vs-exact.ts), which
+ *   understates aspect ratios there.
  *
- * Method: the feature is sampled on a node lattice (lattice.ts), D by the exact Euclidean distance transform to
+ * Manhattan openings (every edge axis-parallel), on any vertex grid: the compressed lattice (manhattan-lines.ts,
+ * manhattan-widths.ts) — lines at every vertex coordinate, at the midline of every pair of facing edges, where those
+ * plateaus end, refined near the vertex lines. D is exact at every node (Felzenszwalb–Huttenlocher distance transform
+ * on the non-uniform positions), every trench midline has nodes, off-lattice maxima are solved or climbed to on the
+ * exact edges, and the self-centred test is finished on the exact distance (a cover search between nodes), so these
+ * widths are exact (widthExact): equal to a brute-force 1/2-dbu grid on seeded 1 nm-grid unions
+ * (tests/geometry/manhattan-widths.test.ts), where the uniform exact lattice below differs it misses a covering disk in
+ * a thin sliver between its nodes. Known limit: maxWidth climbs (at most 8) from the cells whose Lipschitz bound beats
+ * the best node, and a climb can stall at a neck between two corners: on the 60 k lattice openings of the bench layout
+ * 4 maxWidths stay 0.02–0.5 % below a brute-force maximum (29, up to 9 % low, with the earlier 4-seed climbs). Above
+ * the node cap (16·maxNodes) the uniform paths below are used. Cost ≈ 210 µs CPU per opening on those openings at load
+ * 4–5 (uniform paths ≈ 150 µs in the same runs, i.e. ~1.4×; the 4-seed version ≈ 270 µs): lines and passes over a few
+ * hundred to a few thousand nodes, a few snaps or climbs.
+ *
+ * Uniform paths: the feature is sampled on a node lattice (lattice.ts), D by the exact Euclidean distance transform to
  * the nearest non-interior node, T by painting the maximal disks. For Manhattan features whose vertices lie on
  * a lattice of spacing g/2 (g = gcd of the vertex offsets) every nearest boundary point is a node, so D is exact
  * and so are the widths (widthExact). Otherwise the step is 1/5 of the mean width 2·area/perimeter (stepsPerWidth),
@@ -41,6 +56,8 @@ import { polishLocal, refineLargestDisk, seededBest } from './disk-search';
 import { edgeList } from './edge-distance';
 import { convexInscribedRadius, isConvexRing } from './convex-width';
 import { polygonisedCircle } from './circle-width';
+import { manhattanLines } from './manhattan-lines';
+import { manhattanWidths } from './manhattan-widths';
 import type { Box } from './types';
 
 export interface WidthOptions {
@@ -51,6 +68,8 @@ export interface WidthOptions {
   stepsPerWidth?: number;
   /** Measure on the sampled lattice even where the exact Manhattan lattice applies (tests compare the two). */
   sampledLattice?: boolean;
+  /** Skip the compressed Manhattan lattice: the uniform lattices only (tests and benches compare the methods). */
+  uniformLattice?: boolean;
 }
 
 export interface WidthResult {
@@ -166,6 +185,12 @@ function toBboxFrame(coords: ArrayLike<number>, rings: [number, number][], bbox:
   return { coords: out, rings: moved };
 }
 
+/** Refinement step of the compressed Manhattan lattice near vertex lines, per mean width 2·area/perimeter. */
+const COMPRESSED_STEPS_PER_WIDTH = 4;
+
+/** Manhattan openings the compressed lattice declined (node cap) since the process started: benches report it. */
+export let compressedFallbacks = 0;
+
 /** The lattice method of the module doc (shapes that are neither rectangles nor convex). */
 function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbox: Box, area: number, perimeter: number, manhattan: boolean, g: number, opts: WidthOptions): WidthResult {
   const maxNodes = opts.maxNodes ?? 4_096;
@@ -175,6 +200,14 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
   const nodesAt = (s: number) => (Math.ceil(bw / s) + 1) * (Math.ceil(bh / s) + 1);
   const meanWidth = perimeter > 0 ? (2 * area) / perimeter : Math.min(bw, bh);
   const exactCap = 16 * maxNodes;
+  if (manhattan && !opts.sampledLattice && !opts.uniformLattice) {
+    // Compressed lattice (manhattan-lines.ts): exact on any vertex grid; beyond its node cap, the paths below.
+    const h = meanWidth / COMPRESSED_STEPS_PER_WIDTH;
+    const lines = manhattanLines(coords, rings, h, exactCap);
+    const w = lines ? manhattanWidths(lines, edgeList(coords, rings, true)) : null;
+    if (w) return { minWidth: w.minWidth, maxWidth: w.maxWidth, step: h, exact: true };
+    compressedFallbacks++;
+  }
   if (manhattan && g > 0 && nodesAt(g / 2) <= exactCap && !opts.sampledLattice) {
     // Any divisor of g/2 keeps the lattice exact; refine to ≥ 40 nodes per mean width so disks centred near
     // junctions are sampled finely enough to cover their neighbours (the self-centred test is strict here).

@@ -164,13 +164,17 @@ function inside(rings: Ring[], x: number, y: number): boolean {
   return rings.some((r) => x > r[0]! && x < r[2]! && y > r[1]! && y < r[5]!);
 }
 
-describe('widths of Manhattan openings off the exact lattice (vertices on a 1 nm grid)', () => {
-  // Odd dbu coordinates make the exact Manhattan lattice too fine, so these take the sampled lattice path; the
-  // expected values are derived by hand from the definitions in widths.ts.
+describe.each([
+  { path: 'sampled lattice', opts: { uniformLattice: true }, exact: false },
+  { path: 'compressed Manhattan lattice', opts: {}, exact: true },
+])('widths of Manhattan openings off the exact lattice (vertices on a 1 nm grid), $path', ({ opts, exact }) => {
+  // Odd dbu coordinates make the uniform exact Manhattan lattice too fine, so with `uniformLattice` these take the
+  // sampled lattice path; by default the compressed lattice (manhattan-lines.ts) measures them exactly. The expected
+  // values are derived by hand from the definitions in widths.ts.
   const one = (rings: Ring[]) => {
-    const f = extractFeatures(makeSet(rings), DBU);
+    const f = extractFeatures(makeSet(rings), DBU, opts);
     expect(f).toHaveLength(1);
-    expect(f[0]!.widthExact).toBe(false);
+    expect(f[0]!.widthExact).toBe(exact);
     return f[0]!;
   };
 

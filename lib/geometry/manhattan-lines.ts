@@ -1,0 +1,220 @@
+/**
+ * The lines of the compressed Manhattan lattice (manhattan-widths.ts): a non-uniform rectilinear node lattice on which
+ * the distance D to the boundary of a Manhattan (axis-parallel) opening is exact at every node, whatever grid its
+ * vertices lie on.
+ *
+ * Lines (x; y likewise with the roles swapped):
+ * - every vertex x. With every vertex y a y line too, the nearest boundary point of any node — the foot of the
+ *   perpendicular on an edge, or a vertex — is itself a node, and a non-interior one, so the distance to the nearest
+ *   non-interior node is exact.
+ * - the midline (xL + xR)/2 of every pair of vertical edges that face each other across the interior (the two ends of
+ *   a maximal inside run of a horizontal band of the vertex grid): the plateau of D of every trench, stub included,
+ *   has nodes, so its half-width is a node distance.
+ * - for each horizontal facing pair (yB, yT; half-gap r) over the x stretch [x0, x1] where they face: x0 + r and
+ *   x1 − r. These are where the plateau ends against a closing edge (a stub's end: its last self-centred point when
+ *   the stub is as long as it is wide) and where the coverage by the disks of the wider region beyond an open end
+ *   stops (a disk centred just outside a mouth of width 2r reaches less than r into it); and, when the stretch is
+ *   shorter than 2r, a line just outside each end whose disk covers the far plateau end (a stub shorter than its
+ *   width is covered there and has no self-centred point: without the line a coarse lattice would not see that).
+ * - refinement: gaps wider than `h` get lines every `h` within `reach` of their ends (where the shape changes, D is
+ *   not constant along the gap, and disks from beyond the ends can reach in: a disk of an opening reaches less than
+ *   the strip width into a strip, see manhattan-widths.ts) and one at the middle; farther in, the opening is a set of
+ *   straight strips along the gap and nothing changes along it.
+ *
+ * The vertex grid's cells are each wholly inside or outside the opening; `cellIn` (row-major, (nbx−1)·(nby−1))
+ * records which, and nodes are classified from it.
+ */
+
+/** Lines of the compressed lattice and the vertex grid they refine. */
+export interface ManhattanLines {
+  xs: Float64Array;
+  ys: Float64Array;
+  /** Sorted distinct vertex coordinates (the vertex grid). */
+  bx: Float64Array;
+  by: Float64Array;
+  /** 1 = vertex-grid cell (column c, row r) inside, at r·(bx.length − 1) + c. */
+  cellIn: Uint8Array;
+  /** Refinement step: gaps wider than this lie where D does not change along them (far from every vertex line). */
+  h: number;
+}
+
+/** Sorted distinct values of a list. */
+function distinctSorted(v: number[]): Float64Array {
+  const a = Float64Array.from(v).sort();
+  let m = 0;
+  for (let k = 0; k < a.length; k++) if (k === 0 || (a[k] as number) !== (a[m - 1] as number)) a[m++] = a[k] as number;
+  return a.slice(0, m);
+}
+
+/** Index of value v in sorted distinct a (v must be present). */
+function indexOf(a: Float64Array, v: number): number {
+  let lo = 0, hi = a.length - 1;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if ((a[mid] as number) < v) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
+/** Stretches found by facingPairs: lo, hi (across), s0, s1 (along), four numbers each (reused). */
+let pairS = new Float64Array(64);
+let curS = new Int32Array(0), nextS = new Int32Array(0);
+
+/**
+ * Facing pairs along one axis: for each band (row r of the vertex grid when `rows`, else column), the maximal runs of
+ * inside cells; a run continuing over the next band with the same ends extends the stretch. Returns the stretch count,
+ * written to pairS as (lo, hi, s0, s1): the run's ends (coordinates across) and the stretch (coordinates along).
+ */
+function facingPairs(cellIn: Uint8Array, ncx: number, ncy: number, rows: boolean, across: Float64Array, along: Float64Array): number {
+  const nb = rows ? ncy : ncx, nc = rows ? ncx : ncy;
+  // Open stretches as (first cell, last cell, start band) triples.
+  if (curS.length < 3 * (nc + 1)) {
+    curS = new Int32Array(3 * (nc + 1));
+    nextS = new Int32Array(3 * (nc + 1));
+  }
+  let cur = curS, next = nextS, nCur = 0, nPairs = 0;
+  for (let b = 0; b <= nb; b++) {
+    let nNext = 0;
+    if (b < nb) {
+      for (let c = 0; c < nc; ) {
+        if (!(rows ? cellIn[b * ncx + c] : cellIn[c * ncx + b])) {
+          c++;
+          continue;
+        }
+        let e = c;
+        while (e + 1 < nc && (rows ? cellIn[b * ncx + e + 1] : cellIn[(e + 1) * ncx + b])) e++;
+        let start = b;
+        for (let u = 0; u < nCur; u++) if (cur[3 * u] === c && cur[3 * u + 1] === e) start = cur[3 * u + 2] as number;
+        next[3 * nNext] = c;
+        next[3 * nNext + 1] = e;
+        next[3 * nNext + 2] = start;
+        nNext++;
+        c = e + 1;
+      }
+    }
+    for (let u = 0; u < nCur; u++) {
+      const c = cur[3 * u] as number, e = cur[3 * u + 1] as number, start = cur[3 * u + 2] as number;
+      let goesOn = false;
+      for (let w = 0; w < nNext && !goesOn; w++) goesOn = next[3 * w] === c && next[3 * w + 1] === e && next[3 * w + 2] === start;
+      if (goesOn) continue;
+      if (pairS.length < 4 * (nPairs + 1)) {
+        const grown = new Float64Array(2 * pairS.length);
+        grown.set(pairS);
+        pairS = grown;
+      }
+      pairS[4 * nPairs] = across[c] as number;
+      pairS[4 * nPairs + 1] = across[e + 1] as number;
+      pairS[4 * nPairs + 2] = along[start] as number;
+      pairS[4 * nPairs + 3] = along[b] as number;
+      nPairs++;
+    }
+    const t = cur;
+    cur = next;
+    next = t;
+    nCur = nNext;
+  }
+  return nPairs;
+}
+
+/** Lines where a plateau of half-width r over the stretch [s0, s1] ends or stops being covered (module doc). */
+function pushEnds(lines: number[], s0: number, s1: number, r: number): void {
+  if (s1 - s0 > 2 * r) {
+    lines.push(s0 + r, s1 - r);
+    return;
+  }
+  lines.push((s0 + s1) / 2);
+  if (s1 - s0 > r) lines.push(s0 + r, s1 - r);
+  // Stretch shorter than its width: the plateau end at depth t = (s1 − s0) − r from either end is covered by the
+  // disk centred u = (r² − t²)/(2t) outside that end on the midline (radius √(r² + u²) ≥ t + u) when the opening
+  // extends there; a line at half that offset puts a node strictly inside the covering range.
+  const t = s1 - s0 - r;
+  if (t > 0 && t < r) {
+    const u = (r * r - t * t) / (4 * t);
+    lines.push(s0 - u, s1 + u);
+  }
+}
+
+/**
+ * Lines of the compressed lattice of a Manhattan opening (rings in its bbox frame, bbox [0, 0, bw, bh]), refined to
+ * gaps of at most `h` near the vertex lines; null when the lattice would exceed `maxNodes` nodes.
+ */
+export function manhattanLines(coords: ArrayLike<number>, rings: [number, number][], h: number, maxNodes: number): ManhattanLines | null {
+  const vx: number[] = [], vy: number[] = [];
+  for (const [s, e] of rings) {
+    for (let k = s; k < e; k++) {
+      vx.push(coords[2 * k] as number);
+      vy.push(coords[2 * k + 1] as number);
+    }
+  }
+  const bx = distinctSorted(vx), by = distinctSorted(vy);
+  const ncx = bx.length - 1, ncy = by.length - 1;
+  if (ncx < 1 || ncy < 1) return null;
+  // Winding per vertex-grid cell: each vertical edge adds its direction to the cells right of it in its rows.
+  const wind = new Int32Array(ncx * ncy);
+  for (const [s, e] of rings) {
+    for (let k = s; k < e; k++) {
+      const n = k + 1 < e ? k + 1 : s;
+      const xa = coords[2 * k] as number, ya = coords[2 * k + 1] as number, yb = coords[2 * n + 1] as number;
+      if (ya === yb) continue;
+      const c = indexOf(bx, xa);
+      const dir = yb > ya ? 1 : -1;
+      for (let r = indexOf(by, Math.min(ya, yb)), r1 = indexOf(by, Math.max(ya, yb)); r < r1; r++) if (c < ncx) wind[r * ncx + c]! += dir;
+    }
+  }
+  const cellIn = new Uint8Array(ncx * ncy);
+  for (let r = 0; r < ncy; r++) {
+    let w = 0;
+    for (let c = 0; c < ncx; c++) {
+      w += wind[r * ncx + c] as number;
+      cellIn[r * ncx + c] = w !== 0 ? 1 : 0;
+    }
+  }
+  const xl: number[] = Array.from(bx), yl: number[] = Array.from(by);
+  // Largest strip width per vertex-grid column / row: how far disks reach into a gap there.
+  const reachX = new Float64Array(ncx), reachY = new Float64Array(ncy);
+  let n = facingPairs(cellIn, ncx, ncy, true, bx, by);
+  for (let k = 0; k < n; k++) {
+    const lo = pairS[4 * k] as number, hi = pairS[4 * k + 1] as number, s0 = pairS[4 * k + 2] as number, s1 = pairS[4 * k + 3] as number;
+    xl.push((lo + hi) / 2);
+    pushEnds(yl, s0, s1, (hi - lo) / 2);
+    for (let r = indexOf(by, s0), r1 = indexOf(by, s1); r < r1; r++) reachY[r] = Math.max(reachY[r] as number, hi - lo);
+  }
+  n = facingPairs(cellIn, ncx, ncy, false, by, bx);
+  for (let k = 0; k < n; k++) {
+    const lo = pairS[4 * k] as number, hi = pairS[4 * k + 1] as number, s0 = pairS[4 * k + 2] as number, s1 = pairS[4 * k + 3] as number;
+    yl.push((lo + hi) / 2);
+    pushEnds(xl, s0, s1, (hi - lo) / 2);
+    for (let c = indexOf(bx, s0), c1 = indexOf(bx, s1); c < c1; c++) reachX[c] = Math.max(reachX[c] as number, hi - lo);
+  }
+  const xs = refine(xl, bx, reachX, h), ys = refine(yl, by, reachY, h);
+  if (xs.length * ys.length > maxNodes) return null;
+  return { xs, ys, bx, by, cellIn, h };
+}
+
+/** Lines within [base[0], base[last]], with gaps over h refined near their ends (see module doc). */
+function refine(lines: number[], base: Float64Array, reach: Float64Array, h: number): Float64Array {
+  const lo = base[0] as number, hi = base[base.length - 1] as number;
+  const a = distinctSorted(lines.filter((v) => v >= lo && v <= hi));
+  const out: number[] = [];
+  let c = 0;
+  for (let k = 0; k + 1 < a.length; k++) {
+    const x0 = a[k] as number, x1 = a[k + 1] as number;
+    out.push(x0);
+    const gap = x1 - x0;
+    if (!(gap > h)) continue;
+    while (c + 1 < base.length - 1 && (base[c + 1] as number) <= x0) c++;
+    const rch = (reach[c] as number) / 2 + h;
+    const n = Math.ceil(gap / h);
+    if (gap <= 2 * rch + h) {
+      for (let q = 1; q < n; q++) out.push(x0 + (gap * q) / n);
+      continue;
+    }
+    const m = Math.ceil(rch / h);
+    for (let q = 1; q <= m; q++) out.push(x0 + q * h);
+    out.push((x0 + x1) / 2);
+    for (let q = m; q >= 1; q--) out.push(x1 - q * h);
+  }
+  out.push(a[a.length - 1] as number);
+  return Float64Array.from(out);
+}
