@@ -319,16 +319,20 @@ describe('canvas viewer in Chromium', () => {
       const [sx, sy] = layoutToScreen(v, last.xUm, last.yUm);
       // The page above the map may still grow while it loads (moving the map): hover again until the tooltip shows.
       let host = await p.getByTestId('viewer-host').boundingBox();
+      let dx = 1;
       for (let attempt = 0; attempt < 10; attempt++) {
         await p.getByTestId('viewer-host').scrollIntoViewIfNeeded();
         host = await p.getByTestId('viewer-host').boundingBox();
-        await p.mouse.move(host!.x + sx + 1 + (attempt % 2), host!.y + sy + 1);
+        dx = 1 + (attempt % 2);
+        await p.mouse.move(host!.x + sx + dx, host!.y + sy + 1);
         if (await p.waitForSelector('[data-testid=flag-tooltip]', { timeout: 1500 }).then(() => true, () => false)) break;
       }
       await p.waitForSelector('[data-testid=flag-tooltip]', { timeout: 1000 });
       await p.waitForFunction((k) => document.querySelector('[data-testid=flag-tooltip]')?.textContent?.includes(`synthetic test flag ${k}`), extra - 1, { timeout: 10_000 });
       await screenshot(p, 'viewer-many-flags-zoomed');
-      await p.mouse.click(host!.x + sx + 1, host!.y + sy + 1);
+      // click where the tooltip answered, on the host's position now (the page may have moved since the hover)
+      host = await p.getByTestId('viewer-host').boundingBox();
+      await p.mouse.click(host!.x + sx + dx, host!.y + sy + 1);
       await p.waitForFunction((k) => document.querySelector('[data-testid=canvas-viewer]')?.getAttribute('data-selected') === k, last.key, { timeout: 10_000 });
     } finally {
       await ctx.close();
