@@ -15,6 +15,7 @@
  * and another worker (or the same one restarted) runs it again. Jobs of an analysis that stops early (cancel, an
  * error) are removed from the queue when it closes its executor, unless a worker already holds them.
  */
+import { existsSync } from 'node:fs';
 import { Queue, QueueEvents, UnrecoverableError, Worker, type Job } from 'bullmq';
 import { lockMs, openRedis, redisPrefix, safeUrl } from '../../jobs/bullmq-shared';
 import type { TilePlan } from './plan';
@@ -106,13 +107,30 @@ export async function startTileQueueWorker(url: string, options: number | TileQu
   const log = opts.log ?? (() => undefined);
   const connection = openRedis(url, 'tiles-worker');
   let pool: SharedTileThreads | null = null;
+  // A stored layout is looked up in the read cache once per process, not per tile: the cache marks a copy used by
+  // touching its file times, which an open GDSII source would take for a changed file.
+  const resolved = new Map<string, Promise<TileSourceSpec>>();
+  const resolveOnce = async (spec: TileSourceSpec): Promise<TileSourceSpec> => {
+    if (spec.kind !== 'stored') return spec;
+    const key = JSON.stringify(spec);
+    let p = resolved.get(key);
+    const still = p ? await p.catch(() => null) : null;
+    if (!still || (still.kind === 'file' && !existsSync(still.path))) {
+      const { resolveStoredSpec } = await import('./stored-source');
+      p = resolveStoredSpec(spec);
+      resolved.delete(key);
+      resolved.set(key, p);
+      while (resolved.size > 16) resolved.delete(resolved.keys().next().value as string);
+    }
+    return p as Promise<TileSourceSpec>;
+  };
   const processor = async (job: Job<TileQueueData>): Promise<WireResult> => {
     const { spec, plan } = job.data;
     // Loaded here, not at the top: tile workers that only see file or module specs never load storage.
-    const { resolveStoredSpec, StoredSourceMismatchError } = await import('./stored-source');
+    const { StoredSourceMismatchError } = await import('./stored-source');
     let local: TileSourceSpec;
     try {
-      local = await resolveStoredSpec(spec);
+      local = await resolveOnce(spec);
     } catch (err) {
       // Another storage than the analysing process's: no retry on this worker could help.
       if (err instanceof StoredSourceMismatchError) throw new UnrecoverableError(err.message);

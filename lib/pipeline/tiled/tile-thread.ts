@@ -60,23 +60,29 @@ if (boot && parentPort && (boot.plan || boot.perJob)) {
   };
   const fixed = boot.spec && !boot.perJob ? sourceFor(boot.spec) : null;
   fixed?.catch(() => undefined);
-  port.on('message', (msg: JobMessage) => {
+  const runOne = async (msg: JobMessage) => {
     const spec = msg.spec ?? boot.spec;
     const plan = msg.plan ?? boot.plan;
-    const ready = fixed ?? (spec ? sourceFor(spec) : Promise.reject(new Error('tile job without a source spec')));
-    ready
-      .then((source) => {
-        if (!plan) throw new Error('tile job without a plan');
-        sample();
-        const r = runTileJob(source, plan, msg.job, sample);
-        sample();
-        const packed = packPart(r);
-        const transfer: ArrayBuffer[] = [packed.buffer as ArrayBuffer];
-        if (r.acc) transfer.push(r.acc.buffer as ArrayBuffer);
-        port.postMessage({ id: msg.id, result: { ...r, features: null, keys: [], packed }, peakBytes: peak }, transfer);
-      })
-      .catch((err: unknown) => {
-        port.postMessage({ id: msg.id, error: { name: err instanceof Error ? err.name : 'Error', message: err instanceof Error ? err.message : String(err) }, peakBytes: peak });
-      });
-  });
+    const opening = fixed ?? (spec ? sourceFor(spec) : null);
+    try {
+      if (!opening || !plan) throw new Error('tile job without a source spec or plan');
+      const source = await opening;
+      sample();
+      const r = runTileJob(source, plan, msg.job, sample);
+      sample();
+      const packed = packPart(r);
+      const transfer: ArrayBuffer[] = [packed.buffer as ArrayBuffer];
+      if (r.acc) transfer.push(r.acc.buffer as ArrayBuffer);
+      port.postMessage({ id: msg.id, result: { ...r, features: null, keys: [], packed }, peakBytes: peak }, transfer);
+    } catch (err) {
+      // A job that failed drops its source (a queue worker's thread), so a retry opens and indexes the file afresh.
+      if (opening && !fixed && spec) {
+        const key = spec.kind === 'memory' ? 'memory' : JSON.stringify(spec);
+        if (open.get(key) === opening) open.delete(key);
+        void opening.then((s) => s.close(), () => undefined);
+      }
+      port.postMessage({ id: msg.id, error: { name: err instanceof Error ? err.name : 'Error', message: err instanceof Error ? err.message : String(err) }, peakBytes: peak });
+    }
+  };
+  port.on('message', (msg: JobMessage) => void runOne(msg));
 }
