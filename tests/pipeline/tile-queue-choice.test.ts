@@ -5,7 +5,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { tileQueueSlots, tileQueueUrl } from '@/lib/pipeline/worker-tiled';
-import { startTileQueueWorker } from '@/lib/pipeline/tiled/tile-queue';
+import { queueExecutor, startTileQueueWorker } from '@/lib/pipeline/tiled/tile-queue';
+import type { TilePlan } from '@/lib/pipeline/tiled/plan';
 import { redisServerBinary, startTestRedis, type TestRedis } from '../jobs/redis-server';
 
 const stored = { stored: { key: 'layouts/p/r.gds', where: '/data' } };
@@ -40,5 +41,16 @@ describe.skipIf(redisServerBinary() === null)('with a redis-server', () => {
       await worker.close();
     }
     expect(await tileQueueUrl(stored, env)).toBeNull();
+  }, 60_000);
+
+  it('an analysis whose tile workers are all gone fails after the grace period, naming the cause, instead of hanging', async () => {
+    process.env.TRENCHANT_TILE_WORKER_GRACE_MS = '1000';
+    const ex = await queueExecutor(redis!.url, { kind: 'file', path: '/nowhere.gds' }, {} as TilePlan, 1);
+    delete process.env.TRENCHANT_TILE_WORKER_GRACE_MS;
+    try {
+      await expect(ex.run({ kind: 'core', tile: 0, marginDbu: 0 })).rejects.toThrow(/no tile worker has listened on the tiles queue for 1 s/);
+    } finally {
+      await ex.close();
+    }
   }, 60_000);
 });

@@ -54,6 +54,12 @@ export async function tileWorkerCount(url: string): Promise<number> {
   }
 }
 
+/** How long an analysis waits with no tile worker listening before it fails: TRENCHANT_TILE_WORKER_GRACE_MS, default 60 s. */
+export function tileWorkerGraceMs(env: Record<string, string | undefined> = process.env): number {
+  const v = Number(env.TRENCHANT_TILE_WORKER_GRACE_MS);
+  return Number.isFinite(v) && v > 0 ? v : 60_000;
+}
+
 export async function queueExecutor(url: string, spec: TileSourceSpec, plan: TilePlan, slots: number): Promise<TileExecutor> {
   if (spec.kind === 'memory') throw new Error('tile jobs on the queue need a source every worker can open (a stored layout, file or module spec), not an in-memory layout');
   const connection = openRedis(url, 'tiles-producer');
@@ -63,6 +69,22 @@ export async function queueExecutor(url: string, spec: TileSourceSpec, plan: Til
   await events.waitUntilReady();
   const peaks: number[] = [];
   const unfinished = new Set<Job<TileQueueData>>();
+  // Every tile worker gone (stopped, crashed, unreachable): the tiles would wait for ever, so after a grace period
+  // the analysis fails and says why, instead of hanging (a worker restarting within the grace takes them over).
+  const giveUp = new Set<(e: Error) => void>();
+  const graceMs = tileWorkerGraceMs();
+  let emptySince: number | null = null;
+  const watchdog = setInterval(() => {
+    void queue.getWorkersCount().then((n) => {
+      if (n > 0) emptySince = null;
+      else if (emptySince === null) emptySince = Date.now();
+      else if (Date.now() - emptySince >= graceMs) {
+        const e = new Error(`no tile worker has listened on the ${TILE_QUEUE_NAME} queue for ${Math.round(graceMs / 1000)} s; start one (npm run worker) or set TRENCHANT_TILE_QUEUE=off and run the analysis again`);
+        for (const f of giveUp) f(e);
+      }
+    }, () => undefined);
+  }, Math.min(5_000, Math.max(250, graceMs / 4)));
+  watchdog.unref();
   return {
     threads: slots,
     via: 'queue',
@@ -70,10 +92,16 @@ export async function queueExecutor(url: string, spec: TileSourceSpec, plan: Til
       const j = await queue.add('tile', { spec, plan, job }, { attempts: 2, backoff: { type: 'fixed', delay: 500 }, removeOnComplete: true, removeOnFail: true });
       unfinished.add(j);
       let w: WireResult;
+      let stop: ((e: Error) => void) | null = null;
       try {
-        w = (await j.waitUntilFinished(events)) as WireResult;
+        const abandoned = new Promise<never>((_, reject) => {
+          stop = reject;
+          giveUp.add(reject);
+        });
+        w = (await Promise.race([j.waitUntilFinished(events), abandoned])) as WireResult;
       } finally {
         unfinished.delete(j);
+        if (stop) giveUp.delete(stop);
       }
       w.peakBytes.forEach((p, k) => (peaks[k] = Math.max(peaks[k] ?? 0, p)));
       const part = unpackPart(fromB64(w.part));
@@ -82,6 +110,7 @@ export async function queueExecutor(url: string, spec: TileSourceSpec, plan: Til
     },
     peakBytes: () => peaks.slice(),
     async close() {
+      clearInterval(watchdog);
       // Waiting jobs of a cancelled or failed analysis would only keep workers busy; a job a worker holds cannot be
       // removed (it ends on its own, its result unread).
       await Promise.all([...unfinished].map((j) => j.remove().catch(() => undefined)));
