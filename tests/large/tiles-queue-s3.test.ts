@@ -175,6 +175,7 @@ describe.skipIf(!hasRedis)('tiles of the app analysis on queue tile workers (lay
   it('cancel between tiles stops the analysis and leaves no tile jobs waiting', async () => {
     const { r, seen } = await run('cancelled', { wholeReadBytes: 0, queue: true, cancelAt: (m) => m.stage === 'coverage' && m.fraction > 0.16 });
     expect(r).toEqual({ ok: false, code: 'cancelled', message: 'analysis cancelled' });
+    expect(seen.map((m) => m.stage)).toContain('coverage'); // at least one tile came back from the queue first
     expect(seen.map((m) => m.stage)).not.toContain('prediction');
     const connection = openRedis(redis!.url, 'test-probe');
     const queue = new Queue(TILE_QUEUE_NAME, { connection, prefix: PREFIX });
