@@ -14,8 +14,9 @@ if (!url) {
   process.exit(2);
 }
 const worker = await startQueueWorker(url);
-// Tile jobs of tiled analyses (lib/pipeline/tiled/tile-queue.ts), on TRENCHANT_TILE_THREADS threads (default 1).
-const tileWorker = await startTileQueueWorker(url, Math.max(1, Number(process.env.TRENCHANT_TILE_THREADS) || 1));
+// Tile jobs of tiled analyses (lib/pipeline/tiled/tile-queue.ts) from any server or worker, on
+// TRENCHANT_TILE_THREADS threads (default 1); stored layouts come through lib/storage like the analyses' own.
+const tileWorker = await startTileQueueWorker(url, { threads: Math.max(1, Number(process.env.TRENCHANT_TILE_THREADS) || 1), log: (l) => console.log(l) });
 let stopping = false;
 for (const signal of ['SIGINT', 'SIGTERM'] as const) {
   process.on(signal, () => {

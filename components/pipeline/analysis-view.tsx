@@ -169,7 +169,7 @@ function RunAgain({ analysisId }: { analysisId: string }) {
 function tiledText(t: NonNullable<Summary['tiled']>): string {
   const mib = (n: number) => `${Math.round(n / 1024 / 1024).toLocaleString('en-US')} MiB`;
   const um = (v: number) => `${Math.round(v * 100) / 100} µm`;
-  return `${t.tiles.toLocaleString('en-US')} tiles of ${um(t.tileUm)} (${um(t.marginUm)} margin, ${t.rereads} re-read${t.rereads === 1 ? '' : 's'}): the ${mib(t.fileBytes)} file is above the whole-read size of ${mib(t.wholeReadBytes)}; results are the same as a whole read`;
+  return `${t.tiles.toLocaleString('en-US')} tiles of ${um(t.tileUm)} (${um(t.marginUm)} margin, ${t.rereads} re-read${t.rereads === 1 ? '' : 's'}): the ${mib(t.fileBytes)} file is above the whole-read size of ${mib(t.wholeReadBytes)}${t.via === 'queue' ? '; tiles ran on queue workers' : ''}; results are the same as a whole read`;
 }
 
 /** Where the model came from, in words (stored as 'version:<id>', 'builtin:<id>' or 'uploaded'). */

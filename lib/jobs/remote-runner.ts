@@ -96,6 +96,7 @@ export class RemoteTaskRunner {
             maxResultBytes: task.budget.maxBytes,
             resultBudgetLabel: task.budget.label,
             wholeReadBytes: wholeReadLimitBytes(),
+            storedLayout: { key: task.storedPath, where: store.where },
             ...(task.topCell ? { topCell: task.topCell } : {}),
           },
           { transferList: [channel.port2], signal: job.controller.signal },

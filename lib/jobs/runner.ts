@@ -257,6 +257,7 @@ export class JobRunner implements JobQueue {
         maxResultBytes: budget.maxBytes,
         resultBudgetLabel: budget.label,
         wholeReadBytes: wholeReadLimitBytes(),
+        storedLayout: { key: row.stored_path, where: store.where },
         ...(row.top_cell ? { topCell: row.top_cell } : {}),
       };
       let result: AnalysisTaskResult;

@@ -71,8 +71,10 @@ export interface TiledRunSummary {
   marginUm: number;
   /** Re-reads around openings wider than the margin. */
   rereads: number;
-  /** Worker threads for the tiles (0: the analysis thread itself). */
+  /** Worker threads for the tiles (0: the analysis thread itself); on the queue, tile jobs in flight at once. */
   threads: number;
+  /** Where the tile jobs ran: this thread, worker threads, or tile workers of the `tiles` queue. */
+  via?: 'inline' | 'threads' | 'queue';
   /** The layout file's size and the whole-read size it exceeded, bytes. */
   fileBytes: number;
   wholeReadBytes: number;

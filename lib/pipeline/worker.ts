@@ -68,6 +68,8 @@ export interface AnalysisTask {
   resultBudgetLabel?: string;
   /** GDSII files larger than this are analysed tile by tile from an on-disk index (default TRENCHANT_WHOLE_READ_MB). */
   wholeReadBytes?: number;
+  /** The layout's storage key and store (ObjectStore.where): lets tiles run on queue tile workers (worker-tiled.ts). */
+  storedLayout?: { key: string; where: string };
 }
 
 /** The per-opening results file the task wrote (inside outDir). */
@@ -170,7 +172,7 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
     };
     const result = source
       ? await analyseInTiles(
-          { source, path: task.layoutPath, ...(task.topCell ? { topCell: task.topCell } : {}), fileBytes: statSync(task.layoutPath).size, wholeReadBytes, memoryMb: analysisMemoryMb() },
+          { source, path: task.layoutPath, ...(task.topCell ? { topCell: task.topCell } : {}), ...(task.storedLayout ? { stored: task.storedLayout } : {}), fileBytes: statSync(task.layoutPath).size, wholeReadBytes, memoryMb: analysisMemoryMb() },
           budgeted.settings,
           model.model,
           hooks,

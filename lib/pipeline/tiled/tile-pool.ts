@@ -58,9 +58,29 @@ interface Pending {
 
 /** `threads` worker threads, or null when none can start (the caller then runs inline). */
 export function threadExecutor(spec: TileSourceSpec, plan: TilePlan, threads: number): TileExecutor | null {
+  const pool = startTileThreads(threads, { spec, plan });
+  return pool && { threads, via: 'threads', run: (job) => pool.run(job), peakBytes: pool.peakBytes, close: pool.close };
+}
+
+/** Threads serving tiles of any analysis: each job names its source and plan (a tile queue worker, tile-queue.ts). */
+export interface SharedTileThreads {
+  readonly threads: number;
+  run(job: TileJob, spec: TileSourceSpec, plan: TilePlan): Promise<TileJobResult & { worker: number }>;
+  /** A thread stopped (crashed, ran out of memory): this pool runs nothing more; start another. */
+  broken(): boolean;
+  peakBytes(): number[];
+  close(): Promise<void>;
+}
+
+export function sharedTileThreads(threads: number): SharedTileThreads | null {
+  const pool = startTileThreads(threads, { perJob: true });
+  return pool && { threads, run: (job, spec, plan) => pool.run(job, { spec, plan }), broken: pool.broken, peakBytes: pool.peakBytes, close: pool.close };
+}
+
+function startTileThreads(threads: number, boot: unknown) {
   const workers: Worker[] = [];
   for (let k = 0; k < threads; k++) {
-    const w = startWorker({ spec, plan });
+    const w = startWorker(boot);
     if (!w) {
       for (const x of workers) void x.terminate();
       return null;
@@ -106,18 +126,17 @@ export function threadExecutor(spec: TileSourceSpec, plan: TilePlan, threads: nu
     });
   });
   return {
-    threads,
-    via: 'threads',
-    async run(job) {
+    async run(job: TileJob, ctx?: { spec: TileSourceSpec; plan: TilePlan }): Promise<TileJobResult & { worker: number }> {
       while (idle.length === 0 && !failed) await new Promise<void>((r) => waiting.push(r));
       if (failed) throw failed;
       const k = idle.shift() as number;
       const id = nextId++;
       return new Promise((resolve, reject) => {
         inflight.set(id, { resolve, reject, worker: k });
-        (workers[k] as Worker).postMessage({ id, job });
+        (workers[k] as Worker).postMessage({ id, job, ...ctx });
       });
     },
+    broken: () => failed !== null,
     peakBytes: () => peaks.slice(),
     async close() {
       await Promise.all(workers.map((w) => w.terminate()));
