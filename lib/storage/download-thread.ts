@@ -48,6 +48,8 @@ parentPort.on('message', (job) => {
     const client = clientFor(job.client);
     const res = await client.send(new sdk.GetObjectCommand({ Bucket: job.bucket, Key: job.key }));
     await pipeline(res.Body, fs.createWriteStream(job.tmp));
+    // Whole-second modification time (read-cache.ts settleTimes): marking use later keeps it exactly.
+    fs.utimesSync(job.tmp, new Date(), Math.floor(fs.statSync(job.tmp).mtimeMs / 1000));
     fs.renameSync(job.tmp, job.dest);
   })().then(
     () => finish(1, ''),

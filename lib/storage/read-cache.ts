@@ -9,7 +9,7 @@
  * delete and overwrite). A cold key is downloaded once however many readers ask for it at the same time.
  */
 import { createHash, randomUUID } from 'node:crypto';
-import { existsSync, mkdirSync, utimesSync } from 'node:fs';
+import { existsSync, mkdirSync, statSync, utimesSync } from 'node:fs';
 import { copyFile, mkdir, readdir, rename, rm, stat, unlink } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
@@ -63,13 +63,24 @@ export function downloadsInFlight(): number {
   return inFlight.size;
 }
 
+/**
+ * Marks a cache file as used now. Use is kept in the access time; the modification time is left as it is, because an
+ * open on-disk reader (the GDSII tile source of a tile worker, the viewer's index) compares it to notice a replaced
+ * file. utimes cannot leave one of the two times alone and rounds what it writes, so every cache file gets a
+ * whole-second modification time when it enters the cache (this, on the temporary file before its rename; the download
+ * thread does the same), which writing it back keeps exactly. A copy cached by an older version is rounded once.
+ */
+export function settleTimes(file: string): void {
+  utimesSync(file, new Date(), Math.floor(statSync(file).mtimeMs / 1000));
+}
+
 /** The cached copy of `key` if there is one (its use time refreshed), else null. Never downloads. */
 export function cachedCopy(store: ObjectStore, key: string): string | null {
   if (store.localPath(key)) return null;
   const dest = cachedPath(store, key);
   if (!existsSync(dest)) return null;
   try {
-    utimesSync(dest, new Date(), new Date());
+    settleTimes(dest);
   } catch {
     return null; // evicted just now by another process
   }
@@ -117,6 +128,7 @@ export async function keepInCache(store: ObjectStore, key: string, srcPath: stri
   await mkdir(path.dirname(dest), { recursive: true });
   if (options.move) {
     try {
+      settleTimes(srcPath);
       await rename(srcPath, dest);
       await prune(store, dest);
       return;
@@ -127,6 +139,7 @@ export async function keepInCache(store: ObjectStore, key: string, srcPath: stri
   const tmp = `${dest}.tmp-${process.pid}-${randomUUID().slice(0, 8)}`;
   try {
     await copyFile(srcPath, tmp);
+    settleTimes(tmp);
     await rename(tmp, dest);
   } catch (err) {
     await unlink(tmp).catch(() => undefined);
@@ -167,7 +180,7 @@ async function prune(store: ObjectStore, keep: string): Promise<void> {
       if (Date.now() - st.mtimeMs > STALE_TMP_MS) await unlink(file).catch(() => undefined);
       continue;
     }
-    files.push({ file, size: st.size, used: st.mtimeMs });
+    files.push({ file, size: st.size, used: Math.max(st.atimeMs, st.mtimeMs) });
     total += st.size;
   }
   if (total <= limit) return;
