@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { featuresFromRegions, featureTableFromRegions, numberFeatureTable, concatFeatureTables, openRegions } from '@/lib/geometry';
 import { measureFeatures } from '@/lib/geometry/features';
 import { featuresInThreads } from '@/lib/geometry/parallel-features';
-import { scatteredLayout } from './parallel-support';
+import { scatteredLayout } from './scattered-layout';
 
 describe('featuresInThreads', () => {
   it('matches featuresFromRegions feature for feature', () => {

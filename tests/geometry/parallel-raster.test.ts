@@ -9,7 +9,8 @@ import { openRegions, rasterizeOpenRegions, type Grid } from '@/lib/geometry';
 import { accumulateRegions, coverageFromDifferences } from '@/lib/geometry/raster';
 import { coverageInThreads } from '@/lib/geometry/parallel-raster';
 import { openRegionsInThreads } from '@/lib/geometry/parallel-union';
-import { failingHelper, scatteredLayout, useAnalysisHelper } from './parallel-support';
+import { failingHelper, useAnalysisHelper } from '../support/helper-thread';
+import { scatteredLayout } from './scattered-layout';
 
 const layoutOpts = { regionDbu: [0, 0, 310_000, 310_000] as [number, number, number, number], tileDbu: 11_000 };
 

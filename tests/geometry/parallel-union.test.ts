@@ -11,7 +11,7 @@ import { openRegionsInThreads, unionChunkBounds } from '@/lib/geometry/parallel-
 import { planUnion } from '@/lib/geometry/open-regions';
 import type { PolygonSet } from '@/lib/layout/types';
 import { makeSet, mulberry32, ngon, rect, type Ring } from './make-set';
-import { failingHelper, useAnalysisHelper } from './parallel-support';
+import { failingHelper, useAnalysisHelper } from '../support/helper-thread';
 
 /**
  * Every field as plain values, so shared and ordinary typed arrays compare by content. `pieceY` (only the

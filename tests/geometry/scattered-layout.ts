@@ -1,11 +1,5 @@
-/**
- * Shared by the two-thread tests (parallel-raster, parallel-union, parallel-features): seeded scattered layouts
- * (invented geometry), the analysis helper thread for a test file, and a helper that takes work and never delivers it.
- */
-import { afterAll, beforeAll } from 'vitest';
+/** Seeded scattered layouts for the two-thread tests (parallel-raster, parallel-features); invented geometry. */
 import type { PolygonSet } from '@/lib/layout/types';
-import { startAnalysisHelper } from '@/lib/pipeline/analysis-helper';
-import type { TaskThread } from '@/lib/threads/sync-helper';
 import { makeSet, mulberry32, ngon, rect, type Ring } from './make-set';
 
 /** Sizes in dbu as [least, least + span): each drawn uniformly and floored. */
@@ -38,24 +32,3 @@ export function scatteredRings(seed: number, n: number, size: number, mix: Scatt
 }
 
 export const scatteredLayout = (seed: number, n: number, size: number, mix: ScatterMix): PolygonSet => makeSet(scatteredRings(seed, n, size, mix));
-
-/** One analysis helper thread for the test file (started before its tests, closed after): read it inside a test. */
-export function useAnalysisHelper(): () => TaskThread | null {
-  let helper: TaskThread | null = null;
-  beforeAll(() => {
-    helper = startAnalysisHelper();
-  });
-  afterAll(() => helper?.close());
-  return () => helper;
-}
-
-/** A helper that takes three pieces of work on the spot and then fails: the caller must do them itself. */
-export const failingHelper = (): TaskThread => ({
-  post(_kind, payload) {
-    const task = payload as { next: Int32Array; owner: Uint8Array };
-    for (let k = 0; k < 3; k++) Atomics.store(task.owner, Atomics.add(task.next, 0, 1), 2);
-    return 1;
-  },
-  wait: () => null,
-  close() {},
-});
