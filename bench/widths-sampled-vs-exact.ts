@@ -9,55 +9,16 @@
  * `node --import tsx bench/widths-sampled-vs-exact.ts [trials] [DUMP.bin]`
  */
 import { loadavg } from 'node:os';
-import { openRegions, type Box } from '../lib/geometry';
 import { compressedFallbacks, featureWidths, type WidthOptions, type WidthResult } from '../lib/geometry/widths';
 import { mulberry32 } from '../lib/random';
 import { bruteWidths } from '../tests/geometry/brute-widths';
+import { trenchUnion, unionOpenings, type UnionOpening } from '../tests/geometry/trench-unions';
 import { readDump } from './widths-run';
 
-const rect = (x0: number, y0: number, x1: number, y1: number) => [x0, y0, x1, y0, x1, y1, x0, y1];
 const trials = Number(process.argv[2] ?? 400);
 const dumpFile = process.argv[3];
 
-interface Opening { coords: Float64Array; rings: [number, number][]; bbox: Box; area: number; perim: number; local: number[][] }
-
-function unionOpenings(rnd: () => number, grid: number, pos: number, w: [number, number], len: [number, number]): Opening[] {
-  const pick = (a: number, b: number) => grid * Math.floor((a + rnd() * (b - a)) / grid);
-  const rs: number[][] = [];
-  const k = 2 + Math.floor(rnd() * 3);
-  for (let q = 0; q < k; q++) {
-    const x = pick(0, pos), y = pick(0, pos), ww = pick(...w), ll = pick(...len);
-    rs.push(rnd() < 0.5 ? rect(x, y, x + ll, y + ww) : rect(x, y, x + ww, y + ll));
-  }
-  const coords = Float64Array.from(rs.flat());
-  const offsets = Uint32Array.from([0, ...rs.map((_, i) => 4 * (i + 1))]);
-  const reg = openRegions({ layer: 1, datatype: 0, coords, offsets, count: rs.length }, 0.001, { tileDbu: 1e9 });
-  const out: Opening[] = [];
-  for (let p = 0; p < reg.pieceCount; p++) {
-    const rings: [number, number][] = [];
-    let area = 0, perim = 0;
-    const bbox: Box = [Infinity, Infinity, -Infinity, -Infinity];
-    for (let r = reg.pieceRings[p]!; r < reg.pieceRings[p + 1]!; r++) {
-      const s = reg.ringOffsets[r]!, e = reg.ringOffsets[r + 1]!;
-      rings.push([s, e]);
-      for (let q = s; q < e; q++) {
-        const n = q + 1 < e ? q + 1 : s;
-        const x = reg.coords[2 * q]!, y = reg.coords[2 * q + 1]!, x2 = reg.coords[2 * n]!, y2 = reg.coords[2 * n + 1]!;
-        area += (x * y2 - x2 * y) / 2;
-        perim += Math.hypot(x2 - x, y2 - y);
-        bbox[0] = Math.min(bbox[0], x);
-        bbox[1] = Math.min(bbox[1], y);
-        bbox[2] = Math.max(bbox[2], x);
-        bbox[3] = Math.max(bbox[3], y);
-      }
-    }
-    const local = rings.map(([s, e]) => Array.from({ length: 2 * (e - s) }, (_, k) => reg.coords[2 * s + k]! - bbox[k % 2]!));
-    out.push({ coords: reg.coords, rings, bbox, area, perim, local });
-  }
-  return out;
-}
-
-const measure = (o: Opening, opts: WidthOptions = {}): WidthResult => featureWidths(o.coords, o.rings, o.bbox, o.area, o.perim, opts);
+const measure = (o: UnionOpening, opts: WidthOptions = {}): WidthResult => featureWidths(o.coords, o.rings, o.bbox, o.area, o.perim, opts);
 const stats = (d: number[]) => {
   const a = d.map(Math.abs).sort((p, q) => p - q);
   return `n ${a.length}, |rel| max ${(100 * (a[a.length - 1] ?? 0)).toFixed(2)} %, > 1e-6: ${a.filter((v) => v > 1e-6).length} (higher ${d.filter((v) => v > 1e-6).length}, lower ${d.filter((v) => v < -1e-6).length}), > 1 %: ${a.filter((v) => v > 0.01).length}`;
@@ -68,7 +29,7 @@ const stats = (d: number[]) => {
   const rnd = mulberry32(2026);
   const dev = { cMin: [] as number[], cMax: [] as number[], sMin: [] as number[], sMax: [] as number[] };
   for (let t = 0; t < trials; t++) {
-    for (const o of unionOpenings(rnd, 200, 8000, [600, 2600], [2000, 10_000])) {
+    for (const o of unionOpenings(trenchUnion(rnd, 200, { pos: 8000, w: [600, 2600], len: [2000, 10_000] }))) {
       const exact = measure(o, { uniformLattice: true });
       if (exact.step === 0 || !exact.exact) continue;
       const c = measure(o), s = measure(o, { sampledLattice: true });
@@ -89,7 +50,7 @@ const stats = (d: number[]) => {
   const dev = { cMin: [] as number[], cMax: [] as number[], sMin: [] as number[], sMax: [] as number[] };
   let tc = 0, n = 0;
   for (let t = 0; t < Math.max(10, Math.round(trials / 10)); t++) {
-    for (const o of unionOpenings(rnd, 1, 110, [8, 40], [25, 160])) {
+    for (const o of unionOpenings(trenchUnion(rnd, 1, { pos: 110, w: [8, 40], len: [25, 160] }))) {
       const t0 = performance.now();
       const c = measure(o);
       tc += performance.now() - t0;

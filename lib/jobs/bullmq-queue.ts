@@ -15,7 +15,7 @@ import type { JobQueue } from './queue';
 import { recordPickup, recordProgress, recordQueueFailure, recordResult, remoteTaskOf } from './remote-results';
 import { isRemoteJobResult } from './remote-task';
 import { warmResultCache } from './warm-results';
-import { jobConcurrency } from './runner';
+import { jobConcurrency } from './job-limits';
 
 /** Queued rows are handed to Redis again this often, so one that could not be added (Redis down) is not lost. */
 const RESYNC_MS = 5_000;

@@ -6,7 +6,7 @@
 import { Redis } from 'ioredis';
 import type { JobsOptions } from 'bullmq';
 import type { RemoteTask } from './remote-task';
-import { jobMaxAttempts } from './runner';
+import { jobMaxAttempts } from './job-limits';
 
 export const QUEUE_NAME = 'analyses';
 

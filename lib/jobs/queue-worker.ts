@@ -21,7 +21,8 @@ import { cancelChannel, cancelKey, eventsChannel, lockMs, openRedis, QUEUE_NAME,
 import { setJobEventRelay, type JobEvent } from './events';
 import { RemoteTaskRunner } from './remote-runner';
 import type { RemoteJobResult } from './remote-task';
-import { jobMaxAttempts, JobRunner } from './runner';
+import { jobMaxAttempts } from './job-limits';
+import { JobRunner } from './runner';
 
 export type QueueWorker = { close: () => Promise<void>; concurrency: number };
 

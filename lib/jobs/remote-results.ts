@@ -10,7 +10,7 @@ import { isTerminal, type JobEvent } from './events';
 import { finishJob } from './finish-job';
 import { analysisRelDir } from './paths';
 import type { RemoteJobResult, RemoteTask } from './remote-task';
-import { jobMaxAttempts, resultBudgetOf } from './runner';
+import { jobMaxAttempts, resultBudgetOf } from './job-limits';
 import { saveResultRows } from './save-results';
 import type { AnalysisStatus } from '@/db/schema';
 

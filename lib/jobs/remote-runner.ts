@@ -13,7 +13,7 @@ import { isStorageNotFound, storage } from '@/lib/storage';
 import { localInput, resultStaging, type LocalInput, type ResultStaging } from '@/lib/storage/job-files';
 import { analysisRelDir } from './paths';
 import type { RemoteJobResult, RemoteTask } from './remote-task';
-import { jobConcurrency } from './runner';
+import { jobConcurrency } from './job-limits';
 import { workerFile } from './worker-file';
 
 const CANCEL_GRACE_MS = 3_000;

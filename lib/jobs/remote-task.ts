@@ -5,7 +5,7 @@
  * storage key (lib/storage), so the worker needs the same storage settings as the server, not its data folder.
  */
 import type { AnalysisTaskResult } from '@/lib/pipeline/worker';
-import type { ResultBudget } from './runner';
+import type { ResultBudget } from './job-limits';
 
 export type RemoteTask = {
   storedPath: string;

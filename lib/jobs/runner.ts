@@ -12,9 +12,9 @@
  * One runner per process, kept on globalThis (Next may load this module in several bundles). This is the embedded
  * backend of lib/jobs/queue.ts; a BullMQ worker process (lib/jobs/queue-worker.ts) reuses it with `autoPump: false`
  * and starts the jobs Redis hands it with runById().
+ * Claiming a job from the table: claim-job.ts; attempts, concurrency and result budgets: job-limits.ts.
  */
 import { existsSync } from 'node:fs';
-import { availableParallelism } from 'node:os';
 import { MessageChannel } from 'node:worker_threads';
 import Piscina from 'piscina';
 import { getDb } from '@/db/client';
@@ -26,28 +26,17 @@ import { localInput, resultStaging, type LocalInput, type ResultStaging } from '
 import { isTerminal, publishJobEvent } from './events';
 import { finishJob } from './finish-job';
 import type { JobQueue } from './queue';
+import { claimJob, type ClaimedRow } from './claim-job';
+import { jobConcurrency, resultBudgetOf } from './job-limits';
 import { analysisRelDir } from './paths';
 import { saveResultRows } from './save-results';
-import { getTeamLimits, teamStoredResultBytes } from './team-limits';
 import { forgetWorkerFile, workerFile } from './worker-file';
 
 /** How long a cancelled job may take to reach a check point before its thread is terminated. */
 const CANCEL_GRACE_MS = 3_000;
-const MiB = 1024 * 1024;
 
-/** Most times a job is picked up (first run + runs after restarts) before it is marked failed. */
-export function jobMaxAttempts(): number {
-  const env = Number(process.env.TRENCHANT_JOB_MAX_ATTEMPTS);
-  return Number.isInteger(env) && env >= 1 ? env : 3;
-}
 /** DB progress writes at most this often per job (SSE subscribers get every message). */
 const PROGRESS_WRITE_MS = 500;
-
-export function jobConcurrency(): number {
-  const env = Number(process.env.TRENCHANT_JOB_CONCURRENCY);
-  if (Number.isInteger(env) && env >= 1) return env;
-  return Math.max(1, Math.floor(availableParallelism() / 2));
-}
 
 type RunningJob = {
   analysisId: string;
@@ -61,14 +50,7 @@ type RunningJob = {
 };
 type MessagePort = import('node:worker_threads').MessagePort;
 
-type ClaimedRow = {
-  id: string;
-  settings: string;
-  model: string;
-  stored_path: string;
-  top_cell: string;
-  team_id: string;
-};
+export { jobConcurrency, jobMaxAttempts, resultBudgetOf, type ResultBudget } from './job-limits';
 
 export class JobRunner implements JobQueue {
   readonly kind = 'embedded' as const;
@@ -130,7 +112,7 @@ export class JobRunner implements JobQueue {
       do {
         this.pumpAgain = false;
         while (this.running.size < this.concurrency) {
-          const row = this.claimNext();
+          const row = claimJob();
           if (!row) break;
           void this.start(row);
         }
@@ -164,50 +146,13 @@ export class JobRunner implements JobQueue {
    */
   runById(analysisId: string): Promise<void> | null {
     if (this.running.has(analysisId)) return null;
-    const row = this.claimNext(analysisId);
+    const row = claimJob(analysisId);
     return row ? this.start(row) : null;
   }
 
   /** Marks a job failed from outside a run (e.g. the queue gave up on it); no-op when it already finished. */
   failJob(analysisId: string, code: string, message: string): void {
     this.finish(analysisId, 'failed', { code, message });
-  }
-
-  /**
-   * Marks the oldest queued job running and returns what the worker needs; null when the queue is empty. With an
-   * id: that job, if it is queued or left running by a worker that died.
-   */
-  private claimNext(analysisId?: string): ClaimedRow | null {
-    const sqlite = getDb().$client;
-    const which =
-      analysisId === undefined ? `(SELECT id FROM analyses WHERE status = 'queued' ORDER BY created_at, id LIMIT 1)` : `? AND status IN ('queued', 'running')`;
-    const row = sqlite
-      .prepare(
-        `UPDATE analyses SET status = 'running', stage = 'starting', progress = 0, started_at = ?, attempts = attempts + 1,
-           error_code = NULL, error_message = NULL
-         WHERE id = ${which}
-         RETURNING id, settings, model, revision_id, project_id, attempts`,
-      )
-      .get(...(analysisId === undefined ? [Date.now()] : [Date.now(), analysisId])) as { id: string; settings: string; model: string; revision_id: string; project_id: string; attempts: number } | undefined;
-    if (!row) return null;
-    const maxAttempts = jobMaxAttempts();
-    if (row.attempts > maxAttempts) {
-      this.finish(row.id, 'failed', {
-        code: 'too-many-attempts',
-        message: `This analysis was interrupted ${row.attempts - 1 === 1 ? 'once' : `${row.attempts - 1} times`} (${analysisId === undefined ? 'the server' : 'its worker process'} stopped while it ran) and was not started again (limit: ${maxAttempts} attempts, TRENCHANT_JOB_MAX_ATTEMPTS). Try a coarser pixel or a smaller layout, or start it again.`,
-      });
-      return analysisId === undefined ? this.claimNext() : null;
-    }
-    const rev = sqlite.prepare('SELECT stored_path, top_cell FROM layout_revisions WHERE id = ?').get(row.revision_id) as
-      | { stored_path: string; top_cell: string }
-      | undefined;
-    if (!rev) {
-      this.finish(row.id, 'failed', { code: 'missing-revision', message: 'the layout revision of this analysis no longer exists' });
-      return analysisId === undefined ? this.claimNext() : null;
-    }
-    const team = sqlite.prepare('SELECT team_id FROM projects WHERE id = ?').get(row.project_id) as { team_id: string } | undefined;
-    publishJobEvent({ analysisId: row.id, status: 'running', stage: 'starting', progress: 0, errorMessage: null });
-    return { id: row.id, settings: row.settings, model: row.model, stored_path: rev.stored_path, top_cell: rev.top_cell, team_id: team?.team_id ?? '' };
   }
 
   private async run(job: RunningJob, row: ClaimedRow): Promise<void> {
@@ -231,7 +176,7 @@ export class JobRunner implements JobQueue {
     };
     try {
       await store.deletePrefix(`${resultKey}/`); // leftovers of an interrupted attempt
-      const budget = this.resultBudget(row);
+      const budget = resultBudgetOf(row.team_id);
       if (!budget.ok) {
         this.finish(row.id, 'failed', { code: 'over-quota', message: budget.message });
         return;
@@ -302,14 +247,6 @@ export class JobRunner implements JobQueue {
     }
   }
 
-  /**
-   * What this job may write: the team's per-analysis limit, or what is left of its stored-results quota when
-   * that is less. A team already at its quota gets a message instead.
-   */
-  private resultBudget(row: ClaimedRow): ResultBudget {
-    return resultBudgetOf(row.team_id);
-  }
-
   /** Writes a terminal state (only over queued/running, so a late result never overwrites a cancel). */
   private finish(
     analysisId: string,
@@ -367,29 +304,6 @@ export class JobRunner implements JobQueue {
     await this.pool?.destroy();
     this.pool = null;
   }
-}
-
-export type ResultBudget = { ok: true; maxBytes: number; label: string } | { ok: false; message: string };
-
-/**
- * What a job of this team may write: the team's per-analysis limit, or what is left of its stored-results quota
- * when that is less. A team already at its quota gets a message instead.
- */
-export function resultBudgetOf(teamId: string): ResultBudget {
-  if (!teamId) return { ok: true, maxBytes: Number.MAX_SAFE_INTEGER, label: 'no limit' };
-  const db = getDb();
-  const limits = getTeamLimits(db, teamId);
-  const stored = teamStoredResultBytes(db, teamId);
-  const left = limits.maxStoredBytes - stored;
-  const mib = (n: number) => `${Math.round(n / MiB).toLocaleString('en-US')} MiB`;
-  if (left <= 0) {
-    return {
-      ok: false,
-      message: `This team's stored results take ${mib(stored)}, at its quota of ${mib(limits.maxStoredBytes)}; delete old analyses or ask a team admin to raise the quota on the team page.`,
-    };
-  }
-  if (left < limits.maxAnalysisBytes) return { ok: true, maxBytes: left, label: `the ${mib(left)} left of this team's quota of ${mib(limits.maxStoredBytes)} for stored results` };
-  return { ok: true, maxBytes: limits.maxAnalysisBytes, label: `this team's limit of ${mib(limits.maxAnalysisBytes)} per analysis` };
 }
 
 function oneLine(s: string): string {

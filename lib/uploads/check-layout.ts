@@ -78,8 +78,9 @@ function sniff(head: Uint8Array): 'gdsii' | 'csv' | null {
 
 /** Checks the layout bytes from `chunks` against `limits`. Bad files resolve { ok: false, code: 'unreadable' }. */
 export async function checkLayoutChunks(chunks: AsyncIterable<Uint8Array>, limits: UploadLimits): Promise<UploadCheckResult> {
-  let gds: GdsiiParser | null = null;
-  let csv: CsvPolygonReader | null = null;
+  // Set by begin() (a closure): declared by assertion so TypeScript does not narrow them to null for good.
+  let gds = null as GdsiiParser | null;
+  let csv = null as CsvPolygonReader | null;
   const counter = new CsvPolygonCounter();
   let head = new Uint8Array(0);
   // CSV: count polygons on the bytes first, so a file over the limit stops at the first polygon past it.
@@ -87,6 +88,19 @@ export async function checkLayoutChunks(chunks: AsyncIterable<Uint8Array>, limit
     if (counter.push(bytes) > limits.maxPolygons) return overLimit('polygons', limits.maxPolygons, limits.maxPolygons + 1, true, ` (refused at CSV line ${counter.line})`);
     csv!.push(bytes);
     return null;
+  };
+  const feed = (bytes: Uint8Array): UploadCheckResult | null => {
+    if (!gds) return feedCsv(bytes);
+    gds.push(bytes);
+    return null;
+  };
+  // The format is known from the first 64 bytes (or the whole file when shorter): start its reader on them.
+  const begin = (): UploadCheckResult | null => {
+    const kind = sniff(head);
+    if (kind === 'gdsii') gds = new GdsiiParser();
+    else if (kind === 'csv') csv = new CsvPolygonReader(limits.maxPoints);
+    else return { ok: false, code: 'unreadable', message: `not a GDSII stream (no HEADER record at byte 0) nor a "${CSV_MAGIC}" CSV` };
+    return feed(head);
   };
   try {
     for await (const input of chunks) {
@@ -97,34 +111,17 @@ export async function checkLayoutChunks(chunks: AsyncIterable<Uint8Array>, limit
         joined.set(chunk, head.length);
         head = joined;
         if (head.length < 64) continue;
-        const kind = sniff(head);
-        if (kind === 'gdsii') gds = new GdsiiParser();
-        else if (kind === 'csv') csv = new CsvPolygonReader(limits.maxPoints);
-        else return { ok: false, code: 'unreadable', message: `not a GDSII stream (no HEADER record at byte 0) nor a "${CSV_MAGIC}" CSV` };
-        if (gds) gds.push(head);
-        else {
-          const refused = feedCsv(head);
-          if (refused) return refused;
-        }
+        const refused = begin();
+        if (refused) return refused;
         continue;
       }
-      if (gds) gds.push(chunk);
-      else {
-        const refused = feedCsv(chunk);
-        if (refused) return refused;
-      }
+      const refused = feed(chunk);
+      if (refused) return refused;
     }
     if (!gds && !csv) {
-      const kind = sniff(head);
       if (head.length === 0) return { ok: false, code: 'unreadable', message: 'empty file (0 bytes)' };
-      if (kind === 'gdsii') gds = new GdsiiParser();
-      else if (kind === 'csv') csv = new CsvPolygonReader(limits.maxPoints);
-      else return { ok: false, code: 'unreadable', message: `not a GDSII stream (no HEADER record at byte 0) nor a "${CSV_MAGIC}" CSV` };
-      if (gds) gds.push(head);
-      else {
-        const refused = feedCsv(head);
-        if (refused) return refused;
-      }
+      const refused = begin();
+      if (refused) return refused;
     }
     if (csv) {
       if (counter.finish() > limits.maxPolygons) return overLimit('polygons', limits.maxPolygons, limits.maxPolygons + 1, true, ` (refused at CSV line ${counter.line})`);

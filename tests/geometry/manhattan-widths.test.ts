@@ -5,10 +5,11 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { extractFeatures, openRegions, type Box } from '@/lib/geometry';
+import { extractFeatures } from '@/lib/geometry';
 import { featureWidths } from '@/lib/geometry/widths';
 import { bruteWidths } from './brute-widths';
-import { makeSet, mulberry32, rect, type Ring } from './make-set';
+import { makeSet, rect, type Ring } from './make-set';
+import { trenchUnions, unionOpenings } from './trench-unions';
 
 const DBU = 0.001;
 const reversed = (r: Ring): Ring => {
@@ -88,63 +89,17 @@ describe('hand-derived widths on a 1 nm vertex grid (compressed lattice)', () =>
   });
 });
 
-/** Openings of a union of rectangles: rings, bbox, area, perimeter (one union tile, as the feature path). */
-function openings(rs: Ring[]) {
-  const reg = openRegions(makeSet(rs), DBU, { tileDbu: 1e9 });
-  const out: { rings: [number, number][]; bbox: Box; area: number; perim: number; local: number[][] }[] = [];
-  for (let p = 0; p < reg.pieceCount; p++) {
-    const rings: [number, number][] = [];
-    let area = 0, perim = 0;
-    const bbox: Box = [Infinity, Infinity, -Infinity, -Infinity];
-    for (let r = reg.pieceRings[p]!; r < reg.pieceRings[p + 1]!; r++) {
-      const s = reg.ringOffsets[r]!, e = reg.ringOffsets[r + 1]!;
-      rings.push([s, e]);
-      for (let q = s; q < e; q++) {
-        const n = q + 1 < e ? q + 1 : s;
-        const x = reg.coords[2 * q]!, y = reg.coords[2 * q + 1]!, x2 = reg.coords[2 * n]!, y2 = reg.coords[2 * n + 1]!;
-        area += (x * y2 - x2 * y) / 2;
-        perim += Math.hypot(x2 - x, y2 - y);
-        bbox[0] = Math.min(bbox[0], x);
-        bbox[1] = Math.min(bbox[1], y);
-        bbox[2] = Math.max(bbox[2], x);
-        bbox[3] = Math.max(bbox[3], y);
-      }
-    }
-    const local = rings.map(([s, e]) => Array.from({ length: 2 * (e - s) }, (_, k) => reg.coords[2 * s + k]! - bbox[k % 2]!));
-    out.push({ rings, bbox, area, perim, local });
-  }
-  return { coords: reg.coords, out };
-}
-
-/** Seeded unions of 2–4 axis-parallel trenches: `grid` sets the vertex grid, `scale` the sizes (dbu). */
-function unions(seed: number, n: number, grid: number, size: { pos: number; w: [number, number]; len: [number, number] }): Ring[][] {
-  const rnd = mulberry32(seed);
-  const pick = (a: number, b: number) => grid * Math.floor((a + rnd() * (b - a)) / grid);
-  const sets: Ring[][] = [];
-  for (let t = 0; t < n; t++) {
-    const rs: Ring[] = [];
-    const k = 2 + Math.floor(rnd() * 3);
-    for (let q = 0; q < k; q++) {
-      const x = pick(0, size.pos), y = pick(0, size.pos), w = pick(...size.w), len = pick(...size.len);
-      rs.push(rnd() < 0.5 ? rect(x, y, x + len, y + w) : rect(x, y, x + w, y + len));
-    }
-    sets.push(rs);
-  }
-  return sets;
-}
-
 describe('compressed lattice vs the uniform exact Manhattan lattice where both apply (vertices on a 4 dbu grid)', () => {
   it('agree, and where they do not the brute force sides with the compressed lattice', () => {
     // The uniform lattice (spacing g/2/k) can miss a covering disk centred in a thin sliver between its nodes (beyond
     // the mouth of a stub shorter than its width) and so report that stub as the narrowest part; the compressed path
     // searches for such disks on the exact distance (manhattan-widths.ts coverFound). The brute force settles it.
     let compared = 0, same = 0;
-    for (const rs of unions(2026, 16, 4, { pos: 120, w: [12, 48], len: [40, 170] })) {
-      const { coords, out } = openings(rs);
-      for (const o of out) {
-        const a = featureWidths(coords, o.rings, o.bbox, o.area, o.perim);
+    for (const rs of trenchUnions(2026, 16, 4, { pos: 120, w: [12, 48], len: [40, 170] })) {
+      for (const o of unionOpenings(rs, DBU)) {
+        const a = featureWidths(o.coords, o.rings, o.bbox, o.area, o.perim);
         if (a.step === 0) continue; // rectangle
-        const b = featureWidths(coords, o.rings, o.bbox, o.area, o.perim, { uniformLattice: true });
+        const b = featureWidths(o.coords, o.rings, o.bbox, o.area, o.perim, { uniformLattice: true });
         expect(b.exact).toBe(true);
         expect(a.exact).toBe(true);
         compared++;
@@ -165,10 +120,9 @@ describe('compressed lattice vs the uniform exact Manhattan lattice where both a
 describe('compressed lattice = brute force on 1 nm-grid unions (tests/geometry/brute-widths.ts)', () => {
   it('same widths to 1e-6 dbu on seeded unions of 2–4 trenches with odd dbu vertices', () => {
     let compared = 0;
-    for (const rs of unions(77, 18, 1, { pos: 110, w: [8, 40], len: [25, 160] })) {
-      const { coords, out } = openings(rs);
-      for (const o of out) {
-        const a = featureWidths(coords, o.rings, o.bbox, o.area, o.perim);
+    for (const rs of trenchUnions(77, 18, 1, { pos: 110, w: [8, 40], len: [25, 160] })) {
+      for (const o of unionOpenings(rs, DBU)) {
+        const a = featureWidths(o.coords, o.rings, o.bbox, o.area, o.perim);
         if (a.step === 0) continue;
         const b = bruteWidths(o.local, o.bbox[2] - o.bbox[0], o.bbox[3] - o.bbox[1]);
         compared++;

@@ -6,18 +6,12 @@ import { describe, expect, it } from 'vitest';
 import { featuresFromRegions, featureTableFromRegions, numberFeatureTable, concatFeatureTables, openRegions } from '@/lib/geometry';
 import { measureFeatures } from '@/lib/geometry/features';
 import { featuresInThreads } from '@/lib/geometry/parallel-features';
-import { makeSet, mulberry32, ngon, rect, type Ring } from './make-set';
+import { scatteredLayout } from './scattered-layout';
 
 describe('featuresInThreads', () => {
   it('matches featuresFromRegions feature for feature', () => {
-    const rnd = mulberry32(99);
-    const rings: Ring[] = [];
-    for (let k = 0; k < 3_000; k++) {
-      const x = Math.floor(rnd() * 2_000_000), y = Math.floor(rnd() * 2_000_000);
-      if (k % 5 === 0) rings.push(ngon(x, y, 1_000 + Math.floor(rnd() * 2_000), 24));
-      else rings.push(rect(x, y, x + 500 + Math.floor(rnd() * 20_000), y + 500 + Math.floor(rnd() * 3_000)));
-    }
-    const regions = openRegions(makeSet(rings), 0.001);
+    const set = scatteredLayout(99, 3_000, 2_000_000, { ngonEvery: 5, ngonRadius: [1_000, 2_000], rectW: [500, 20_000], rectH: [500, 3_000] });
+    const regions = openRegions(set, 0.001);
     const info: { threads?: number } = {};
     const a = featuresInThreads(regions, { minPieces: 0, chunk: 64 }, info); // small chunks: both threads take some
     const b = featuresFromRegions(regions);
@@ -26,13 +20,8 @@ describe('featuresInThreads', () => {
   });
 
   it('chunks taken by one sharer plus the rest measured afterwards (the failed-worker path) give the same table', () => {
-    const rnd = mulberry32(5);
-    const rings: Ring[] = [];
-    for (let k = 0; k < 800; k++) {
-      const x = Math.floor(rnd() * 400_000), y = Math.floor(rnd() * 400_000);
-      rings.push(rect(x, y, x + 500 + Math.floor(rnd() * 9_000), y + 500 + Math.floor(rnd() * 2_000)));
-    }
-    const regions = openRegions(makeSet(rings), 0.001, { tileDbu: 50_000 });
+    const set = scatteredLayout(5, 800, 400_000, { ngonEvery: 0, rectW: [500, 9_000], rectH: [500, 2_000] });
+    const regions = openRegions(set, 0.001, { tileDbu: 50_000 });
     const chunk = 16;
     const chunks = Math.ceil(regions.pieceCount / chunk);
     const next = new Int32Array(new SharedArrayBuffer(4));

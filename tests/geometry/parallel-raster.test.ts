@@ -4,14 +4,13 @@
  * itself checked against polygon areas in coverage.test.ts): with the helper thread and without, for band counts
  * from 1 to one band per row, on grids whose edges do not line up with the layout, and when the helper fails.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { openRegions, rasterizeOpenRegions, type Grid } from '@/lib/geometry';
 import { accumulateRegions, coverageFromDifferences } from '@/lib/geometry/raster';
 import { coverageInThreads } from '@/lib/geometry/parallel-raster';
 import { openRegionsInThreads } from '@/lib/geometry/parallel-union';
-import { startAnalysisHelper } from '@/lib/pipeline/analysis-helper';
-import type { TaskThread } from '@/lib/threads/sync-helper';
-import { makeSet, mulberry32, ngon, rect, type Ring } from './make-set';
+import { failingHelper, useAnalysisHelper } from '../support/helper-thread';
+import { scatteredLayout } from './scattered-layout';
 
 const layoutOpts = { regionDbu: [0, 0, 310_000, 310_000] as [number, number, number, number], tileDbu: 11_000 };
 
@@ -19,22 +18,10 @@ function layout(seed: number) {
   return openRegions(layoutSet(seed), 0.001, layoutOpts);
 }
 
-function layoutSet(seed: number) {
-  const rnd = mulberry32(seed);
-  const rings: Ring[] = [];
-  for (let k = 0; k < 2_500; k++) {
-    const x = Math.floor(rnd() * 300_000), y = Math.floor(rnd() * 300_000);
-    if (k % 6 === 0) rings.push(ngon(x, y, 400 + Math.floor(rnd() * 4_000), 24, rnd()));
-    else rings.push(rect(x, y, x + 200 + Math.floor(rnd() * 9_000), y + 200 + Math.floor(rnd() * 2_000)));
-  }
-  return makeSet(rings);
-}
+/** Rectangles and turned 24-gons, every sixth a 24-gon. */
+const layoutSet = (seed: number) => scatteredLayout(seed, 2_500, 300_000, { ngonEvery: 6, ngonRadius: [400, 4_000], turnNgons: true, rectW: [200, 9_000], rectH: [200, 2_000] });
 
-let helper: TaskThread | null = null;
-beforeAll(() => {
-  helper = startAnalysisHelper();
-});
-afterAll(() => helper?.close());
+const helperThread = useAnalysisHelper();
 
 describe('coverageInThreads', () => {
   it('equals the one-thread raster bit for bit', () => {
@@ -45,13 +32,13 @@ describe('coverageInThreads', () => {
     ] satisfies Grid[]) {
       const want = Float32Array.from(rasterizeOpenRegions(regions, grid));
       for (const bands of [1, 2, 7, grid.ny]) {
-        expect(Array.from(coverageInThreads(regions, grid, helper, { bands, minPieces: 0 })), `${bands} bands`).toEqual(Array.from(want));
+        expect(Array.from(coverageInThreads(regions, grid, helperThread(), { bands, minPieces: 0 })), `${bands} bands`).toEqual(Array.from(want));
       }
       expect(Array.from(coverageInThreads(regions, grid, null))).toEqual(Array.from(want));
       // The two-thread union's regions carry each piece's y extent; bands then skip pieces by it.
-      const withY = openRegionsInThreads(layoutSet(1), 0.001, layoutOpts, helper, { minPolygons: 0, chunks: 5 });
+      const withY = openRegionsInThreads(layoutSet(1), 0.001, layoutOpts, helperThread(), { minPolygons: 0, chunks: 5 });
       expect(withY.pieceY).toBeInstanceOf(Float64Array);
-      for (const bands of [3, grid.ny]) expect(Array.from(coverageInThreads(withY, grid, helper, { bands, minPieces: 0 }))).toEqual(Array.from(want));
+      for (const bands of [3, grid.ny]) expect(Array.from(coverageInThreads(withY, grid, helperThread(), { bands, minPieces: 0 }))).toEqual(Array.from(want));
     }
   });
 
@@ -62,7 +49,7 @@ describe('coverageInThreads', () => {
     let bands = 0;
     for (let k = 0; k < 20 && bands === 0; k++) {
       const info: { helperBands?: number } = {};
-      expect(Array.from(coverageInThreads(regions, grid, helper, { bands: 64, minPieces: 0, info }))).toEqual(want);
+      expect(Array.from(coverageInThreads(regions, grid, helperThread(), { bands: 64, minPieces: 0, info }))).toEqual(want);
       bands = info.helperBands ?? 0;
     }
     expect(bands).toBeGreaterThan(0);
@@ -71,15 +58,7 @@ describe('coverageInThreads', () => {
   it('a helper that takes bands and fails: they are done here', () => {
     const regions = layout(3);
     const grid: Grid = { x0Um: 0, y0Um: 0, pixelUm: 3, nx: 104, ny: 104 };
-    const failing: TaskThread = {
-      post(_kind, payload) {
-        const task = payload as { next: Int32Array; owner: Uint8Array };
-        for (let k = 0; k < 3; k++) Atomics.store(task.owner, Atomics.add(task.next, 0, 1), 2);
-        return 1;
-      },
-      wait: () => null,
-      close() {},
-    };
+    const failing = failingHelper();
     expect(Array.from(coverageInThreads(regions, grid, failing, { bands: 9, minPieces: 0 }))).toEqual(Array.from(Float32Array.from(rasterizeOpenRegions(regions, grid))));
   });
 

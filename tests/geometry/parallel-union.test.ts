@@ -5,14 +5,13 @@
  * moves through tiles that overlapping polygons, slanted edges and rectangles cross), in both polarities, and when
  * the helper takes chunks and never delivers them.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { openRegions, type OpenRegions } from '@/lib/geometry';
 import { openRegionsInThreads, unionChunkBounds } from '@/lib/geometry/parallel-union';
 import { planUnion } from '@/lib/geometry/open-regions';
 import type { PolygonSet } from '@/lib/layout/types';
-import { startAnalysisHelper } from '@/lib/pipeline/analysis-helper';
-import type { TaskThread } from '@/lib/threads/sync-helper';
 import { makeSet, mulberry32, ngon, rect, type Ring } from './make-set';
+import { failingHelper, useAnalysisHelper } from '../support/helper-thread';
 
 /**
  * Every field as plain values, so shared and ordinary typed arrays compare by content. `pieceY` (only the
@@ -49,15 +48,11 @@ function seededLayout(seed: number, n: number, size: number): PolygonSet {
   return makeSet(rings);
 }
 
-let helper: TaskThread | null = null;
-beforeAll(() => {
-  helper = startAnalysisHelper();
-});
-afterAll(() => helper?.close());
+const helperThread = useAnalysisHelper();
 
 describe('openRegionsInThreads', () => {
   it('starts a helper thread from source', () => {
-    expect(helper).not.toBeNull();
+    expect(helperThread()).not.toBeNull();
   });
 
   for (const polarity of ['clear', 'dark'] as const) {
@@ -68,7 +63,7 @@ describe('openRegionsInThreads', () => {
         const want = plain(openRegions(set, 0.001, opts));
         for (const chunks of [1, 2, 7, 64]) {
           const info: { helperChunks?: number } = {};
-          const got = openRegionsInThreads(set, 0.001, opts, helper, { chunks, minPolygons: 0, info });
+          const got = openRegionsInThreads(set, 0.001, opts, helperThread(), { chunks, minPolygons: 0, info });
           expect(plain(got), `seed ${seed}, ${chunks} chunks`).toEqual(want);
         }
         // No helper: the one-thread union itself.
@@ -84,7 +79,7 @@ describe('openRegionsInThreads', () => {
     let took = 0;
     for (let k = 0; k < 20 && took === 0; k++) {
       const info: { helperChunks?: number } = {};
-      expect(plain(openRegionsInThreads(set, 0.001, opts, helper, { chunks: 256, minPolygons: 0, info }))).toEqual(want);
+      expect(plain(openRegionsInThreads(set, 0.001, opts, helperThread(), { chunks: 256, minPolygons: 0, info }))).toEqual(want);
       took = info.helperChunks ?? 0;
     }
     expect(took).toBeGreaterThan(0);
@@ -94,15 +89,7 @@ describe('openRegionsInThreads', () => {
     const set = seededLayout(11, 2_000, 300_000);
     const opts = { tileDbu: 8_000 };
     // A helper that takes three chunks on the spot and then fails.
-    const failing: TaskThread = {
-      post(_kind, payload) {
-        const task = payload as { next: Int32Array; owner: Uint8Array };
-        for (let k = 0; k < 3; k++) Atomics.store(task.owner, Atomics.add(task.next, 0, 1), 2);
-        return 1;
-      },
-      wait: () => null,
-      close() {},
-    };
+    const failing = failingHelper();
     expect(plain(openRegionsInThreads(set, 0.001, opts, failing, { chunks: 9, minPolygons: 0 }))).toEqual(plain(openRegions(set, 0.001, opts)));
   });
 

@@ -6,56 +6,35 @@
  * high — the reference); a broken file gets the whole read's message with its byte offset; the viewer's polygons
  * come one window at a time and equal the whole-layout index's; the preview draws from the stored map.
  */
-import Database from 'better-sqlite3';
-import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readLayoutFile } from '@/lib/layout/read';
-import analyse from '@/lib/pipeline/worker';
 import { checkLayoutFile } from '@/lib/uploads/check-layout';
 import { buildPolygonIndex, queryPolygons } from '@/lib/viewer/polygon-index';
-import { decodePolygons, type WirePolygons } from '@/lib/viewer/polygon-wire';
+import { decodePolygons } from '@/lib/viewer/polygon-wire';
 import type { TestClient } from '../support/http';
-import { startTestServer, type TestServer } from '../support/server';
+import type { TestServer } from '../support/server';
 import { flatDie } from '../layout/tile-fixtures';
-import { json, leftovers, PROJECT, signInAs, startAnalysis, upload, waitFor, type ErrorBody } from '../pipeline-server/support';
+import { json, leftovers, PROJECT, startAnalysis, upload, waitFor, type ErrorBody } from '../pipeline-server/support';
+import { expectSameSummary, LARGE_MODEL, LARGE_SETTINGS, largeLayoutFile, polygonTexts, startLargeLayoutServer, untiledReference } from './support';
 
-const MEMORY_MB = '24';
-const dir = mkdtempSync(path.join(tmpdir(), 'trenchant-large-it-'));
-const file = path.join(dir, 'kestrel-large.gds');
 const bytes = flatDie(30_000, 5);
-writeFileSync(file, bytes);
-const model = JSON.parse(readFileSync('samples/models/deep-trench-continuous.json', 'utf8')) as Record<string, unknown>;
-
-function sorted(w: WirePolygons): string[] {
-  const out: string[] = [];
-  for (let r = 0; r < w.polyLayer.length; r++) {
-    const l = w.layers[w.polyLayer[r] as number]!;
-    const pts: string[] = [];
-    for (let k = w.offsets[r] as number; k < (w.offsets[r + 1] as number); k++) pts.push(`${w.coords[2 * k]},${w.coords[2 * k + 1]}`);
-    out.push(`${l.layer}/${l.datatype}:${pts.join(';')}`);
-  }
-  return out.sort();
-}
+const { dir, file, remove } = largeLayoutFile('trenchant-large-it-', 'kestrel-large.gds', bytes);
 
 describe('layouts above the whole-read size in the app', () => {
   let server: TestServer;
   let designer: TestClient;
   let revisionId = '';
   let analysisId = '';
-  const savedMem = process.env.TRENCHANT_ANALYSIS_MEMORY_MB;
 
   beforeAll(async () => {
     expect(bytes.length).toBeGreaterThan(1024 * 1024);
-    server = await startTestServer({ env: { TRENCHANT_WHOLE_READ_MB: '0.5', TRENCHANT_ANALYSIS_MEMORY_MB: MEMORY_MB, TRENCHANT_TILE_THREADS: '2' } });
-    designer = await signInAs(server.baseUrl, 'designer');
+    ({ server, designer } = await startLargeLayoutServer({ TRENCHANT_TILE_THREADS: '2' }));
   }, 600_000);
   afterAll(async () => {
-    if (savedMem === undefined) delete process.env.TRENCHANT_ANALYSIS_MEMORY_MB;
-    else process.env.TRENCHANT_ANALYSIS_MEMORY_MB = savedMem;
     await server?.stop();
-    rmSync(dir, { recursive: true, force: true });
+    remove();
   });
 
   it('checks the upload from the index and describes it as the whole-file check does', async () => {
@@ -90,7 +69,7 @@ describe('layouts above the whole-read size in the app', () => {
   });
 
   it('analyses it in tiles with the same stored results as the untiled run', async () => {
-    analysisId = await startAnalysis(designer, { revisionId, settings: { etchLayers: [{ layer: 1, datatype: 0 }], pixel: { sizeUm: 2 } }, model });
+    analysisId = await startAnalysis(designer, { revisionId, settings: LARGE_SETTINGS, model: LARGE_MODEL });
     const done = await waitFor(designer, analysisId, ['done', 'failed', 'cancelled'], 300_000);
     expect(done.errorMessage).toBeNull();
     expect(done.status).toBe('done');
@@ -101,16 +80,9 @@ describe('layouts above the whole-read size in the app', () => {
     expect(results.summary.tiled?.threads).toBe(2);
 
     // The reference: the same stored settings and model, read whole, in this process.
-    const db = new Database(server.dbFile, { readonly: true });
-    const row = db.prepare('SELECT settings, model FROM analyses WHERE id = ?').get(analysisId) as { settings: string; model: string };
-    db.close();
-    process.env.TRENCHANT_ANALYSIS_MEMORY_MB = MEMORY_MB;
     const outDir = path.join(dir, 'whole-out');
-    const ref = await analyse({ layoutPath: file, settings: JSON.parse(row.settings), model: JSON.parse(row.model), outDir, wholeReadBytes: 1e12 });
-    if (!ref.ok) throw new Error(ref.message);
-    const { timingsMs: _a, tiled: _b, ...got } = results.summary;
-    const { timingsMs: _c, ...want } = ref.summary;
-    expect(got).toEqual(JSON.parse(JSON.stringify(want)));
+    const ref = await untiledReference(server, analysisId, file, outDir);
+    expectSameSummary(results.summary, ref.summary);
     expect(results.features.total).toBe(ref.featureFile.count);
     const stored = path.join(server.dataDir, 'analyses', analysisId);
     const files = readdirSync(outDir).sort();
@@ -130,7 +102,7 @@ describe('layouts above the whole-read size in the app', () => {
       const got = decodePolygons(new Uint8Array(await res.arrayBuffer()));
       const want = queryPolygons(ix, box, 50_000);
       expect(got.total).toBe(want.total);
-      expect(sorted(got)).toEqual(sorted(want));
+      expect(polygonTexts(got)).toEqual(polygonTexts(want));
     }
     const crowded = decodePolygons(new Uint8Array(await (await designer.get(`/api/v1/analyses/${analysisId}/polygons?box=-10,-10,1010,810&max=1000`)).arrayBuffer()));
     expect(crowded.polyLayer.length).toBe(0);

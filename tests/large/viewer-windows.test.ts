@@ -13,26 +13,14 @@ import { openGdsiiTileSource } from '@/lib/layout/gdsii-tile-source';
 import { readLayoutFile } from '@/lib/layout/read';
 import { openWindowReader, queryTileSource } from '@/lib/viewer/layout-windows';
 import { buildPolygonIndex, queryPolygons } from '@/lib/viewer/polygon-index';
-import type { WirePolygons } from '@/lib/viewer/polygon-wire';
 import { queryPolygonsOffThread } from '@/lib/viewer/index-host';
 import { flatDie, hierarchicalDie, rng } from '../layout/tile-fixtures';
+import { polygonTexts } from './support';
 
 const dir = mkdtempSync(join(tmpdir(), 'trenchant-vwin-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 writeFileSync(join(dir, 'hier.gds'), hierarchicalDie());
 writeFileSync(join(dir, 'flat.gds'), flatDie(20_000));
-
-/** Each polygon as "layer/datatype:x,y;x,y…" (float32 µm from the origin, in wire order), sorted. */
-function polygonTexts(w: WirePolygons): string[] {
-  const out: string[] = [];
-  for (let r = 0; r < w.polyLayer.length; r++) {
-    const l = w.layers[w.polyLayer[r] as number]!;
-    const pts: string[] = [];
-    for (let k = w.offsets[r] as number; k < (w.offsets[r + 1] as number); k++) pts.push(`${w.coords[2 * k]},${w.coords[2 * k + 1]}`);
-    out.push(`${l.layer}/${l.datatype}:${pts.join(';')}`);
-  }
-  return out.sort();
-}
 
 describe('viewer windows from the on-disk index = the whole-layout R-tree', () => {
   for (const [name, at] of [['hier.gds', dir], ['flat.gds', dir], ['mems-die.gds', 'samples'], ['tsv-test-chip.gds', 'samples']] as const) {

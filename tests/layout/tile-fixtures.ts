@@ -3,18 +3,10 @@ import { GdsiiWriter } from '@/lib/layout/gdsii-writer';
 import type { BboxDbu } from '@/lib/layout/bbox';
 import type { TileSource } from '@/lib/layout/tile-source';
 import type { FlatLayout } from '@/lib/layout/types';
+import { mulberry32 } from '@/lib/random';
 
 /** Deterministic pseudo-random numbers (mulberry32). */
-export function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+export const rng = mulberry32;
 
 /**
  * A hierarchical die: a top cell with 600 own rectangles (bucket grid) and a few huge ones, SREFs rotated by 30°,

@@ -6,13 +6,14 @@ import Database from 'better-sqlite3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDatabase, setDbForTesting } from '@/db/client';
 import { createApiToken, revokeApiToken } from '@/lib/auth/api-tokens';
-import { can, TEAM_ROLES, type TeamAction, type TeamRole } from '@/lib/auth/permissions';
+import { TEAM_ROLES, type TeamRole } from '@/lib/auth/permissions';
 import { DEMO_TEAM, DEMO_USERS } from '@/lib/data/demo';
 import { TestClient } from '../support/http';
+import { itAllowsWhatThePermissionTableSays, type RouteCase } from '../support/route-roles';
 import { startTestServer, type TestServer } from '../support/server';
 import { PROJECT, signInAs, startAnalysis, TEST_MODEL, TRENCH_SETTINGS, trenchLayoutGds, upload, uploadRevision, waitFor } from './support';
 
-type Route = { name: string; method: 'GET' | 'POST'; path: () => string; action: TeamAction | 'project.read'; body?: () => BodyInit | Record<string, unknown>; okStatus: number[] };
+type Route = RouteCase<BodyInit | Record<string, unknown>>;
 
 describe('authorisation of the pipeline routes', () => {
   let server: TestServer;
@@ -67,16 +68,7 @@ describe('authorisation of the pipeline routes', () => {
   });
   afterAll(() => server?.stop());
 
-  for (const role of TEAM_ROLES) {
-    it(`${role}: allowed exactly what the permission table says`, async () => {
-      for (const r of routes) {
-        const res = await call(clients[role], r);
-        const allowed = r.action === 'project.read' || can(role, r.action);
-        if (allowed) expect(r.okStatus, `${role} ${r.name}`).toContain(res.status);
-        else expect(res.status, `${role} ${r.name}`).toBe(403);
-      }
-    });
-  }
+  itAllowsWhatThePermissionTableSays(routes, clients, (client, r) => call(client, r));
 
   it('anonymous callers get 401 on every route', async () => {
     const anon = new TestClient(server.baseUrl);

@@ -6,15 +6,14 @@
  * width (mean-width note).
  */
 import { readFileSync } from 'node:fs';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { FeatureTableBuilder, type FeatureTable, type Grid } from '@/lib/geometry';
 import { parseProcessModel, type ProcessModel } from '@/lib/etch';
-import { startAnalysisHelper } from '@/lib/pipeline/analysis-helper';
 import { predictInThreads } from '@/lib/pipeline/parallel-predict';
 import { predictFeatureTable } from '@/lib/pipeline/predict-features';
 import type { FeatureResultTable } from '@/lib/pipeline/feature-results';
-import type { TaskThread } from '@/lib/threads/sync-helper';
 import { mulberry32 } from '@/lib/random';
+import { failingHelper, useAnalysisHelper } from '../support/helper-thread';
 
 const grid: Grid = { x0Um: 0, y0Um: 0, pixelUm: 10, nx: 100, ny: 80 };
 
@@ -65,11 +64,7 @@ function plain(t: FeatureResultTable): Record<string, unknown> {
   return Object.fromEntries(Object.entries(t).map(([k, v]) => [k, ArrayBuffer.isView(v) ? Array.from(v as unknown as ArrayLike<number>) : k === 'features' ? (v as FeatureTable).count : v]));
 }
 
-let helper: TaskThread | null = null;
-beforeAll(() => {
-  helper = startAnalysisHelper();
-});
-afterAll(() => helper?.close());
+const helperThread = useAnalysisHelper();
 
 describe('predictInThreads', () => {
   for (const name of ['deep-trench-continuous.json', 'cyclic-via.json', 'minimal-neutral-limited.json']) {
@@ -82,7 +77,7 @@ describe('predictInThreads', () => {
       expect(want.noteLists.length).toBeGreaterThan(1); // the seeded rows do produce notes
       for (const chunk of [64, 1000, 6_000]) {
         const info: { helperRows?: number } = {};
-        const got = predictInThreads(f, eff, grid, m, opts, helper, { minRows: 0, chunk, info });
+        const got = predictInThreads(f, eff, grid, m, opts, helperThread(), { minRows: 0, chunk, info });
         expect(plain(got), `chunk ${chunk}`).toEqual(plain(want));
         expect(got.features).toBe(f);
       }
@@ -97,7 +92,7 @@ describe('predictInThreads', () => {
     let rows = 0;
     for (let k = 0; k < 20 && rows === 0; k++) {
       const info: { helperRows?: number } = {};
-      expect(plain(predictInThreads(f, eff, grid, m, { exposedFraction: 0.3 }, helper, { minRows: 0, chunk: 256, info }))).toEqual(want);
+      expect(plain(predictInThreads(f, eff, grid, m, { exposedFraction: 0.3 }, helperThread(), { minRows: 0, chunk: 256, info }))).toEqual(want);
       rows = info.helperRows ?? 0;
     }
     expect(rows).toBeGreaterThan(0);
@@ -107,15 +102,7 @@ describe('predictInThreads', () => {
     const f = seededTable(5, 3_000);
     const eff = effectiveMap(6);
     const m = model('deep-trench-continuous.json');
-    const failing: TaskThread = {
-      post(_kind, payload) {
-        const task = payload as { next: Int32Array; owner: Uint8Array };
-        for (let k = 0; k < 2; k++) Atomics.store(task.owner, Atomics.add(task.next, 0, 1), 2);
-        return 1;
-      },
-      wait: () => null,
-      close() {},
-    };
+    const failing = failingHelper(2);
     expect(plain(predictInThreads(f, eff, grid, m, { exposedFraction: 0.2 }, failing, { minRows: 0, chunk: 100 }))).toEqual(plain(predictFeatureTable(f, eff, grid, m, { exposedFraction: 0.2 })));
   });
 
@@ -125,6 +112,6 @@ describe('predictInThreads', () => {
     const m = model('deep-trench-continuous.json');
     const one = () => predictFeatureTable(f, eff, grid, m, { exposedFraction: 0.2 });
     expect(one).toThrow(/opening #2501 .* has no measurable width/);
-    expect(() => predictInThreads(f, eff, grid, m, { exposedFraction: 0.2 }, helper, { minRows: 0, chunk: 128 })).toThrow(/opening #2501 .* has no measurable width/);
+    expect(() => predictInThreads(f, eff, grid, m, { exposedFraction: 0.2 }, helperThread(), { minRows: 0, chunk: 128 })).toThrow(/opening #2501 .* has no measurable width/);
   });
 });

@@ -4,13 +4,14 @@
  * team (works without cookies or Origin). Uses the seeded demo analysis.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { can, TEAM_ROLES, type TeamAction, type TeamRole } from '@/lib/auth/permissions';
+import { TEAM_ROLES, type TeamRole } from '@/lib/auth/permissions';
 import { mintToken, openTestDb } from '../api/tokens-db';
 import { signInAs, waitFor } from '../pipeline-server/support';
 import { TestClient } from '../support/http';
+import { itAllowsWhatThePermissionTableSays, type RouteCase } from '../support/route-roles';
 import { startTestServer, type TestServer } from '../support/server';
 
-type Route = { name: string; method: 'GET' | 'POST' | 'PUT'; path: () => string; action: TeamAction | 'project.read'; body?: () => unknown; okStatus: number[] };
+type Route = RouteCase;
 
 describe('authorisation of the review routes', () => {
   let server: TestServer;
@@ -59,16 +60,7 @@ describe('authorisation of the review routes', () => {
   });
   afterAll(() => server?.stop());
 
-  for (const role of TEAM_ROLES) {
-    it(`${role}: allowed exactly what the permission table says`, async () => {
-      for (const r of routes) {
-        const res = await call(clients[role], r);
-        const allowed = r.action === 'project.read' || can(role, r.action);
-        if (allowed) expect(r.okStatus, `${role} ${r.name}`).toContain(res.status);
-        else expect(res.status, `${role} ${r.name}`).toBe(403);
-      }
-    });
-  }
+  itAllowsWhatThePermissionTableSays(routes, clients, (client, r) => call(client, r));
 
   it('the demo analysis fits on one screen as groups with counts (issue 14)', async () => {
     const page = (await (await clients.reviewer.get(`/api/v1/analyses/${analysisId}/findings`)).json()) as { view: string; total: number; findings: number; listed: number; capped: boolean; items: { count: number }[] };

@@ -30,6 +30,7 @@ import { startTestS3, type TestS3 } from '../support/fake-s3';
 import { PROJECT_ROOT } from '../support/server';
 import { inventedResults } from '../jobs/results-store';
 import { startCountingProxy, type CountingProxy } from './proxy';
+import { pattern } from './test-bytes';
 
 const scratch = mkdtempSync(path.join(tmpdir(), 'trenchant-migrate-test-'));
 const dataDir = path.join(scratch, 'data');
@@ -38,16 +39,6 @@ let fake: TestS3;
 let proxy: CountingProxy;
 const opened: S3ObjectStore[] = [];
 let dbBytes: Buffer;
-
-function pattern(n: number, seed: number): Buffer {
-  const b = Buffer.alloc(n);
-  let s = seed >>> 0;
-  for (let i = 0; i < n; i++) {
-    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
-    b[i] = s >>> 24;
-  }
-  return b;
-}
 
 const SEED: Record<string, Buffer> = {
   'layouts/p1/r1.gds': pattern(70_000, 1),

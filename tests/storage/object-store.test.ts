@@ -21,6 +21,7 @@ import { cacheDir, readablePath, readablePathSync } from '@/lib/storage/read-cac
 import { s3ConfigFromEnv } from '@/lib/storage/s3-config';
 import { S3ObjectStore } from '@/lib/storage/s3-store';
 import { startTestS3, type TestS3 } from '../support/fake-s3';
+import { pattern, sha } from './test-bytes';
 
 const scratch = mkdtempSync(path.join(tmpdir(), 'trenchant-storage-test-'));
 let fake: TestS3;
@@ -42,18 +43,6 @@ afterAll(async () => {
   else process.env.TRENCHANT_CACHE_DIR = savedCacheDir;
   rmSync(scratch, { recursive: true, force: true });
 });
-
-/** Deterministic bytes that differ at every offset pattern (so a shifted range cannot pass). */
-function pattern(n: number, seed = 1): Buffer {
-  const b = Buffer.alloc(n);
-  let s = seed >>> 0;
-  for (let i = 0; i < n; i++) {
-    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
-    b[i] = s >>> 24;
-  }
-  return b;
-}
-const sha = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
 
 describe.each(['local', 's3'] as const)('object store: %s', (kind) => {
   const store = () => stores[kind];

@@ -11,7 +11,6 @@
  *     files once; an embedded run's files are moved into it as they are uploaded; a result recorded for a worker without the database (remote-results.ts ->
  *     finishJob) fetches every result file once; the next reads of the map and of the column file make no request.
  */
-import { createHash } from 'node:crypto';
 import { existsSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
@@ -34,6 +33,7 @@ import { startTestS3, type TestS3 } from '../support/fake-s3';
 import { startTestRedis } from '../jobs/redis-server';
 import { inventedResults, tempDb } from '../jobs/results-store';
 import { startCountingProxy, type CountingProxy } from './proxy';
+import { pattern, sha } from './test-bytes';
 
 const scratch = mkdtempSync(path.join(tmpdir(), 'trenchant-read-cache-test-'));
 const PREFIX = 'rc';
@@ -44,16 +44,6 @@ let direct: S3ObjectStore; // straight to the fake server: setting objects up is
 let cached: CachedS3ObjectStore; // through the proxy
 let db: Db;
 
-function pattern(n: number, seed: number): Buffer {
-  const b = Buffer.alloc(n);
-  let s = seed >>> 0;
-  for (let i = 0; i < n; i++) {
-    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
-    b[i] = s >>> 24;
-  }
-  return b;
-}
-const sha = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
 const tmpFilesIn = (dir: string) => (existsSync(dir) ? readdirSync(dir, { recursive: true }).map(String).filter((f) => f.includes('.tmp-')) : []);
 
 beforeAll(async () => {
