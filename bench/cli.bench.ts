@@ -43,7 +43,9 @@ function best(run: () => Run): Run {
   return a.wallS <= b.wallS ? a : b;
 }
 
-const cli = (checkout: string, args: string[]) => timed(process.execPath, ['--import', 'tsx', 'lib/cli/main.ts', ...args], checkout);
+// As `npm run cli` runs it: the launcher (compiled bundle) where the checkout has one, else the sources through tsx.
+const cli = (checkout: string, args: string[]) =>
+  timed(process.execPath, existsSync(join(checkout, 'scripts', 'cli.mjs')) ? ['scripts/cli.mjs', ...args] : ['--import', 'tsx', 'lib/cli/main.ts', ...args], checkout);
 const fmt = (r: Run) => `${r.wallS.toFixed(2)} s wall${r.cpuS !== null ? ` / ${r.cpuS.toFixed(2)} s CPU` : ''}${r.rssMiB !== null ? `, ${r.rssMiB.toFixed(0)} MiB` : ''}`;
 const load = () => loadavg().map((v) => v.toFixed(2)).join(' ');
 

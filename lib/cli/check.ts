@@ -18,9 +18,7 @@ import { parseAnalysisSettings, type FieldIssue } from '../pipeline/settings';
 import type { AnalysisSummary } from '../pipeline/summary';
 import { mapFileName } from '../pipeline/map-files';
 import { layerOption, numberOption, parseCommandArgs, printLayoutWarnings, runCommand, UsageError } from './args';
-import { openLayoutTileSource } from '../layout/open-tile-source';
 import type { TileSource } from '../layout/tile-source';
-import { runTiledAnalysis } from '../pipeline/tiled/run-tiled';
 import { startAnalysisHelper } from '../pipeline/analysis-helper';
 
 const HELP = `usage: npm run --silent cli -- check FILE --layer L/D --model MODEL.json [options]
@@ -246,7 +244,8 @@ async function check(values: Values, positionals: string[]): Promise<number> {
   // The analysis's helper thread starts now, so its start-up (module loading) overlaps reading the file.
   const helper = str('tiles') === undefined ? startAnalysisHelper() : null;
   try {
-    if (str('tiles') !== undefined) source = await openLayoutTileSource(file, topCell !== undefined ? { topCell } : {});
+    // The tiled path (its on-disk index, worker pools and queue code) is loaded only when asked for.
+    if (str('tiles') !== undefined) source = await (await import('../layout/open-tile-source')).openLayoutTileSource(file, topCell !== undefined ? { topCell } : {});
     else layout = await readLayoutFile(file, topCell !== undefined ? { topCell } : {});
   } catch (err) {
     helper?.close();
@@ -267,6 +266,7 @@ async function check(values: Values, positionals: string[]): Promise<number> {
       const spec = { kind: 'file' as const, path: resolve(file), ...(topCell !== undefined ? { topCell } : {}) };
       let tiled;
       try {
+        const { runTiledAnalysis } = await import('../pipeline/tiled/run-tiled');
         tiled = await runTiledAnalysis(source as TileSource, settings.settings, model, { tileUm, ...(marginUm !== undefined ? { marginUm } : {}), threads, spec });
       } finally {
         source?.close();
