@@ -3,10 +3,12 @@
  * window, never whole in memory) with 1 and 2 worker threads: the plan, the tile phase (read, union, coverage,
  * openings — summed over workers), re-reads for wide openings, the global stages, peak memory per worker (its heap
  * + buffers, sampled inside each job) and the process's peak RSS.
- * Run by hand: nice -n 10 npx tsx bench/tiled.bench.ts [sites] [threads,...] [verify]  (default 3163 sites² ≈ 10 M
- * polygons, threads 1,2; `verify` also runs the untiled pipeline on the whole layout and compares every value).
- * Also `npm run bench -- tiled` (environment TILED_SITES, TILED_THREADS, TILED_VERIFY=verify).
+ * Run by hand: nice -n 10 npx tsx bench/tiled.bench.ts [sites] [threads,...] [verify|-] [auto|memory|spill]
+ * (default 3163 sites² ≈ 10 M polygons, threads 1,2; `verify` also runs the untiled pipeline on the whole layout
+ * and compares every value; the last argument keeps the openings in memory or spills them, default: by count).
+ * Also `npm run bench -- tiled` (environment TILED_SITES, TILED_THREADS, TILED_VERIFY=verify, TILED_SPILL).
  */
+import { rmSync } from 'node:fs';
 import { loadavg } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { parseProcessModel } from '../lib/etch';
@@ -23,6 +25,8 @@ export default async function tiledBench(argv: string[] = []): Promise<void> {
   const sites = Number(argv[0] ?? process.env.TILED_SITES ?? 3163);
   const threadList = (argv[1] ?? process.env.TILED_THREADS ?? '1,2').split(',').map(Number);
   const verify = (argv[2] ?? process.env.TILED_VERIFY) === 'verify';
+  const spillMode = argv[3] ?? process.env.TILED_SPILL ?? 'auto';
+  const spill = spillMode === 'memory' ? null : spillMode === 'spill' ? { minOpenings: 0 } : undefined;
   const model = parseProcessModel(BENCH_MODEL);
   if (!model.ok) throw new Error('bench model invalid');
   const settings = analysisSettingsSchema.parse({ etchLayers: [{ layer: 1, datatype: 0 }], limits: { minDensity: 0.05, maxDensity: 0.5, minWidthUm: 1 } });
@@ -33,7 +37,8 @@ export default async function tiledBench(argv: string[] = []): Promise<void> {
   console.log(`layout: ${sites}² sites = ${(sites * sites / 1e6).toFixed(2)} M polygons over ${(sites * 0.01).toFixed(1)} mm square (header pass ${s(performance.now() - t)})`);
   for (const threads of threadList) {
     t = performance.now();
-    const r = await runTiledAnalysis(source, settings, model.model, { threads, spec });
+    const r = await runTiledAnalysis(source, settings, model.model, { threads, spec, ...(spill !== undefined ? { spill } : {}) });
+    if (r.featureFile) rmSync(r.featureFile.path);
     const total = performance.now() - t;
     const x = r.tiled, p = x.plan;
     console.log(`\n-- ${threads} worker thread(s) (used ${x.threads}, ${x.via}); load average ${loadavg().map((v) => v.toFixed(1)).join(' ')} --`);
@@ -42,7 +47,7 @@ export default async function tiledBench(argv: string[] = []): Promise<void> {
     console.log(`re-reads for wide openings: ${x.growJobs} (largest margin ${(x.largestMarginDbu * p.dbuUm).toFixed(0)} µm); polygons read / polygons = ${x.readAmplification}`);
     const tm = r.summary.timingsMs;
     console.log(`global stages: ${['window-density', 'effective-density', 'local-width', 'prediction', 'maps', 'flags', 'summary'].map((k) => `${k} ${s(tm[k] ?? 0)}`).join(', ')}`);
-    console.log(`openings ${r.summary.features.count}, flags ${r.summary.flags.total}; total ${s(total)}`);
+    console.log(`openings ${r.summary.features.count}, flags ${r.summary.flags.total}; ${r.featureFile ? `spilled (${r.spillCursors} runs open at most, feature file ${mb(r.featureFile.bytes)})` : 'in memory'}; total ${s(total)}`);
     console.log(`peak memory per worker (heap + buffers): ${x.peakBytesPerWorker.map(mb).join(', ')}; process peak RSS so far ${mb(process.resourceUsage().maxRSS * 1024)}`);
     if (verify) {
       // The untiled pipeline on the same polygons (materialised whole): everything must be identical.
@@ -53,7 +58,7 @@ export default async function tiledBench(argv: string[] = []): Promise<void> {
       const bytes = (a: ArrayBufferView) => Buffer.from(a.buffer, a.byteOffset, a.byteLength);
       const same =
         strip(ref.summary) === strip(r.summary) &&
-        JSON.stringify(ref.features) === JSON.stringify(r.features) &&
+        (r.featureFile !== undefined || JSON.stringify(ref.features) === JSON.stringify(r.features)) &&
         JSON.stringify(ref.flags) === JSON.stringify(r.flags) &&
         ref.maps.every((m, k) => bytes(m.values).equals(bytes((r.maps[k] as typeof m).values)));
       console.log(`untiled reference: ${s(performance.now() - t)} (stages ${Object.entries(ref.summary.timingsMs).map(([k, v]) => `${k} ${s(v)}`).join(', ')}); tiled result identical: ${same ? 'yes' : 'NO'}`);

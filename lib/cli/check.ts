@@ -4,6 +4,7 @@
  * Exit codes: 0 no error-severity flag, 1 at least one error-severity flag, 2 bad input or usage (one line on
  * stderr; with --json also one JSON object { ok: false, error } on stdout).
  */
+import { rmSync } from 'node:fs';
 import { mkdir, readFile } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
 import { formatModelIssues, parseProcessModel, type ProcessModel } from '../etch';
@@ -267,10 +268,13 @@ async function check(values: Values, positionals: string[]): Promise<number> {
       let tiled;
       try {
         const { runTiledAnalysis } = await import('../pipeline/tiled/run-tiled');
-        tiled = await runTiledAnalysis(source as TileSource, settings.settings, model, { tileUm, ...(marginUm !== undefined ? { marginUm } : {}), threads, spec });
+        // --features needs every opening in memory; otherwise many openings spill to disk (same results).
+        tiled = await runTiledAnalysis(source as TileSource, settings.settings, model, { tileUm, ...(marginUm !== undefined ? { marginUm } : {}), threads, spec, ...(values.features === true ? { spill: null } : {}) });
       } finally {
         source?.close();
       }
+      // The check prints no per-opening rows: a spilled run's feature file is not needed.
+      if (tiled.featureFile) rmSync(tiled.featureFile.path, { force: true });
       result = tiled;
       const t = tiled.tiled;
       tiledNote = `tiles            ${t.tiles} of ${num(t.plan.tileUm)} µm, margin ${num(t.plan.marginDbu * t.plan.dbuUm)} µm, ${t.growJobs} re-read(s) for wider openings, ${t.threads || 'no'} worker thread(s), ${num(t.tilePhaseMs / 1000)} s`;

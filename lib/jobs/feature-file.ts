@@ -197,55 +197,102 @@ function encodeObjects(results: readonly FeatureResult[]): EncodedFeatureFile {
 }
 
 function encodeTable(t: FeatureResultTable): EncodedFeatureFile {
-  const n = t.count;
-  const f = t.features;
-  const { header, end, body, cols: c } = columnsFor(n);
-  const copy = (dst: Float64Array, src: Float64Array) => {
-    for (let k = 0; k < n; k++) dst[k] = num(src[k] as number);
-  };
-  copy(c.xUm, f.centroidXUm);
-  copy(c.yUm, f.centroidYUm);
-  copy(c.x0Um, f.x0Um);
-  copy(c.y0Um, f.y0Um);
-  copy(c.x1Um, f.x1Um);
-  copy(c.y1Um, f.y1Um);
-  copy(c.areaUm2, f.areaUm2);
-  copy(c.widthUm, t.widthUm);
-  copy(c.lengthUm, f.lengthUm);
-  copy(c.effectiveDensity, t.effectiveDensity);
-  copy(c.depthUm, t.depthUm);
-  copy(c.aspectRatio, t.aspectRatio);
-  copy(c.marginUm, t.marginUm);
-  copy(c.overEtchUm, t.overEtchUm);
-  c.modelKind.set(t.modelKind.subarray(0, n));
-  c.reachesTarget.set(t.reachesTarget.subarray(0, n));
-  // Shape and warning indices in first-appearance order, as encodeObjects numbers them.
-  const shapeOf = new Int16Array(FEATURE_KINDS.length).fill(-1);
-  const shapes: string[] = [];
-  const warningIndex = new Map<string, number>([['', 0]]);
-  const rowText = new Map<number, number>(); // (note list, excursion bits) → warning index
-  for (let k = 0; k < n; k++) {
-    c.featureId[k] = f.id[k] as number;
-    c.depthSigmaUm[k] = (t.nulls[k] as number) & NULL_DEPTH_SIGMA ? Number.NaN : (t.depthSigmaUm[k] as number);
-    const kind = f.kind[k] as number;
-    if (shapeOf[kind] === -1) {
-      shapeOf[kind] = shapes.length;
-      shapes.push(FEATURE_KINDS[kind] as string);
+  const { header, end, body, cols } = columnsFor(t.count);
+  const rows = new TableRowEncoder();
+  rows.fill(t, cols);
+  return finishFile(header, end, body, rows.tables());
+}
+
+/** The file's columns for some rows (views into a file body, or a chunk's own arrays). */
+export type FeatureFileRowColumns = ReturnType<typeof columnsFor>['cols'];
+
+/**
+ * Result rows into file columns, with the shape and warning indices numbered in first-appearance order over all
+ * rows filled so far (as encodeObjects numbers them): one encoder fills a whole file at once, or a streamed
+ * writer's chunks in row order (feature-file-writer.ts) with the same indices.
+ */
+export class TableRowEncoder {
+  private readonly shapeOf = new Int16Array(FEATURE_KINDS.length).fill(-1);
+  private readonly shapes: string[] = [];
+  private readonly warningIndex = new Map<string, number>([['', 0]]);
+  private readonly rowText = new Map<number, number>(); // (note list, excursion bits) → warning index
+
+  /** Rows [0, t.count) of `t` into rows [0, t.count) of `c`. */
+  fill(t: FeatureResultTable, c: FeatureFileRowColumns): void {
+    const n = t.count;
+    const f = t.features;
+    const copy = (dst: Float64Array, src: Float64Array) => {
+      for (let k = 0; k < n; k++) dst[k] = num(src[k] as number);
+    };
+    copy(c.xUm, f.centroidXUm);
+    copy(c.yUm, f.centroidYUm);
+    copy(c.x0Um, f.x0Um);
+    copy(c.y0Um, f.y0Um);
+    copy(c.x1Um, f.x1Um);
+    copy(c.y1Um, f.y1Um);
+    copy(c.areaUm2, f.areaUm2);
+    copy(c.widthUm, t.widthUm);
+    copy(c.lengthUm, f.lengthUm);
+    copy(c.effectiveDensity, t.effectiveDensity);
+    copy(c.depthUm, t.depthUm);
+    copy(c.aspectRatio, t.aspectRatio);
+    copy(c.marginUm, t.marginUm);
+    copy(c.overEtchUm, t.overEtchUm);
+    c.modelKind.set(t.modelKind.subarray(0, n));
+    c.reachesTarget.set(t.reachesTarget.subarray(0, n));
+    const { shapeOf, shapes, warningIndex, rowText } = this;
+    for (let k = 0; k < n; k++) {
+      c.featureId[k] = f.id[k] as number;
+      c.depthSigmaUm[k] = (t.nulls[k] as number) & NULL_DEPTH_SIGMA ? Number.NaN : (t.depthSigmaUm[k] as number);
+      const kind = f.kind[k] as number;
+      if (shapeOf[kind] === -1) {
+        shapeOf[kind] = shapes.length;
+        shapes.push(FEATURE_KINDS[kind] as string);
+      }
+      c.shape[k] = shapeOf[kind] as number;
+      const li = t.notes[k] as number, bits = t.excursions[k] as number;
+      if (li === 0 && bits === 0) {
+        c.warnings[k] = 0;
+        continue;
+      }
+      const key = li * 8 + bits;
+      let wi = rowText.get(key);
+      if (wi === undefined) {
+        const w = [...(t.noteLists[li] as readonly string[]), ...excursionKeys(bits)].join('; ');
+        wi = warningIndex.get(w);
+        if (wi === undefined) warningIndex.set(w, (wi = warningIndex.size));
+        rowText.set(key, wi);
+      }
+      c.warnings[k] = wi;
     }
-    c.shape[k] = shapeOf[kind] as number;
-    const li = t.notes[k] as number, bits = t.excursions[k] as number;
-    if (li === 0 && bits === 0) continue;
-    const key = li * 8 + bits;
-    let wi = rowText.get(key);
-    if (wi === undefined) {
-      const w = [...(t.noteLists[li] as readonly string[]), ...excursionKeys(bits)].join('; ');
-      wi = warningIndex.get(w);
-      if (wi === undefined) warningIndex.set(w, (wi = warningIndex.size));
-      rowText.set(key, wi);
-    }
-    c.warnings[k] = wi;
   }
-  return finishFile(header, end, body, { shapes, warnings: [...warningIndex.keys()] });
+
+  tables(): FeatureFileTables {
+    return { shapes: [...this.shapes], warnings: [...this.warningIndex.keys()] };
+  }
+}
+
+/** Column offsets for `n` rows and where the string tables begin (for a writer that fills the file in place). */
+export function featureFileLayout(n: number): { header: FeatureFileHeader; end: number } {
+  return layoutFor(n);
+}
+
+/** Magic, length and header JSON (the file's first bytes; the columns start at the first column's offset). */
+export function featureFileHead(header: FeatureFileHeader, tables: FeatureFileTables): { head: Uint8Array; tables: Uint8Array } {
+  const room = header.columns[0]?.offset ?? 12;
+  const body = new Uint8Array(room);
+  const done = finishFile(header, room, body, tables);
+  return { head: done.body, tables: done.tables };
+}
+
+/** Empty columns for `n` rows (a streamed writer's chunk). */
+export function featureFileRowColumns(n: number): FeatureFileRowColumns {
+  const f64 = () => new Float64Array(n);
+  return {
+    xUm: f64(), yUm: f64(), x0Um: f64(), y0Um: f64(), x1Um: f64(), y1Um: f64(), areaUm2: f64(), widthUm: f64(), lengthUm: f64(),
+    effectiveDensity: f64(), depthUm: f64(), aspectRatio: f64(), marginUm: f64(), overEtchUm: f64(), depthSigmaUm: f64(),
+    featureId: new Int32Array(n), shape: new Uint8Array(n), modelKind: new Uint8Array(n), reachesTarget: new Uint8Array(n), warnings: new Uint32Array(n),
+  };
 }
 
 /** Both parts in one buffer (tests, small files). */

@@ -56,10 +56,23 @@ export class FlagCollector implements FlagSink {
   /**
    * Like offer, but a kept flag is only remembered as `ref` (e.g. a row of a result table) and built by the
    * `resolve` given to list(): of the many flags that rank above the cut for a while on a big layout, only the
-   * final `cap` get messages built.
+   * final `cap` get messages built. Returns whether the flag was kept (for now).
    */
-  offerDeferred(id: string, kind: FlagKind, severity: Severity, measured: number, limit: number, ref: number): void {
-    if (this.rank(id, kind, severity, measured, limit)) this.keep(severity, exceedanceOf(measured, limit), id, null, ref);
+  offerDeferred(id: string, kind: FlagKind, severity: Severity, measured: number, limit: number, ref: number): boolean {
+    if (!this.rank(id, kind, severity, measured, limit)) return false;
+    this.keep(severity, exceedanceOf(measured, limit), id, null, ref);
+    return true;
+  }
+
+  /**
+   * The refs of the deferred flags still kept (after a trim): a caller that keeps what `resolve` needs per ref
+   * (a streamed analysis, whose rows are gone once offered) can drop the rest.
+   */
+  keptRefs(): Set<number> {
+    this.trim();
+    const out = new Set<number>();
+    for (const k of this.kept) if (!k.flag) out.add(k.ref);
+    return out;
   }
 
   private keep(severity: Severity, ex: number, id: string, flag: Flag | null, ref: number): void {

@@ -128,3 +128,57 @@ export function paintFeatureColumns(c: PaintColumns, risks: Float64Array, covera
   }
   return { aspectRatio, predictedDepth, risk, depthSigma };
 }
+
+/**
+ * paintFeatureColumns over rows given a chunk at a time, in row order: each covered pixel keeps the area and
+ * float32 values of its current winner (the same rule: a later row wins unless its area is larger), so the maps
+ * equal paintFeatureColumns over all rows without keeping any row. Memory: a few values per pixel.
+ */
+export class StreamPainter {
+  private readonly ownerArea: Float64Array;
+  private readonly owned: Uint8Array;
+  private readonly maps: FeatureMaps & { depthSigma: Float32Array };
+  private anySigma = false;
+  constructor(
+    private readonly coverage: Float32Array,
+    private readonly grid: Grid,
+  ) {
+    const n = grid.nx * grid.ny;
+    this.ownerArea = new Float64Array(n);
+    this.owned = new Uint8Array(n);
+    const nan = () => new Float32Array(n).fill(Number.NaN);
+    this.maps = { aspectRatio: nan(), predictedDepth: nan(), risk: nan(), depthSigma: nan() };
+  }
+
+  add(t: FeatureResultTable, risks: Float64Array): void {
+    const f = t.features, { coverage, ownerArea, owned } = this;
+    const { x0Um, y0Um, pixelUm, nx, ny } = this.grid;
+    const { aspectRatio, predictedDepth, risk, depthSigma } = this.maps;
+    for (let k = 0; k < t.count; k++) {
+      if (!((t.nulls[k] as number) & NULL_DEPTH_SIGMA)) this.anySigma = true;
+      const area = f.areaUm2[k] as number;
+      const i0 = Math.max(0, Math.floor(((f.x0Um[k] as number) - x0Um) / pixelUm));
+      const i1 = Math.min(nx - 1, Math.ceil(((f.x1Um[k] as number) - x0Um) / pixelUm) - 1);
+      const j0 = Math.max(0, Math.floor(((f.y0Um[k] as number) - y0Um) / pixelUm));
+      const j1 = Math.min(ny - 1, Math.ceil(((f.y1Um[k] as number) - y0Um) / pixelUm) - 1);
+      for (let j = j0; j <= j1; j++) {
+        const row = j * nx;
+        for (let i = i0; i <= i1; i++) {
+          const p = row + i;
+          if (!((coverage[p] as number) > 0)) continue;
+          if (owned[p] && area > (ownerArea[p] as number)) continue;
+          owned[p] = 1;
+          ownerArea[p] = area;
+          aspectRatio[p] = t.aspectRatio[k] as number;
+          predictedDepth[p] = t.depthUm[k] as number;
+          risk[p] = risks[k] as number;
+          depthSigma[p] = t.depthSigmaUm[k] as number;
+        }
+      }
+    }
+  }
+
+  finish(): FeatureMaps {
+    return { ...this.maps, depthSigma: this.anySigma ? this.maps.depthSigma : null };
+  }
+}

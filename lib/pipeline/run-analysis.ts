@@ -32,6 +32,9 @@ import { featureRisk, paintColumnsOf, type FeatureMaps } from './result-maps';
 import { effectiveOffloaded, paintOffloaded } from './offload';
 import { resolveKernel, resolveLimits, type AnalysisSettings } from './settings';
 import { buildSummary, type AnalysisSummary } from './summary';
+import { runStreamedStages, type StreamedFeatures } from './streamed-stages';
+import { noFeatureResults } from './feature-results';
+import { calibratedRangeOf } from './predict-features';
 
 export const ANALYSIS_STAGES = [
   { stage: 'coverage', weight: 0.15 },
@@ -125,8 +128,11 @@ class StageClock {
  */
 export interface PrecomputedStages {
   coverage: Float32Array;
-  /** Openings with ids in the untiled order (stitched by the tiled analysis). */
-  features: FeatureTable;
+  /**
+   * Openings with ids in the untiled order (stitched by the tiled analysis): one table, or chunks read back from a
+   * spill file (streamed-stages.ts; the result's featureTable is then empty and the rows go to `onResults`).
+   */
+  features: FeatureTable | StreamedFeatures;
   /** Polygons of the etch layers (what selectEtchLayers would count). */
   polygonCount: number;
 }
@@ -197,12 +203,35 @@ function analyse(layout: FlatLayout, settings: AnalysisSettings, model: ProcessM
   // thread while the worker starts and takes chunks; its time then counts under 'features'. A tiled run brings its
   // stitched openings instead (precomputed).
   let localWidth: Float32Array | null = null;
+  const given = precomputed?.features;
+  const streamed = given && 'forEachChunk' in given ? given : null;
   const featureTable = regions
     ? featureTableInThreads(regions, { polarity, regionDbu }, {}, () => (localWidth = localWidthFromCoverage(coverage, grid)), helper)
-    : (precomputed as PrecomputedStages).features;
+    : (given as FeatureTable);
 
   clock.begin('local-width');
   localWidth ??= localWidthFromCoverage(coverage, grid);
+
+  if (streamed) {
+    // Prediction, maps, flags and summary tallies in one pass over the chunks (timed as 'prediction').
+    clock.begin('prediction');
+    const collector = new FlagCollector(settings.maxListedFlags);
+    addWindowFlags(collector, windows, frame.dieBboxUm, limits, settings.severities);
+    const out = runStreamedStages(
+      streamed,
+      { effective, coverage, grid, model: predictionModel, exposedFraction: globalDensity, limits, severities: settings.severities, maxListedFlags: settings.maxListedFlags, onTick: (done, total) => clock.within(total > 0 ? done / total : 1) },
+      collector,
+    );
+    clock.begin('flags');
+    const flags = collector.list(out.resolve);
+    clock.begin('summary');
+    const maps = buildMaps(grid, coverage, windows, effective, localWidth, out.painted, { kernelLengthUm: kernel.lengthUm, kernel: kernel.kind, modelName: model.name, modelVersion: model.version });
+    const summary = buildSummary({ layout, etchLayerNames: settings.etchLayers.map(layerName), polygonCount: (precomputed as PrecomputedStages).polygonCount, frame, settings, limits, model, globalDensity, windows, effective, kernel, results: out.tally, flagCounts: collector.counts, flagTotal: collector.total, flagsListed: flags.length, timingsMs: clock.timingsMs });
+    clock.finish();
+    summary.timingsMs = { ...clock.timingsMs };
+    const none = noFeatureResults(calibratedRangeOf(predictionModel));
+    return { summary, featureTable: none, features: [], flags, maps };
+  }
 
   clock.begin('prediction');
   const results = predictInThreads(featureTable, effective, grid, predictionModel, {
@@ -226,11 +255,7 @@ function analyse(layout: FlatLayout, settings: AnalysisSettings, model: ProcessM
   clock.begin('flags');
   const collector = new FlagCollector(settings.maxListedFlags);
   const sev = settings.severities;
-  for (const w of windows) {
-    const input: WindowSetInput = { ...w, dieBboxUm: frame.dieBboxUm };
-    collector.add(windowDensityFlags(input, limits, sev));
-    collector.add(densityGradientFlags(input, limits.maxGradient, sev));
-  }
+  addWindowFlags(collector, windows, frame.dieBboxUm, limits, sev);
   const resolve = offerTableFlags(collector, results, limits, sev, (k) => clock.within(k / Math.max(1, n)));
   const flags = collector.list(resolve);
 
@@ -267,6 +292,14 @@ function analyse(layout: FlatLayout, settings: AnalysisSettings, model: ProcessM
     flags,
     maps,
   };
+}
+
+function addWindowFlags(collector: FlagCollector, windows: WindowDensity[], dieBboxUm: [number, number, number, number], limits: ReturnType<typeof resolveLimits>, sev: AnalysisSettings['severities']): void {
+  for (const w of windows) {
+    const input: WindowSetInput = { ...w, dieBboxUm };
+    collector.add(windowDensityFlags(input, limits, sev));
+    collector.add(densityGradientFlags(input, limits.maxGradient, sev));
+  }
 }
 
 /**

@@ -104,81 +104,102 @@ export interface SummaryInput {
   windows: WindowDensity[];
   effective: Float32Array;
   kernel: ResolvedKernel;
-  results: FeatureResultTable;
+  /** Per-opening results: a whole table, or a streamed analysis's tally of them. */
+  results: FeatureResultTable | RowTally;
   flagCounts: FlagCounts;
   flagTotal: number;
   flagsListed: number;
   timingsMs: Record<string, number>;
 }
 
-function depthSummary(t: FeatureResultTable): DepthSummary | null {
-  if (t.count === 0) return null;
-  let minUm = Infinity, maxUm = -Infinity, weighted = 0, area = 0, reaching = 0;
-  const byModelKind: DepthSummary['byModelKind'] = {};
-  const areas = t.features.areaUm2;
-  for (let k = 0; k < t.count; k++) {
-    const d = t.depthUm[k] as number;
-    minUm = Math.min(minUm, d);
-    maxUm = Math.max(maxUm, d);
-    weighted += d * (areas[k] as number);
-    area += areas[k] as number;
-    if (t.reachesTarget[k]) reaching++;
-    const mk = byModelKind[MODEL_KINDS[t.modelKind[k] as number] as 'trench' | 'hole'] ??= { count: 0, minUm: Infinity, maxUm: -Infinity };
-    mk.count++;
-    mk.minUm = Math.min(mk.minUm, d);
-    mk.maxUm = Math.max(mk.maxUm, d);
-  }
-  return { minUm, maxUm, spreadUm: maxUm - minUm, meanUm: area > 0 ? weighted / area : minUm, reachingTarget: reaching, byModelKind };
-}
-
 /**
- * Openings per shape, and each distinct note or excursion with how many openings it concerns, listed in the order
- * each first appears over the rows (so ties in the summary's count order come out as they always did).
+ * The summary's per-opening figures (depth range and mean, shapes, notes and excursions), added up over result
+ * rows in row order: over a whole table at once, or chunk by chunk (a streamed analysis) with the same sums in the
+ * same order, so both give the same figures. Chunks' `notes` index one growing list of note lists (`noteLists` of
+ * the last chunk added must hold them all).
  */
-function rowTallies(t: FeatureResultTable): { byShape: Record<string, number>; warnings: Map<string, number> } {
-  const shapeCount = new Uint32Array(FEATURE_KINDS.length);
-  const shapeFirst: number[] = [];
-  const listCount = new Uint32Array(t.noteLists.length);
-  const excursionCount = new Uint32Array(EXCURSION_BITS.length);
+export class RowTally {
+  count = 0;
+  private minUm = Infinity;
+  private maxUm = -Infinity;
+  private weighted = 0;
+  private area = 0;
+  private reaching = 0;
+  private readonly byModelKind: DepthSummary['byModelKind'] = {};
+  private readonly shapeCount = new Uint32Array(FEATURE_KINDS.length);
+  private readonly shapeFirst: number[] = [];
+  private readonly listCount: number[] = [];
+  private readonly excursionCount = new Uint32Array(EXCURSION_BITS.length);
   // Keys in first-appearance order; counts added at the end.
-  const warnings = new Map<string, number>();
-  const listSeen = new Uint8Array(t.noteLists.length);
-  let excursionSeen = 0;
-  const kinds = t.features.kind;
-  for (let k = 0; k < t.count; k++) {
-    const s = kinds[k] as number;
-    if (shapeCount[s]!++ === 0) shapeFirst.push(s);
-    const li = t.notes[k] as number;
-    if (li !== 0) {
-      listCount[li]!++;
-      if (!listSeen[li]) {
-        listSeen[li] = 1;
-        for (const w of t.noteLists[li] as readonly string[]) if (!warnings.has(w)) warnings.set(w, 0);
+  private readonly warnings = new Map<string, number>();
+  private readonly listSeen: boolean[] = [];
+  private excursionSeen = 0;
+  private noteLists: readonly (readonly string[])[] = [];
+
+  add(t: FeatureResultTable): void {
+    this.noteLists = t.noteLists;
+    const areas = t.features.areaUm2, kinds = t.features.kind;
+    const { byModelKind, shapeCount, shapeFirst, listCount, listSeen, warnings, excursionCount } = this;
+    for (let k = 0; k < t.count; k++) {
+      const d = t.depthUm[k] as number;
+      this.minUm = Math.min(this.minUm, d);
+      this.maxUm = Math.max(this.maxUm, d);
+      this.weighted += d * (areas[k] as number);
+      this.area += areas[k] as number;
+      if (t.reachesTarget[k]) this.reaching++;
+      const mk = byModelKind[MODEL_KINDS[t.modelKind[k] as number] as 'trench' | 'hole'] ??= { count: 0, minUm: Infinity, maxUm: -Infinity };
+      mk.count++;
+      mk.minUm = Math.min(mk.minUm, d);
+      mk.maxUm = Math.max(mk.maxUm, d);
+      const s = kinds[k] as number;
+      if (shapeCount[s]!++ === 0) shapeFirst.push(s);
+      const li = t.notes[k] as number;
+      if (li !== 0) {
+        listCount[li] = (listCount[li] ?? 0) + 1;
+        if (!listSeen[li]) {
+          listSeen[li] = true;
+          for (const w of t.noteLists[li] as readonly string[]) if (!warnings.has(w)) warnings.set(w, 0);
+        }
+      }
+      const bits = t.excursions[k] as number;
+      if (bits === 0) continue;
+      for (let e = 0; e < EXCURSION_BITS.length; e++) {
+        const [q, bit] = EXCURSION_BITS[e] as [string, number];
+        if (!(bits & bit)) continue;
+        excursionCount[e]!++;
+        if (!(this.excursionSeen & bit)) {
+          this.excursionSeen |= bit;
+          const key = `${q} outside the calibrated range`;
+          if (!warnings.has(key)) warnings.set(key, 0);
+        }
       }
     }
-    const bits = t.excursions[k] as number;
-    if (bits === 0) continue;
+    this.count += t.count;
+  }
+
+  depth(): DepthSummary | null {
+    if (this.count === 0) return null;
+    const { minUm, maxUm } = this;
+    return { minUm, maxUm, spreadUm: maxUm - minUm, meanUm: this.area > 0 ? this.weighted / this.area : minUm, reachingTarget: this.reaching, byModelKind: this.byModelKind };
+  }
+
+  /**
+   * Openings per shape, and each distinct note or excursion with how many openings it concerns, listed in the order
+   * each first appears over the rows (so ties in the summary's count order come out as they always did).
+   */
+  tallies(): { byShape: Record<string, number>; warnings: Map<string, number> } {
+    const warnings = new Map(this.warnings);
+    for (let li = 1; li < this.noteLists.length; li++) {
+      for (const w of this.noteLists[li] as readonly string[]) warnings.set(w, (warnings.get(w) ?? 0) + (this.listCount[li] ?? 0));
+    }
     for (let e = 0; e < EXCURSION_BITS.length; e++) {
-      const [q, bit] = EXCURSION_BITS[e] as [string, number];
-      if (!(bits & bit)) continue;
-      excursionCount[e]!++;
-      if (!(excursionSeen & bit)) {
-        excursionSeen |= bit;
-        const key = `${q} outside the calibrated range`;
-        if (!warnings.has(key)) warnings.set(key, 0);
-      }
+      const key = `${(EXCURSION_BITS[e] as [string, number])[0]} outside the calibrated range`;
+      if (this.excursionCount[e]) warnings.set(key, (warnings.get(key) ?? 0) + (this.excursionCount[e] as number));
     }
+    const byShape: Record<string, number> = {};
+    for (const s of this.shapeFirst) byShape[FEATURE_KINDS[s] as string] = this.shapeCount[s] as number;
+    return { byShape, warnings };
   }
-  for (let li = 1; li < t.noteLists.length; li++) {
-    for (const w of t.noteLists[li] as readonly string[]) warnings.set(w, (warnings.get(w) ?? 0) + (listCount[li] as number));
-  }
-  for (let e = 0; e < EXCURSION_BITS.length; e++) {
-    const key = `${(EXCURSION_BITS[e] as [string, number])[0]} outside the calibrated range`;
-    if (excursionCount[e]) warnings.set(key, (warnings.get(key) ?? 0) + (excursionCount[e] as number));
-  }
-  const byShape: Record<string, number> = {};
-  for (const s of shapeFirst) byShape[FEATURE_KINDS[s] as string] = shapeCount[s] as number;
-  return { byShape, warnings };
 }
 
 export function buildSummary(x: SummaryInput): AnalysisSummary {
@@ -188,7 +209,13 @@ export function buildSummary(x: SummaryInput): AnalysisSummary {
     if (v < effMin) effMin = v;
     if (v > effMax) effMax = v;
   }
-  const { byShape, warnings } = rowTallies(x.results);
+  let tally = x.results;
+  if (!(tally instanceof RowTally)) {
+    const whole = new RowTally();
+    whole.add(tally);
+    tally = whole;
+  }
+  const { byShape, warnings } = tally.tallies();
   const bySeverity: Record<Severity, number> = { error: 0, warning: 0, info: 0 };
   for (const kind of Object.keys(x.flagCounts) as FlagKind[]) {
     for (const s of Object.keys(bySeverity) as Severity[]) bySeverity[s] += x.flagCounts[kind][s];
@@ -224,8 +251,8 @@ export function buildSummary(x: SummaryInput): AnalysisSummary {
     globalDensity: x.globalDensity,
     windows,
     effectiveDensity: { kernel: x.kernel.kind, lengthUm: x.kernel.lengthUm, outside: x.kernel.outside, min: effMin, max: effMax },
-    features: { count: x.results.count, byShape },
-    depth: depthSummary(x.results),
+    features: { count: tally.count, byShape },
+    depth: tally.depth(),
     flags: { total: x.flagTotal, listed: x.flagsListed, bySeverity, counts: x.flagCounts },
     model,
     limits: x.limits,

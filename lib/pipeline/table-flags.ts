@@ -52,3 +52,54 @@ export function offerTableFlags(collector: FlagCollector, t: FeatureResultTable,
     return found;
   };
 }
+
+/**
+ * The flags of a streamed analysis, whose result rows are offered a chunk at a time and then dropped: rows are
+ * offered like offerTableFlags does (ref = the row's index over the whole analysis), and each row that has a flag
+ * kept for now is copied (its check input, a few numbers) so the listed flags can be built at the end. Copies of
+ * rows no longer kept are dropped now and then, so memory stays near the collector's cap.
+ */
+export class StreamedTableFlags {
+  private readonly rows = new Map<number, FeatureCheckInput>();
+  private readonly input: FeatureCheckInput = { featureId: 0, shape: '', modelKind: 'trench', bboxUm: [0, 0, 0, 0], centroidUm: [0, 0], widthUm: 0, depthUm: 0, overEtchUm: 0, excursions: [], depthSigmaUm: null };
+  private readonly noExcursions = excursionsOf(null, 0, 0, 0);
+  constructor(
+    private readonly collector: FlagCollector,
+    private readonly limits: ResolvedLimits,
+    private readonly severities: SeverityMap | undefined,
+    private readonly cap: number,
+  ) {}
+
+  /** Offers rows [0, t.count) of a chunk whose first row is row `base` of the analysis. */
+  offer(t: FeatureResultTable, base: number, onRow?: (k: number) => void): void {
+    const input = this.input;
+    let ref = 0, kept = false;
+    const sink: FlagSink = { offer: (id, kind, severity, measured, limit) => void (this.collector.offerDeferred(id, kind, severity, measured, limit, ref) && (kept = true)) };
+    for (let k = 0; k < t.count; k++) {
+      if (onRow && k % 4096 === 0) onRow(k);
+      ref = base + k;
+      kept = false;
+      fillInput(input, t, k, this.noExcursions);
+      featureFlagsInto(sink, input, this.limits, this.severities);
+      if (kept) this.rows.set(ref, { ...input, bboxUm: [...input.bboxUm] as FeatureCheckInput['bboxUm'], centroidUm: [...input.centroidUm] as FeatureCheckInput['centroidUm'] });
+    }
+    if (this.rows.size > 4 * this.cap + 4096) this.prune();
+  }
+
+  private prune(): void {
+    const keep = this.collector.keptRefs();
+    for (const ref of this.rows.keys()) if (!keep.has(ref)) this.rows.delete(ref);
+  }
+
+  /** The resolver for collector.list(). */
+  resolver(): (ref: number, id: string) => Flag {
+    return (ref, id) => {
+      const input = this.rows.get(ref);
+      if (!input) throw new Error(`flag ${id}: row ${ref} was not kept`);
+      let found: Flag | undefined;
+      featureFlagsInto({ offer: (fid, _k, _s, _m, _l, build) => void (fid === id && (found = build())) }, input, this.limits, this.severities);
+      if (!found) throw new Error(`flag ${id} not raised again by row ${ref}`);
+      return found;
+    };
+  }
+}

@@ -29,7 +29,7 @@
  * may delete.
  */
 import { statSync } from 'node:fs';
-import { mkdir, open, rename, unlink } from 'node:fs/promises';
+import { copyFile, mkdir, open, rename, unlink } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { MessagePort } from 'node:worker_threads';
 import { encodeFeatureFile, FEATURE_FILE_NAME } from '../jobs/feature-file';
@@ -42,6 +42,7 @@ import type { TileSource } from '../layout/tile-source';
 import { readsThroughIndex, wholeReadLimitBytes } from '../layout/whole-read-limit';
 import { headerLayout } from './tiled/plan';
 import { analyseInTiles } from './worker-tiled';
+import type { TiledAnalysisResult } from './tiled/run-tiled';
 import { AnalysisInputError, isAbortError } from './errors';
 import type { Flag } from './flags';
 import type { GridMap, GridUnit } from './grid-file';
@@ -129,6 +130,7 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
   task.port?.on('message', onMessage);
   const post = progressPoster(task.port);
   let source: TileSource | null = null;
+  let spilledFile: { path: string; count: number; bytes: number } | null = null;
   try {
     const settings = parseAnalysisSettings(task.settings);
     if (!settings.ok) return { ok: false, code: 'bad-settings', message: `settings: ${settings.issues.map((i) => `${i.path || '(root)'}: ${i.message}`).join('; ')}`, issues: settings.issues };
@@ -180,19 +182,24 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
       : runAnalysis(layout, budgeted.settings, model.model, hooks);
     source?.close();
     source = null;
-    const featureBytes = encodeFeatureFile(result.featureTable);
+    // A tiled run with many openings spilled them and wrote its feature file itself (a temporary file we own).
+    spilledFile = (result as Partial<TiledAnalysisResult>).featureFile ?? null;
+    const featureBytes = spilledFile ? { body: null, tables: null, byteLength: spilledFile.bytes } : encodeFeatureFile(result.featureTable);
+    const featureCount = spilledFile ? spilledFile.count : result.featureTable.count;
     // TRGRID1 header + metadata stays far below 64 KiB; float32 samples dominate.
     const mapBytes = result.maps.reduce((n, m) => n + m.grid.nx * m.grid.ny * 4 + 65_536, 0);
     const planned = featureBytes.byteLength + mapBytes;
     if (task.maxResultBytes !== undefined && planned > task.maxResultBytes) {
       const label = task.resultBudgetLabel ?? `the limit of ${(task.maxResultBytes / MiB).toFixed(0)} MiB per analysis`;
-      return { ok: false, code: 'over-budget', message: overBudgetMessage(planned, label, `${result.featureTable.count} openings, ${result.maps.length} maps`) };
+      return { ok: false, code: 'over-budget', message: overBudgetMessage(planned, label, `${featureCount} openings, ${result.maps.length} maps`) };
     }
     if (isCancelled()) return cancelled();
 
     await mkdir(task.outDir, { recursive: true });
-    await writeAtomic(join(task.outDir, FEATURE_FILE_NAME), [featureBytes.body, featureBytes.tables]);
-    const featureFile: FeatureFileInfo = { file: FEATURE_FILE_NAME, count: result.featureTable.count, bytes: featureBytes.byteLength };
+    if (spilledFile) await moveInto(spilledFile.path, join(task.outDir, FEATURE_FILE_NAME));
+    else if (featureBytes.body && featureBytes.tables) await writeAtomic(join(task.outDir, FEATURE_FILE_NAME), [featureBytes.body, featureBytes.tables]);
+    spilledFile = null;
+    const featureFile: FeatureFileInfo = { file: FEATURE_FILE_NAME, count: featureCount, bytes: featureBytes.byteLength };
     const maps: MapFile[] = [];
     for (const [n, map] of result.maps.entries()) {
       if (isCancelled()) return cancelled();
@@ -210,6 +217,7 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
     throw err;
   } finally {
     source?.close();
+    if (spilledFile) await unlink(spilledFile.path).catch(() => undefined);
     task.port?.off('message', onMessage);
     task.port?.close();
   }
@@ -225,6 +233,25 @@ function analysisMemoryMb(): number {
 
 function overBudgetMessage(planned: number, label: string, what: string): string {
   return `the results would take ${(planned / MiB).toFixed(1)} MiB (${what}), above ${label}; choose a coarser pixel (pixel.sizeUm or pixel.maxPixels) or fewer density windows, or ask a team admin to raise the limit`;
+}
+
+/** A finished file into place: renamed when on the same file system, else copied under a temporary name first. */
+async function moveInto(from: string, path: string): Promise<void> {
+  try {
+    await rename(from, path);
+    return;
+  } catch (err) {
+    if ((err as NodeJS.ErrnoException).code !== 'EXDEV') throw err;
+  }
+  const tmp = `${path}.tmp-${process.pid}`;
+  try {
+    await copyFile(from, tmp);
+    await rename(tmp, path);
+  } catch (err) {
+    await unlink(tmp).catch(() => undefined);
+    throw err;
+  }
+  await unlink(from).catch(() => undefined);
 }
 
 /** Write the parts in order to a temporary name, then rename (a reader never sees half a file). */

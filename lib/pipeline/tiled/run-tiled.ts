@@ -13,12 +13,18 @@
  * TILE_SHARE of the run, runAnalysis the rest. Cancel (signal / isCancelled) is checked whenever a job ends;
  * worker threads are then terminated.
  */
-import { availableParallelism } from 'node:os';
+import { randomBytes } from 'node:crypto';
+import { rmSync } from 'node:fs';
+import { availableParallelism, tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { FeatureFileWriter } from '../../jobs/feature-file-writer';
+import { OpeningSpill } from './spill';
 import type { ProcessModel } from '../../etch';
 import { coverageFromDifferences } from '../../geometry/raster';
 import type { TileSource } from '../../layout/tile-source';
 import { AnalysisAbortedError } from '../errors';
 import { runAnalysis, type AnalysisHooks, type AnalysisResult } from '../run-analysis';
+import type { StreamedFeatures } from '../streamed-stages';
 import type { AnalysisSettings } from '../settings';
 import { headerLayout, planTiles, type PlanOptions, type TilePlan } from './plan';
 import type { TileSourceSpec } from './sources';
@@ -28,6 +34,8 @@ import { PENDING_SIZE, type TileJob, type TileJobResult } from './tile-work';
 import { permuteFeatureTable } from '../../geometry/feature-table';
 
 const TILE_SHARE = 0.6;
+/** Rows per chunk of a spilled run's per-opening stages. */
+const SPILL_CHUNK = 65_536;
 
 export interface TiledOptions extends PlanOptions {
   /** Worker threads for the tile jobs (needs `spec`); 0 = on the calling thread. Default: 2 when a spec is given. */
@@ -36,7 +44,18 @@ export interface TiledOptions extends PlanOptions {
   spec?: TileSourceSpec;
   /** Redis URL for tile jobs on the queue (default TRENCHANT_REDIS_URL; null = never). Needs a non-memory spec. */
   queueUrl?: string | null;
+  /**
+   * Openings to a spill file once there are `minOpenings` of them (default TRENCHANT_SPILL_OPENINGS or
+   * DEFAULT_SPILL_OPENINGS), in `dir` (default TRENCHANT_SPILL_DIR or the system's temporary folder); null = keep
+   * them in memory whatever their number. A spilled run streams the per-opening stages (streamed-stages.ts): its
+   * featureTable and features are empty, and its rows are in the feature file `result.featureFile` (written at
+   * `featureFile`, default a temporary file the caller must move or delete). Same results either way.
+   */
+  spill?: { dir?: string; minOpenings?: number; featureFile?: string; chunkRows?: number } | null;
 }
+
+/** Openings above which a tiled run spills (≈ 400 B each in memory: ≈ 0.4 GB). */
+export const DEFAULT_SPILL_OPENINGS = 1_000_000;
 
 export interface TiledStats {
   plan: TilePlan;
@@ -56,7 +75,20 @@ export interface TiledStats {
   readAmplification: number;
 }
 
-export type TiledAnalysisResult = AnalysisResult & { tiled: TiledStats };
+export type TiledAnalysisResult = AnalysisResult & {
+  tiled: TiledStats;
+  /** Set when the openings were spilled: the feature file holding every row (the caller owns it). */
+  featureFile?: { path: string; count: number; bytes: number };
+  /** Spilled runs: cursors open at once in the merge (≈ jobs per tile row). */
+  spillCursors?: number;
+};
+
+function spillSettings(opt: TiledOptions['spill']): { dir: string; minOpenings: number; chunkRows: number; featureFile?: string } | null {
+  if (opt === null) return null;
+  const env = Number(process.env.TRENCHANT_SPILL_OPENINGS);
+  const envMin = process.env.TRENCHANT_SPILL_OPENINGS?.trim() && Number.isInteger(env) && env >= 0 ? env : DEFAULT_SPILL_OPENINGS;
+  return { dir: opt?.dir ?? process.env.TRENCHANT_SPILL_DIR ?? tmpdir(), minOpenings: opt?.minOpenings ?? envMin, chunkRows: Math.max(1, opt?.chunkRows ?? SPILL_CHUNK), ...(opt?.featureFile ? { featureFile: opt.featureFile } : {}) };
+}
 
 export async function runTiledAnalysis(source: TileSource, settings: AnalysisSettings, model: ProcessModel, opts: AnalysisHooks & TiledOptions = {}): Promise<TiledAnalysisResult> {
   const { onProgress, signal, isCancelled } = opts;
@@ -79,6 +111,19 @@ export async function runTiledAnalysis(source: TileSource, settings: AnalysisSet
   let growJobs = 0, largestMargin = plan.marginDbu, polygonsRead = 0;
   const coreJobs = plan.ntx * plan.nty;
   let coreDone = 0;
+  const spillAt = spillSettings(opts.spill);
+  let spill: OpeningSpill | null = null;
+  let held = 0;
+  const keep = (part: FeaturePart) => {
+    if (spill) return spill.add(part);
+    parts.push(part);
+    held += part.features.count;
+    if (spillAt && held >= spillAt.minOpenings && held > 0) {
+      spill = new OpeningSpill(spillAt.dir);
+      for (const p of parts) spill.add(p);
+      parts.length = 0;
+    }
+  };
   onProgress?.('coverage', 0);
   try {
     const queue: TileJob[] = [];
@@ -94,17 +139,17 @@ export async function runTiledAnalysis(source: TileSource, settings: AnalysisSet
       // Two partial views reported by one tile can be the same opening: keep it once (its key names it). Only
       // re-reads can repeat one: a core job measures each complete opening it owns once, and a pending partial view
       // never joins an opening that was complete in the same read.
-      if (r.kind === 'core') parts.push({ features: r.features, keys: r.keys });
+      if (r.kind === 'core') keep({ features: r.features, keys: r.keys });
       else {
-        const keep: number[] = [];
+        const fresh: number[] = [];
         for (let i = 0; i < r.features.count; i++) {
           const name = `${r.keys[2 * i]}:${r.keys[2 * i + 1]}`;
           if (!measured.has(name)) {
             measured.add(name);
-            keep.push(i);
+            fresh.push(i);
           }
         }
-        parts.push({ features: permuteFeatureTable(r.features, Uint32Array.from(keep)), keys: keep.flatMap((i) => [r.keys[2 * i] as number, r.keys[2 * i + 1] as number]) });
+        keep({ features: permuteFeatureTable(r.features, Uint32Array.from(fresh)), keys: fresh.flatMap((i) => [r.keys[2 * i] as number, r.keys[2 * i + 1] as number]) });
       }
       for (const k of ['read', 'union', 'raster', 'features'] as const) jobMs[k] += r.stats.ms[k];
       polygonsRead += r.stats.polygons;
@@ -135,24 +180,43 @@ export async function runTiledAnalysis(source: TileSource, settings: AnalysisSet
       if (firstError) throw firstError;
       if (cancelled()) throw new AnalysisAbortedError(coreDone < coreJobs ? 'coverage' : 'features');
     }
+  } catch (err) {
+    (spill as OpeningSpill | null)?.close();
+    throw err;
   } finally {
     await executor.close();
   }
   const tilePhaseMs = performance.now() - t0;
   const coverage = Float32Array.from(coverageFromDifferences(acc, plan.grid, nx));
-  // Empties `parts`: the per-tile tables go before the global stages (≈ 110 bytes per opening).
-  const features = stitchFeatures(parts);
-  const result = runAnalysis(
-    headerLayout(source.header),
-    settings,
-    model,
-    {
-      onProgress: (stage, f) => onProgress?.(stage, TILE_SHARE + (1 - TILE_SHARE) * f),
-      ...(signal ? { signal } : {}),
-      ...(isCancelled ? { isCancelled } : {}),
-    },
-    { coverage, features, polygonCount: plan.polygonCount },
-  );
+  const hooks: AnalysisHooks = {
+    onProgress: (stage, f) => onProgress?.(stage, TILE_SHARE + (1 - TILE_SHARE) * f),
+    ...(signal ? { signal } : {}),
+    ...(isCancelled ? { isCancelled } : {}),
+  };
+  let result: AnalysisResult;
+  let featureFile: TiledAnalysisResult['featureFile'];
+  let spillCursors = 0;
+  const spilled = spill as OpeningSpill | null;
+  if (spilled) {
+    const path = spillAt?.featureFile ?? join(spillAt?.dir ?? tmpdir(), `trenchant-features-${process.pid}-${randomBytes(6).toString('hex')}.trfeat`);
+    const writer = new FeatureFileWriter(path, spilled.count);
+    try {
+      const streamed: StreamedFeatures = { count: spilled.count, forEachChunk: (each) => spilled.forEachChunk(spillAt?.chunkRows ?? SPILL_CHUNK, each), onResults: (t) => writer.write(t) };
+      result = runAnalysis(headerLayout(source.header), settings, model, hooks, { coverage, features: streamed, polygonCount: plan.polygonCount });
+      featureFile = { path, count: spilled.count, bytes: writer.finish() };
+      spillCursors = spilled.peakCursors;
+    } catch (err) {
+      writer.close();
+      rmSync(path, { force: true });
+      throw err;
+    } finally {
+      spilled.close();
+    }
+  } else {
+    // Empties `parts`: the per-tile tables go before the global stages (≈ 110 bytes per opening).
+    const features = stitchFeatures(parts);
+    result = runAnalysis(headerLayout(source.header), settings, model, hooks, { coverage, features, polygonCount: plan.polygonCount });
+  }
   const round = (v: number) => Math.round(v * 10) / 10;
   const timings = result.summary.timingsMs;
   // The tile phase did the coverage and features stages' work; runAnalysis only took the stitched results.
@@ -170,5 +234,5 @@ export async function runTiledAnalysis(source: TileSource, settings: AnalysisSet
     peakBytesPerWorker: executor.peakBytes(),
     readAmplification: plan.polygonCount > 0 ? Math.round((polygonsRead / plan.polygonCount) * 1000) / 1000 : 1,
   };
-  return Object.assign(result, { tiled });
+  return Object.assign(result, { tiled }, featureFile ? { featureFile, spillCursors } : {});
 }

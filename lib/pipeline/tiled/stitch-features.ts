@@ -30,17 +30,26 @@ export function stitchFeatures(parts: FeaturePart[]): FeatureTable {
   }
   const all = concatFeatureTables(parts.map((p) => p.features));
   parts.length = 0;
-  const idx = new Uint32Array(m);
-  for (let i = 0; i < m; i++) idx[i] = i;
-  const y0 = all.y0Um, x0 = all.x0Um, cx = all.centroidXUm;
-  idx.sort((a, b) => (y0[a] as number) - (y0[b] as number) || (x0[a] as number) - (x0[b] as number) || (cx[a] as number) - (cx[b] as number) || (cell[a] as number) - (cell[b] as number) || (rank[a] as number) - (rank[b] as number));
-  const out = permuteFeatureTable(all, idx);
+  const out = permuteFeatureTable(all, keyedOrder(all, cell, rank));
   for (let i = 0; i < m; i++) out.id[i] = i + 1;
   return out;
 }
 
+/**
+ * Rows [0, t.count) in id order: bbox lower edge, left edge, centroid x, then (cell, rank). The spill's merge
+ * (spill.ts) compares rows the same way.
+ */
+export function keyedOrder(t: FeatureTable, cell: ArrayLike<number>, rank: ArrayLike<number>): Uint32Array {
+  const m = t.count;
+  const idx = new Uint32Array(m);
+  for (let i = 0; i < m; i++) idx[i] = i;
+  const y0 = t.y0Um, x0 = t.x0Um, cx = t.centroidXUm;
+  idx.sort((a, b) => (y0[a] as number) - (y0[b] as number) || (x0[a] as number) - (x0[b] as number) || (cx[a] as number) - (cx[b] as number) || (cell[a] as number) - (cell[b] as number) || (rank[a] as number) - (rank[b] as number));
+  return idx;
+}
+
 /** Columns per feature in a packed part (every FeatureTable column) and the two key numbers after them. */
-const PACKED_COLUMNS = featureColumns(emptyFeatureTable(0)).length;
+export const PACKED_COLUMNS = featureColumns(emptyFeatureTable(0)).length;
 
 /**
  * Features and keys in one Float64Array for crossing a thread or queue boundary: the feature table's columns one
