@@ -140,7 +140,17 @@ export function isLocalMaximum(edges: Float64Array, x: number, y: number, d: num
     angles[n++] = Math.atan2(ey, ex);
   }
   if (n < 2) return false;
-  const a = angles.subarray(0, n).sort();
+  // Insertion sort: a handful of sites (a typed-array sort of a fresh subarray cost more than the rest of the test).
+  const a = angles;
+  for (let k = 1; k < n; k++) {
+    const v = a[k] as number;
+    let q = k - 1;
+    while (q >= 0 && (a[q] as number) > v) {
+      a[q + 1] = a[q] as number;
+      q--;
+    }
+    a[q + 1] = v;
+  }
   let gap = (a[0] as number) + 2 * Math.PI - (a[n - 1] as number);
   for (let k = 1; k < n; k++) gap = Math.max(gap, (a[k] as number) - (a[k - 1] as number));
   return corner ? gap < Math.PI - 1e-9 : gap <= Math.PI + 1e-9;
