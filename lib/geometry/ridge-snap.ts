@@ -174,40 +174,57 @@ function consider(px: number, py: number): void {
 const sol: [number, number] = [0, 0];
 /** Radius of the last solved triple. */
 let solvedR = 0;
-const Js = new Float64Array(9), Fs = new Float64Array(3);
 
 /** Newton's method for the point equidistant (radius r) to sites a, b, c, from the origin with r = r0; null when it
- * leaves twice the move bound (the triple has no vertex nearby). */
+ * leaves twice the move bound (the triple has no vertex nearby). Each row of the Jacobian is (∂g/∂x, ∂g/∂y, −1);
+ * kept in locals (this runs some 16 million iterations on the bench layout). */
 function solveTriple(a: number, b: number, c: number, r0: number, maxMove: number): [number, number] | null {
   let px = 0, py = 0, r = r0;
-  const J = Js, F = Fs;
+  const k0 = kind[a] as number, a0 = sa[a] as number, b0 = sb[a] as number, c0 = sc[a] as number;
+  const k1 = kind[b] as number, a1 = sa[b] as number, b1 = sb[b] as number, c1 = sc[b] as number;
+  const k2 = kind[c] as number, a2 = sa[c] as number, b2 = sb[c] as number, c2 = sc[c] as number;
   for (let it = 0; it < 12; it++) {
-    for (let k = 0; k < 3; k++) {
-      const s = k === 0 ? a : k === 1 ? b : c;
-      let g: number, gx: number, gy: number;
-      if (kind[s] === 0) {
-        gx = sa[s] as number;
-        gy = sb[s] as number;
-        g = gx * px + gy * py - (sc[s] as number);
-      } else {
-        const ex = px - (sa[s] as number), ey = py - (sb[s] as number);
-        g = Math.sqrt(ex * ex + ey * ey);
-        if (g === 0) return null;
-        gx = ex / g;
-        gy = ey / g;
-      }
-      F[k] = g - r;
-      J[3 * k] = gx;
-      J[3 * k + 1] = gy;
-      J[3 * k + 2] = -1;
+    let g0: number, gx0: number, gy0: number, g1: number, gx1: number, gy1: number, g2: number, gx2: number, gy2: number;
+    if (k0 === 0) {
+      gx0 = a0;
+      gy0 = b0;
+      g0 = gx0 * px + gy0 * py - c0;
+    } else {
+      const ex = px - a0, ey = py - b0;
+      g0 = Math.sqrt(ex * ex + ey * ey);
+      if (g0 === 0) return null;
+      gx0 = ex / g0;
+      gy0 = ey / g0;
+    }
+    if (k1 === 0) {
+      gx1 = a1;
+      gy1 = b1;
+      g1 = gx1 * px + gy1 * py - c1;
+    } else {
+      const ex = px - a1, ey = py - b1;
+      g1 = Math.sqrt(ex * ex + ey * ey);
+      if (g1 === 0) return null;
+      gx1 = ex / g1;
+      gy1 = ey / g1;
+    }
+    if (k2 === 0) {
+      gx2 = a2;
+      gy2 = b2;
+      g2 = gx2 * px + gy2 * py - c2;
+    } else {
+      const ex = px - a2, ey = py - b2;
+      g2 = Math.sqrt(ex * ex + ey * ey);
+      if (g2 === 0) return null;
+      gx2 = ex / g2;
+      gy2 = ey / g2;
     }
     // Solve J·δ = −F by Cramer's rule.
-    const det = det3(J[0]!, J[1]!, J[2]!, J[3]!, J[4]!, J[5]!, J[6]!, J[7]!, J[8]!);
+    const det = det3(gx0, gy0, -1, gx1, gy1, -1, gx2, gy2, -1);
     if (!(Math.abs(det) > 1e-12)) return null;
-    const f0 = -F[0]!, f1 = -F[1]!, f2 = -F[2]!;
-    const dx = det3(f0, J[1]!, J[2]!, f1, J[4]!, J[5]!, f2, J[7]!, J[8]!) / det;
-    const dy = det3(J[0]!, f0, J[2]!, J[3]!, f1, J[5]!, J[6]!, f2, J[8]!) / det;
-    const dr = det3(J[0]!, J[1]!, f0, J[3]!, J[4]!, f1, J[6]!, J[7]!, f2) / det;
+    const f0 = -(g0 - r), f1 = -(g1 - r), f2 = -(g2 - r);
+    const dx = det3(f0, gy0, -1, f1, gy1, -1, f2, gy2, -1) / det;
+    const dy = det3(gx0, f0, -1, gx1, f1, -1, gx2, f2, -1) / det;
+    const dr = det3(gx0, gy0, f0, gx1, gy1, f1, gx2, gy2, f2) / det;
     px += dx;
     py += dy;
     r += dr;

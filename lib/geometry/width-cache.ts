@@ -12,8 +12,9 @@ import type { Box } from './types';
 import type { WidthResult } from './widths';
 
 export interface WidthCacheEntry {
-  /** Canonical form: ring count, then per ring its point count and its points (x, y relative to the bbox corner). */
-  shape: Float64Array;
+  /** Canonical form: ring count, then per ring its point count and its points (x, y relative to the bbox corner). A
+   * plain array: small typed arrays are allocated off the JS heap, which made storing cost more than measuring. */
+  shape: number[];
   result: WidthResult;
 }
 
@@ -119,7 +120,7 @@ export function lookup(cache: WidthCache, coords: ArrayLike<number>, rings: [num
   return undefined;
 }
 
-function sameShape(shape: Float64Array): boolean {
+function sameShape(shape: number[]): boolean {
   if (shape.length !== canonLength) return false;
   for (let k = 0; k < canonLength; k++) if (shape[k] !== canonS[k]) return false;
   return true;
@@ -127,5 +128,7 @@ function sameShape(shape: Float64Array): boolean {
 
 /** Stores the result for the shape of the last (missed) lookup. */
 export function store(cache: WidthCache, result: WidthResult): void {
-  cache.set(freeKey, { shape: canonS.slice(0, canonLength), result });
+  const shape: number[] = [];
+  for (let k = 0; k < canonLength; k++) shape.push(canonS[k] as number);
+  cache.set(freeKey, { shape, result });
 }
