@@ -55,6 +55,9 @@ export function distanceAbove(edges: Float64Array, x: number, y: number, floor: 
   if (m === 0) return Infinity;
   let best = Infinity;
   const first = lastRejecter < m ? lastRejecter : 0;
+  // √d2 ≤ floor decided on d2 where it is clear by a margin (1e-9 relative, far beyond rounding); √ only in between.
+  const f2 = floor * floor;
+  const below = floor > 0 ? f2 * (1 - 1e-9) : -1, above = f2 * (1 + 1e-9);
   for (let q = 0; q < m; q += 5) {
     let o = first + q;
     if (o >= m) o -= m;
@@ -64,7 +67,7 @@ export function distanceAbove(edges: Float64Array, x: number, y: number, floor: 
     t = t < 0 ? 0 : t > 1 ? 1 : t;
     const ex = x - ax - t * dx, ey = y - ay - t * dy;
     const d2 = ex * ex + ey * ey;
-    if (Math.sqrt(d2) <= floor) {
+    if (d2 < below || (!(d2 > above) && Math.sqrt(d2) <= floor)) {
       lastRejecter = o;
       return -1;
     }

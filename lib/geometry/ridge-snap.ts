@@ -40,8 +40,10 @@ function addCandidate(n: number, k: number, a: number, b: number, c: number, dis
  * (callers restrict their search region; always < d). On success writes `snapped` and returns true.
  */
 export function snapToRidge(edges: Float64Array, x: number, y: number, d: number, reach: number, maxMove: number): boolean {
-  // Candidate sites within d + reach, relative to (x, y).
+  // Candidate sites within d + reach, relative to (x, y); end points clearly beyond (squared distance over (d + reach)²
+  // by a 1e-9 relative margin, far beyond rounding) are passed over without a √.
   let n = 0;
+  const far2 = (d + reach) * (d + reach) * (1 + 1e-9);
   for (let o = 0; o < edges.length; o += 5) {
     const ax = (edges[o] as number) - x, ay = (edges[o + 1] as number) - y, dx = edges[o + 2] as number, dy = edges[o + 3] as number;
     const l2 = edges[o + 4] as number;
@@ -62,9 +64,15 @@ export function snapToRidge(edges: Float64Array, x: number, y: number, d: number
       n = addCandidate(n, 0, nx, ny, c, lineDist);
     }
     // End point sites.
-    const pa = Math.sqrt(ax * ax + ay * ay), pb = Math.sqrt((ax + dx) * (ax + dx) + (ay + dy) * (ay + dy));
-    if (pa <= d + reach) n = addCandidate(n, 1, ax, ay, 0, pa);
-    if (pb <= d + reach) n = addCandidate(n, 1, ax + dx, ay + dy, 0, pb);
+    const pa2 = ax * ax + ay * ay, pb2 = (ax + dx) * (ax + dx) + (ay + dy) * (ay + dy);
+    if (!(pa2 > far2)) {
+      const pa = Math.sqrt(pa2);
+      if (pa <= d + reach) n = addCandidate(n, 1, ax, ay, 0, pa);
+    }
+    if (!(pb2 > far2)) {
+      const pb = Math.sqrt(pb2);
+      if (pb <= d + reach) n = addCandidate(n, 1, ax + dx, ay + dy, 0, pb);
+    }
   }
   // Nearest MAX_SITES sites.
   let m = 0;
@@ -126,6 +134,8 @@ const angles = new Float64Array(256);
  */
 export function isLocalMaximum(edges: Float64Array, x: number, y: number, d: number): boolean {
   const tol = 1e-9 * (1 + d);
+  // Far sites are told apart on the squared distance (a 1e-9 relative margin, far beyond rounding) without a √.
+  const far2 = (d + tol) * (d + tol) * (1 + 1e-9);
   let n = 0, corner = false;
   for (let o = 0; o < edges.length && n < angles.length; o += 5) {
     const ax = edges[o] as number, ay = edges[o + 1] as number, dx = edges[o + 2] as number, dy = edges[o + 3] as number;
@@ -134,8 +144,8 @@ export function isLocalMaximum(edges: Float64Array, x: number, y: number, d: num
     const inside = t > 0 && t < 1;
     t = t < 0 ? 0 : t > 1 ? 1 : t;
     const ex = x - ax - t * dx, ey = y - ay - t * dy;
-    const e = Math.sqrt(ex * ex + ey * ey);
-    if (e > d + tol) continue;
+    const e2 = ex * ex + ey * ey;
+    if (e2 > far2 || Math.sqrt(e2) > d + tol) continue;
     if (!inside) corner = true;
     angles[n++] = Math.atan2(ey, ex);
   }
