@@ -6,7 +6,7 @@
  * which can be self-centred and narrower than every plateau in chunky unions.
  */
 import { climbed, climbToMaximum } from './disk-search';
-import { distanceAbove, distanceToEdges } from './edge-distance';
+import { distanceAbove, distanceToEdges, hypot2 } from './edge-distance';
 import { stableSortBy } from './index-sort';
 import type { ManhattanLines } from './manhattan-lines';
 import { isLocalMaximum, snapToRidge, snapped } from './ridge-snap';
@@ -19,13 +19,11 @@ const DIR_Y = Float64Array.from({ length: 16 }, (_, k) => Math.sin((k * Math.PI)
 let localsS = new Int32Array(64), climbFromS = new Int32Array(64);
 
 /**
- * Radius (dbu) of the smallest self-centred disk, at most maxD. `cand` lists the maximal centres in increasing node
+ * Radius (dbu) of the smallest self-centred disk, at most maxD. `cand[0..m)` lists the maximal centres in increasing node
  * order, `top` flags those that are local maxima of the lattice (≥ their 8 neighbours); `root` is D at the nodes.
  */
-export function smallestSelfCentred(L: ManhattanLines, edges: Float64Array, root: Float64Array, cand: Int32Array, top: Uint8Array, maxD: number): number {
-  const { xs, ys } = L;
-  const nx = xs.length;
-  const m = cand.length;
+export function smallestSelfCentred(L: ManhattanLines, edges: Float64Array, root: Float64Array, cand: Int32Array, m: number, top: Uint8Array, maxD: number): number {
+  const { xs, ys, nx } = L;
   if (localsS.length < m) localsS = new Int32Array(Math.max(m, 2 * localsS.length));
   const locals = localsS;
   let nl = 0;
@@ -53,7 +51,7 @@ export function smallestSelfCentred(L: ManhattanLines, edges: Float64Array, root
           climbFromS = grown;
         }
         climbFromS[nClimb++] = c;
-      } else found = !coveredAt(cand, root, xs, ys, edges, xs[ci] as number, ys[cj] as number, dc);
+      } else found = !coveredAt(cand, m, root, xs, nx, ys, edges, xs[ci] as number, ys[cj] as number, dc);
     }
     if (found) minD = dc;
     g = g1;
@@ -69,7 +67,7 @@ export function smallestSelfCentred(L: ManhattanLines, edges: Float64Array, root
     const dv = snap ? (snapped[2] as number) : climbToMaximum(edges, xs[ci] as number, ys[cj] as number, h);
     const vx = (snap ? snapped[0] : climbed[0]) as number, vy = (snap ? snapped[1] : climbed[1]) as number;
     if (!(dv < minD) || !isLocalMaximum(edges, vx, vy, dv)) continue;
-    if (!coveredAt(cand, root, xs, ys, edges, vx, vy, dv)) minD = dv;
+    if (!coveredAt(cand, m, root, xs, nx, ys, edges, vx, vy, dv)) minD = dv;
   }
   return minD;
 }
@@ -83,9 +81,9 @@ function coverFound(edges: Float64Array, cx: number, cy: number, dc: number, sx:
   const floor = dc * (1 + 1e-9);
   let x = sx, y = sy;
   let d = distanceToEdges(edges, x, y);
-  let m = d - Math.hypot(x - cx, y - cy);
+  let m = d - hypot2(x - cx, y - cy);
   if (m >= 0) return true;
-  const h0 = Math.hypot(x - cx, y - cy) / 4;
+  const h0 = hypot2(x - cx, y - cy) / 4;
   let h = h0;
   for (let it = 0; it < 120 && h > h0 * 1e-5; it++) {
     let moved = false;
@@ -94,7 +92,7 @@ function coverFound(edges: Float64Array, cx: number, cy: number, dc: number, sx:
       const px = x + (DIR_X[k] as number) * h, py = y + (DIR_Y[k] as number) * h;
       const e = distanceAbove(edges, px, py, floor);
       if (e < 0) continue;
-      const mm = e - Math.hypot(px - cx, py - cy);
+      const mm = e - hypot2(px - cx, py - cy);
       if (mm > m) {
         x = px;
         y = py;
@@ -114,11 +112,10 @@ function coverFound(edges: Float64Array, cx: number, cy: number, dc: number, sx:
  * Whether a disk larger than d contains (x, y): a maximal node's (every node's disk lies in one of theirs), or one
  * found by coverFound from the node that came closest.
  */
-function coveredAt(cand: Int32Array, root: Float64Array, xs: Float64Array, ys: Float64Array, edges: Float64Array, x: number, y: number, d: number): boolean {
-  const nx = xs.length;
+function coveredAt(cand: Int32Array, m: number, root: Float64Array, xs: Float64Array, nx: number, ys: Float64Array, edges: Float64Array, x: number, y: number, d: number): boolean {
   let near = -1, nearMargin = -Infinity;
   const floor = d * (1 + 1e-9);
-  for (let k = 0; k < cand.length; k++) {
+  for (let k = 0; k < m; k++) {
     const q = cand[k] as number;
     const db = root[q] as number;
     if (db <= floor) continue;

@@ -27,10 +27,10 @@ let fS = new Float64Array(0), dS = new Float64Array(0), zS = new Float64Array(0)
  * above y are all inside; per row that is "both rows' cells inside" (ok) at the column left and right of x.
  */
 export function interiorMask(L: ManhattanLines): Uint8Array {
-  const { xs, ys, bx, by, cellIn } = L;
-  const nx = xs.length, ny = ys.length, ncx = bx.length - 1, ncy = by.length - 1;
+  const { xs, ys, nx, ny, bx, by, cellIn } = L;
+  const ncx = L.nbx - 1, ncy = L.nby - 1;
   if (maskS.length < nx * ny) maskS = new Uint8Array(Math.max(nx * ny, 2 * maskS.length));
-  const mask = maskS.subarray(0, nx * ny).fill(0);
+  const mask = maskS.fill(0, 0, nx * ny);
   if (rowLo.length < ny) {
     rowLo = new Int32Array(2 * ny);
     rowHi = new Int32Array(2 * ny);
@@ -89,11 +89,13 @@ export function interiorMask(L: ManhattanLines): Uint8Array {
   return mask;
 }
 
-/** Squared distance from each node to the nearest non-interior node (0 there), positions xs × ys; after interiorMask. */
-export function distanceTransform(mask: Uint8Array, xs: Float64Array, ys: Float64Array): Float64Array {
-  const nx = xs.length, ny = ys.length;
+/**
+ * Squared distance from each interior node to the nearest non-interior node, positions xs × ys (nx × ny); after
+ * interiorMask. Only the interior nodes' entries are meaningful.
+ */
+export function distanceTransform(mask: Uint8Array, xs: Float64Array, ys: Float64Array, nx: number, ny: number): Float64Array {
   if (d2S.length < nx * ny) d2S = new Float64Array(Math.max(nx * ny, 2 * d2S.length));
-  const out = d2S.subarray(0, nx * ny);
+  const out = d2S;
   // Columns: binary input, so the nearest non-interior node above or below (two scans), over the column's interior
   // span and the non-interior node on each side of it (nothing beyond can be nearer).
   for (let i = 0; i < nx; i++) {

@@ -28,8 +28,7 @@ let gapXS = new Float64Array(0), gapYS = new Float64Array(0);
  * as corners are tried).
  */
 export function largestDisk(L: ManhattanLines, edges: Float64Array, root: Float64Array, best: number, rowMax: Float64Array, rowLo: Int32Array, rowHi: Int32Array, maximal: Uint8Array): number {
-  const { xs, ys } = L;
-  const nx = xs.length, ny = ys.length;
+  const { xs, ys, nx, ny } = L;
   const near = L.h * (1 + 1e-9);
   // Gaps up to the refinement step count; wider ones lie where D does not change along them and add nothing.
   if (gapXS.length < nx) gapXS = new Float64Array(2 * nx);

@@ -32,13 +32,13 @@ let candS = new Int32Array(0), topS = new Uint8Array(0), maximalS = new Uint8Arr
 
 /** minWidth and maxWidth (dbu) of the opening whose exact edges are `edges` (edgeList form), on lattice L. */
 export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWidth: number; maxWidth: number } | null {
-  const { xs, ys } = L;
-  const nx = xs.length, ny = ys.length, nodes = nx * ny;
+  const { xs, ys, nx, ny } = L;
+  const nodes = nx * ny;
   const mask = interiorMask(L);
-  const d2 = distanceTransform(mask, xs, ys);
+  const d2 = distanceTransform(mask, xs, ys, nx, ny);
   if (rootS.length < nodes) rootS = new Float64Array(Math.max(nodes, 2 * rootS.length));
   if (rowMaxS.length < ny) rowMaxS = new Float64Array(2 * ny);
-  const root = rootS.subarray(0, nodes).fill(0), rowMax = rowMaxS;
+  const root = rootS.fill(0, 0, nodes), rowMax = rowMaxS;
   // D at the interior nodes (0 elsewhere), its largest value per row and overall.
   let best = 0;
   for (let j = 0; j < ny; j++) {
@@ -61,7 +61,7 @@ export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWi
     topS = new Uint8Array(candS.length);
     maximalS = new Uint8Array(candS.length);
   }
-  const maximal = maximalS.subarray(0, nodes).fill(0);
+  const maximal = maximalS.fill(0, 0, nodes);
   let m = 0;
   for (let j = 1; j + 1 < ny; j++) {
     const yj = ys[j] as number, dyl = yj - (ys[j - 1] as number), dyu = (ys[j + 1] as number) - yj;
@@ -80,8 +80,7 @@ export function manhattanWidths(L: ManhattanLines, edges: Float64Array): { minWi
       candS[m++] = q;
     }
   }
-  const cand = candS.subarray(0, m);
   const maxD = largestDisk(L, edges, root, best, rowMax, rowLo, rowHi, maximal);
-  const minD = smallestSelfCentred(L, edges, root, cand, topS, maxD);
+  const minD = smallestSelfCentred(L, edges, root, candS, m, topS, maxD);
   return { minWidth: 2 * minD, maxWidth: 2 * maxD };
 }

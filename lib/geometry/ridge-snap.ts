@@ -111,10 +111,11 @@ export function snapToRidge(edges: Float64Array, x: number, y: number, d: number
     }
   }
   // Medial-axis vertices: equidistant to three sites.
+  tripleIn[0] = d;
+  tripleIn[1] = maxMove;
   for (let a = 0; a < m; a++) for (let b = a + 1; b < m; b++) for (let c = b + 1; c < m; c++) {
-    const p = solveTriple(a, b, c, d, maxMove);
     // D there is at most the triple's radius: only a radius above the best so far can win.
-    if (p && solvedR > best.d) consider(p[0], p[1]);
+    if (solveTriple(a, b, c) && (sol[2] as number) > best.d) consider(sol[0] as number, sol[1] as number);
   }
   if (!best.found || !isLocalMaximum(edges, x + best.px, y + best.py, best.d)) return false;
   snapped[0] = x + best.px;
@@ -181,14 +182,15 @@ function consider(px: number, py: number): void {
   }
 }
 
-const sol: [number, number] = [0, 0];
-/** Radius of the last solved triple. */
-let solvedR = 0;
+/** solveTriple's input (start radius r0, move bound) and result (x, y, radius): typed slots, not arguments or
+ * module variables, so the millions of calls do not box a number each (garbage collection was 8 % of the time). */
+const tripleIn = new Float64Array(2), sol = new Float64Array(3);
 
-/** Newton's method for the point equidistant (radius r) to sites a, b, c, from the origin with r = r0; null when it
- * leaves twice the move bound (the triple has no vertex nearby). Each row of the Jacobian is (∂g/∂x, ∂g/∂y, −1);
- * kept in locals (this runs some 16 million iterations on the bench layout). */
-function solveTriple(a: number, b: number, c: number, r0: number, maxMove: number): [number, number] | null {
+/** Newton's method for the point equidistant (radius r) to sites a, b, c, from the origin with r = r0 (tripleIn);
+ * false when it leaves twice the move bound (the triple has no vertex nearby), else true with the point in `sol`.
+ * Each row of the Jacobian is (∂g/∂x, ∂g/∂y, −1); kept in locals (some 16 million iterations on the bench layout). */
+function solveTriple(a: number, b: number, c: number): boolean {
+  const r0 = tripleIn[0] as number, maxMove = tripleIn[1] as number;
   let px = 0, py = 0, r = r0;
   const k0 = kind[a] as number, a0 = sa[a] as number, b0 = sb[a] as number, c0 = sc[a] as number;
   const k1 = kind[b] as number, a1 = sa[b] as number, b1 = sb[b] as number, c1 = sc[b] as number;
@@ -202,7 +204,7 @@ function solveTriple(a: number, b: number, c: number, r0: number, maxMove: numbe
     } else {
       const ex = px - a0, ey = py - b0;
       g0 = Math.sqrt(ex * ex + ey * ey);
-      if (g0 === 0) return null;
+      if (g0 === 0) return false;
       gx0 = ex / g0;
       gy0 = ey / g0;
     }
@@ -213,7 +215,7 @@ function solveTriple(a: number, b: number, c: number, r0: number, maxMove: numbe
     } else {
       const ex = px - a1, ey = py - b1;
       g1 = Math.sqrt(ex * ex + ey * ey);
-      if (g1 === 0) return null;
+      if (g1 === 0) return false;
       gx1 = ex / g1;
       gy1 = ey / g1;
     }
@@ -224,13 +226,13 @@ function solveTriple(a: number, b: number, c: number, r0: number, maxMove: numbe
     } else {
       const ex = px - a2, ey = py - b2;
       g2 = Math.sqrt(ex * ex + ey * ey);
-      if (g2 === 0) return null;
+      if (g2 === 0) return false;
       gx2 = ex / g2;
       gy2 = ey / g2;
     }
     // Solve J·δ = −F by Cramer's rule.
     const det = det3(gx0, gy0, -1, gx1, gy1, -1, gx2, gy2, -1);
-    if (!(Math.abs(det) > 1e-12)) return null;
+    if (!(Math.abs(det) > 1e-12)) return false;
     const f0 = -(g0 - r), f1 = -(g1 - r), f2 = -(g2 - r);
     const dx = det3(f0, gy0, -1, f1, gy1, -1, f2, gy2, -1) / det;
     const dy = det3(gx0, f0, -1, gx1, f1, -1, gx2, f2, -1) / det;
@@ -238,19 +240,19 @@ function solveTriple(a: number, b: number, c: number, r0: number, maxMove: numbe
     px += dx;
     py += dy;
     r += dr;
-    if (!Number.isFinite(px + py + r) || r <= 0 || px * px + py * py > 4 * maxMove * maxMove) return null;
+    if (!Number.isFinite(px + py + r) || r <= 0 || px * px + py * py > 4 * maxMove * maxMove) return false;
     if (Math.abs(dx) + Math.abs(dy) + Math.abs(dr) <= 1e-12 * (1 + r0)) {
       sol[0] = px;
       sol[1] = py;
-      solvedR = r;
-      return sol;
+      sol[2] = r;
+      return true;
     }
   }
   // Not settled to 1e-12 (rounding): the last iterate is still a candidate, checked on the exact distance.
   sol[0] = px;
   sol[1] = py;
-  solvedR = r;
-  return sol;
+  sol[2] = r;
+  return true;
 }
 
 function det3(a: number, b: number, c: number, d: number, e: number, f: number, g: number, h: number, i: number): number {

@@ -66,7 +66,7 @@ function compareRings(buf: Float64Array, a: number, b: number): number {
 /** Canonical form of the rings into module scratch (canonS[0..canonLength)); returns its hash (0 ≤ h < 2^30). */
 function canonicalise(coords: ArrayLike<number>, rings: [number, number][], bbox: Box): number {
   let total = 0;
-  for (const [s, e] of rings) total += e - s;
+  for (let ri = 0; ri < rings.length; ri++) total += rings[ri]![1] - rings[ri]![0];
   ensure(1 + rings.length + 2 * total);
   canonS[0] = rings.length;
   if (rings.length === 1) canonLength = writeRing(coords, rings[0]![0], rings[0]![1], bbox[0], bbox[1], 1);
@@ -77,7 +77,8 @@ function canonicalise(coords: ArrayLike<number>, rings: [number, number][], bbox
     canonS = tmp;
     const offs: number[] = [];
     let o = 0;
-    for (const [s, e] of rings) {
+    for (let ri = 0; ri < rings.length; ri++) {
+      const s = rings[ri]![0], e = rings[ri]![1];
       offs.push(o);
       o = writeRing(coords, s, e, bbox[0], bbox[1], o);
     }

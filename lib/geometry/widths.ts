@@ -97,7 +97,8 @@ const CACHE_LIMIT = 200_000;
  */
 export function shapeKey(coords: ArrayLike<number>, rings: [number, number][], bbox: Box): string {
   const parts: string[] = [];
-  for (const [s, e] of rings) {
+  for (let ri = 0; ri < rings.length; ri++) {
+    const s = rings[ri]![0], e = rings[ri]![1];
     let m = s;
     for (let k = s + 1; k < e; k++) {
       const y = coords[2 * k + 1] as number, ym = coords[2 * m + 1] as number;
@@ -133,7 +134,8 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
   const bw = bbox[2] - bbox[0], bh = bbox[3] - bbox[1];
   // Rectangle (possibly cut into tile pieces): all edges axis-aligned and the area fills the bbox.
   let manhattan = true;
-  for (const [s, e] of rings) {
+  for (let ri = 0; ri < rings.length; ri++) {
+    const s = rings[ri]![0], e = rings[ri]![1];
     for (let k = s; k < e && manhattan; k++) {
       const n = k + 1 < e ? k + 1 : s;
       if ((coords[2 * k] as number) !== (coords[2 * n] as number) && (coords[2 * k + 1] as number) !== (coords[2 * n + 1] as number)) manhattan = false;
@@ -167,7 +169,8 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
 /** gcd of the vertex offsets from the bbox corner (0, 0) of rings already in the bbox frame. */
 function vertexGcd(coords: ArrayLike<number>, rings: [number, number][]): number {
   let g = 0;
-  for (const [s, e] of rings) {
+  for (let ri = 0; ri < rings.length; ri++) {
+    const s = rings[ri]![0], e = rings[ri]![1];
     for (let k = s; k < e; k++) g = gcd(gcd(g, coords[2 * k] as number), coords[2 * k + 1] as number);
   }
   return g;
@@ -180,11 +183,12 @@ const ringsS: [number, number][] = [[0, 0]];
  * scratch (valid until the next feature; the rings keep their point ranges, see localRings). */
 function toBboxFrame(coords: ArrayLike<number>, rings: [number, number][], bbox: Box): Float64Array {
   let total = 0;
-  for (const [s, e] of rings) total += e - s;
+  for (let ri = 0; ri < rings.length; ri++) total += rings[ri]![1] - rings[ri]![0];
   if (frameS.length < 2 * total) frameS = new Float64Array(Math.max(2 * total, 2 * frameS.length));
   const out = frameS;
   let o = 0;
-  for (const [s, e] of rings) {
+  for (let ri = 0; ri < rings.length; ri++) {
+    const s = rings[ri]![0], e = rings[ri]![1];
     for (let k = s; k < e; k++, o++) {
       out[2 * o] = (coords[2 * k] as number) - bbox[0];
       out[2 * o + 1] = (coords[2 * k + 1] as number) - bbox[1];
@@ -203,7 +207,8 @@ function localRings(rings: [number, number][]): [number, number][] {
   }
   const moved: [number, number][] = [];
   let o = 0;
-  for (const [s, e] of rings) {
+  for (let ri = 0; ri < rings.length; ri++) {
+    const s = rings[ri]![0], e = rings[ri]![1];
     moved.push([o, o + e - s]);
     o += e - s;
   }
