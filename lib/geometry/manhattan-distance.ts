@@ -62,12 +62,21 @@ export function interiorMask(L: ManhattanLines): Uint8Array {
     ru[j] = r < ncy ? r : -1;
     rl[j] = y === (by[r] as number) ? r - 1 : r < ncy ? r : -1;
   }
-  let okA = -1, okB = -1;
+  // Lines inside one band of the vertex grid share (a, b), hence their mask row: a row like the one before is copied,
+  // and the last row of such a run sets colHi of its interior columns when the run ends.
+  let okA = -1, okB = -1, runFrom = -1, runTo = -1;
   for (let j = 1; j + 1 < ny; j++) {
     const a = rl[j] as number, b = ru[j] as number;
     if (a < 0 || b < 0) continue;
+    if (a === okA && b === okB && runTo === j - 1) {
+      mask.copyWithin(j * nx, (j - 1) * nx, j * nx);
+      rowLo[j] = rowLo[j - 1] as number;
+      rowHi[j] = rowHi[j - 1] as number;
+      runTo = j;
+      continue;
+    }
+    if (runTo > runFrom) endRun(mask, nx, runFrom, runTo);
     if (a !== okA || b !== okB) {
-      // Lines inside one band of the vertex grid share (a, b): the flags are computed once per band.
       for (let c = 0; c < ncx; c++) ok[c] = cellIn[a * ncx + c] && cellIn[b * ncx + c] ? 1 : 0;
       okA = a;
       okB = b;
@@ -85,8 +94,16 @@ export function interiorMask(L: ManhattanLines): Uint8Array {
     }
     rowLo[j] = lo;
     rowHi[j] = hi;
+    runFrom = runTo = j;
   }
+  if (runTo > runFrom) endRun(mask, nx, runFrom, runTo);
   return mask;
+}
+
+/** Rows runFrom+1..runTo copied row runFrom: its interior columns reach down to runTo. */
+function endRun(mask: Uint8Array, nx: number, runFrom: number, runTo: number): void {
+  const line = runFrom * nx;
+  for (let i = rowLo[runFrom] as number, i1 = rowHi[runFrom] as number; i <= i1; i++) if (mask[line + i]) colHi[i] = runTo;
 }
 
 /**
@@ -95,19 +112,24 @@ export function interiorMask(L: ManhattanLines): Uint8Array {
  */
 export function distanceTransform(mask: Uint8Array, xs: Float64Array, ys: Float64Array, nx: number, ny: number): Float64Array {
   if (d2S.length < nx * ny) d2S = new Float64Array(Math.max(nx * ny, 2 * d2S.length));
-  const out = d2S;
+  // Zero first: the row pass then reads every non-interior node as 0 without looking at the mask.
+  const out = d2S.fill(0, 0, nx * ny);
+  const cl = clS, cr = crS;
   // Columns: binary input, so the nearest non-interior node above or below (two scans), over the column's interior
   // span and the non-interior node on each side of it (nothing beyond can be nearer).
   for (let i = 0; i < nx; i++) {
     const j0 = colLo[i] as number, j1 = colHi[i] as number;
     if (j0 > j1) continue;
+    if (i > 0 && cl[i] === cl[i - 1] && cr[i] === cr[i - 1]) {
+      // Same vertex-grid columns on both sides as the column before: the same mask column, the same numbers.
+      for (let j = j0; j <= j1; j++) out[j * nx + i] = out[j * nx + i - 1] as number;
+      continue;
+    }
     let last = j0 - 1;
     for (let j = j0; j <= j1; j++) {
       const q = j * nx + i;
-      if (!mask[q]) {
-        last = j;
-        out[q] = 0;
-      } else {
+      if (!mask[q]) last = j;
+      else {
         const e = (ys[j] as number) - (ys[last] as number);
         out[q] = e * e;
       }
@@ -134,9 +156,10 @@ export function distanceTransform(mask: Uint8Array, xs: Float64Array, ys: Float6
     if ((rowLo[j] as number) > (rowHi[j] as number)) continue;
     const i0 = (rowLo[j] as number) - 1, n = (rowHi[j] as number) + 2 - i0;
     const line = j * nx + i0;
-    for (let i = 0; i < n; i++) f[i] = mask[line + i] ? (out[line + i] as number) : 0;
+    for (let i = 0; i < n; i++) f[i] = out[line + i] as number;
     edt1d(f, n, d, vS, zS, xs, i0);
-    for (let i = 0; i < n; i++) if (mask[line + i]) out[line + i] = d[i] as number;
+    // Non-interior nodes get their own envelope value too; nothing reads them (the row's column input is consumed).
+    for (let i = 0; i < n; i++) out[line + i] = d[i] as number;
   }
   return out;
 }
