@@ -26,9 +26,10 @@
  * a thin sliver between its nodes. Known limit: maxWidth climbs (at most 8) from the cells whose Lipschitz bound beats
  * the best node, and a climb can stall at a neck between two corners: on the 60 k lattice openings of the bench layout
  * 4 maxWidths stay 0.02–0.5 % below a brute-force maximum (29, up to 9 % low, with the earlier 4-seed climbs). Above
- * the node cap (16·maxNodes) the uniform paths below are used. Cost ≈ 210 µs CPU per opening on those openings at load
- * 4–5 (uniform paths ≈ 150 µs in the same runs, i.e. ~1.4×; the 4-seed version ≈ 270 µs): lines and passes over a few
- * hundred to a few thousand nodes, a few snaps or climbs.
+ * the node cap (16·maxNodes) the uniform paths below are used. Cost: lines and passes over a few hundred to a few
+ * thousand nodes, a few snaps or climbs, all in buffers reused from opening to opening; on the bench dump
+ * (bench/widths-run.ts) ≈ 1.8× less CPU than the first version (≈ 210 µs per opening at load 4–5), same results bit
+ * for bit.
  *
  * Uniform paths: the feature is sampled on a node lattice (lattice.ts), D by the exact Euclidean distance transform to
  * the nearest non-interior node, T by painting the maximal disks. For Manhattan features whose vertices lie on
