@@ -68,6 +68,18 @@ export function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64
  * ridge-snap.ts once the step is small. Used from lattice nodes, uniform (refineLargestDisk) or not (manhattan-widths.ts).
  */
 export function climbToMaximum(edges: Float64Array, x: number, y: number, step: number): number {
+  // Inlined wrapper: numbers through typed slots, not boxed arguments and result (see ridge-snap.ts snapToRidge).
+  climbed[0] = x;
+  climbed[1] = y;
+  climbed[2] = step;
+  climbAt(edges);
+  return climbed[2] as number;
+}
+
+/** climbToMaximum with its start (x, y) and step read from `climbed`, the result written there. */
+function climbAt(edges: Float64Array): void {
+  let x = climbed[0] as number, y = climbed[1] as number;
+  const step = climbed[2] as number;
   let d = distanceToEdges(edges, x, y);
   let h = step;
   let snapAt = step * SNAP_STEP, justSnapped = false;
@@ -112,7 +124,6 @@ export function climbToMaximum(edges: Float64Array, x: number, y: number, step: 
   climbed[0] = useEarly ? ex : x;
   climbed[1] = useEarly ? ey : y;
   climbed[2] = useEarly ? early : d;
-  return climbed[2] as number;
 }
 
 /** Where the last climbToMaximum ended: x, y (dbu) and the exact distance there. */

@@ -5,9 +5,16 @@
 
 /** Row buffers of the transform, reused across calls (the widths lattice calls it once per feature). */
 let scratchF = new Float64Array(0), scratchD = new Float64Array(0), scratchZ = new Float64Array(0), scratchV = new Int32Array(0);
+/** Positions 0, 1, 2, … of the uniform transform's samples. */
+let scratchPos = new Float64Array(0);
 
-/** 1-D squared distance transform of f (lower envelope of parabolas), written into d. */
-function edt1d(f: Float64Array, n: number, d: Float64Array, v: Int32Array, z: Float64Array): void {
+/**
+ * 1-D squared distance transform (lower envelope of the parabolas (x − x_q)² + f(q)) of f[0..n), sampled at positions
+ * pos[off + q] (increasing; any spacing), written into d. Infinity in f marks samples with no parabola. The uniform
+ * transform below passes the positions 0, 1, 2, …, the compressed Manhattan lattice (manhattan-distance.ts) its line
+ * coordinates; on integer positions every step is exact, the same numbers as the integer form of the algorithm.
+ */
+export function edt1d(f: Float64Array, n: number, d: Float64Array, v: Int32Array, z: Float64Array, pos: Float64Array, off: number): void {
   let k = 0;
   v[0] = 0;
   z[0] = -Infinity;
@@ -19,10 +26,11 @@ function edt1d(f: Float64Array, n: number, d: Float64Array, v: Int32Array, z: Fl
       v[0] = q;
       continue;
     }
+    const xq = pos[off + q] as number;
     let s: number;
     for (;;) {
-      const vk = v[k] as number;
-      s = (fq + q * q - ((f[vk] as number) + vk * vk)) / (2 * q - 2 * vk);
+      const p = v[k] as number, xp = pos[off + p] as number;
+      s = (fq + xq * xq - ((f[p] as number) + xp * xp)) / (2 * (xq - xp));
       if (s <= (z[k] as number) && k > 0) k--;
       else break;
     }
@@ -37,9 +45,11 @@ function edt1d(f: Float64Array, n: number, d: Float64Array, v: Int32Array, z: Fl
   }
   k = 0;
   for (let q = 0; q < n; q++) {
-    while ((z[k + 1] as number) < q) k++;
-    const vk = v[k] as number;
-    d[q] = (q - vk) * (q - vk) + (f[vk] as number);
+    const xq = pos[off + q] as number;
+    while ((z[k + 1] as number) < xq) k++;
+    const p = v[k] as number;
+    const g = xq - (pos[off + p] as number);
+    d[q] = g * g + (f[p] as number);
   }
 }
 
@@ -57,6 +67,7 @@ export function squaredDistanceTransform(inside: ArrayLike<number>, nx: number, 
     scratchD = new Float64Array(2 * n + 1);
     scratchZ = new Float64Array(2 * n + 2);
     scratchV = new Int32Array(2 * n + 1);
+    scratchPos = Float64Array.from({ length: 2 * n + 1 }, (_, i) => i);
   }
   const f = scratchF, d = scratchD, z = scratchZ, v = scratchV;
   // Along columns the input is binary (0 or ∞), where the parabola envelope reduces to the squared distance to
@@ -86,7 +97,7 @@ export function squaredDistanceTransform(inside: ArrayLike<number>, nx: number, 
     for (let i = 0; i < nx; i++) if ((out[line + i] as number) !== 0) { any = true; break; }
     if (!any) continue; // an all-background row stays 0
     for (let i = 0; i < nx; i++) f[i] = out[line + i] as number;
-    edt1d(f, nx, d, v, z);
+    edt1d(f, nx, d, v, z, scratchPos, 0);
     for (let i = 0; i < nx; i++) out[line + i] = d[i] as number;
   }
   return out;

@@ -40,8 +40,25 @@ function addCandidate(n: number, k: number, a: number, b: number, c: number, dis
  * (callers restrict their search region; always < d). On success writes `snapped` and returns true.
  */
 export function snapToRidge(edges: Float64Array, x: number, y: number, d: number, reach: number, maxMove: number): boolean {
-  // Candidate sites within d + reach, relative to (x, y).
+  // A small wrapper the compiler inlines into the hot callers: the numbers go through typed slots instead of being
+  // boxed as arguments of the large function (those allocations made garbage collection a tenth of the time).
+  args[0] = x;
+  args[1] = y;
+  args[2] = d;
+  args[3] = reach;
+  args[4] = maxMove;
+  return snapAt(edges);
+}
+
+/** Numeric arguments of snapAt / localMaximumAt (see snapToRidge). */
+const args = new Float64Array(5);
+
+function snapAt(edges: Float64Array): boolean {
+  const x = args[0] as number, y = args[1] as number, d = args[2] as number, reach = args[3] as number, maxMove = args[4] as number;
+  // Candidate sites within d + reach, relative to (x, y); end points clearly beyond (squared distance over (d + reach)²
+  // by a 1e-9 relative margin, far beyond rounding) are passed over without a √.
   let n = 0;
+  const far2 = (d + reach) * (d + reach) * (1 + 1e-9);
   for (let o = 0; o < edges.length; o += 5) {
     const ax = (edges[o] as number) - x, ay = (edges[o + 1] as number) - y, dx = edges[o + 2] as number, dy = edges[o + 3] as number;
     const l2 = edges[o + 4] as number;
@@ -62,9 +79,15 @@ export function snapToRidge(edges: Float64Array, x: number, y: number, d: number
       n = addCandidate(n, 0, nx, ny, c, lineDist);
     }
     // End point sites.
-    const pa = Math.sqrt(ax * ax + ay * ay), pb = Math.sqrt((ax + dx) * (ax + dx) + (ay + dy) * (ay + dy));
-    if (pa <= d + reach) n = addCandidate(n, 1, ax, ay, 0, pa);
-    if (pb <= d + reach) n = addCandidate(n, 1, ax + dx, ay + dy, 0, pb);
+    const pa2 = ax * ax + ay * ay, pb2 = (ax + dx) * (ax + dx) + (ay + dy) * (ay + dy);
+    if (!(pa2 > far2)) {
+      const pa = Math.sqrt(pa2);
+      if (pa <= d + reach) n = addCandidate(n, 1, ax, ay, 0, pa);
+    }
+    if (!(pb2 > far2)) {
+      const pb = Math.sqrt(pb2);
+      if (pb <= d + reach) n = addCandidate(n, 1, ax + dx, ay + dy, 0, pb);
+    }
   }
   // Nearest MAX_SITES sites.
   let m = 0;
@@ -103,10 +126,11 @@ export function snapToRidge(edges: Float64Array, x: number, y: number, d: number
     }
   }
   // Medial-axis vertices: equidistant to three sites.
+  tripleIn[0] = d;
+  tripleIn[1] = maxMove;
   for (let a = 0; a < m; a++) for (let b = a + 1; b < m; b++) for (let c = b + 1; c < m; c++) {
-    const p = solveTriple(a, b, c, d, maxMove);
     // D there is at most the triple's radius: only a radius above the best so far can win.
-    if (p && solvedR > best.d) consider(p[0], p[1]);
+    if (solveTriple(a, b, c) && (sol[2] as number) > best.d) consider(sol[0] as number, sol[1] as number);
   }
   if (!best.found || !isLocalMaximum(edges, x + best.px, y + best.py, best.d)) return false;
   snapped[0] = x + best.px;
@@ -125,7 +149,17 @@ const angles = new Float64Array(256);
  * maximum. With a corner among the sites a gap of π can be a saddle (a neck between two corners): not accepted.
  */
 export function isLocalMaximum(edges: Float64Array, x: number, y: number, d: number): boolean {
+  args[0] = x;
+  args[1] = y;
+  args[2] = d;
+  return localMaximumAt(edges);
+}
+
+function localMaximumAt(edges: Float64Array): boolean {
+  const x = args[0] as number, y = args[1] as number, d = args[2] as number;
   const tol = 1e-9 * (1 + d);
+  // Far sites are told apart on the squared distance (a 1e-9 relative margin, far beyond rounding) without a √.
+  const far2 = (d + tol) * (d + tol) * (1 + 1e-9);
   let n = 0, corner = false;
   for (let o = 0; o < edges.length && n < angles.length; o += 5) {
     const ax = edges[o] as number, ay = edges[o + 1] as number, dx = edges[o + 2] as number, dy = edges[o + 3] as number;
@@ -134,13 +168,23 @@ export function isLocalMaximum(edges: Float64Array, x: number, y: number, d: num
     const inside = t > 0 && t < 1;
     t = t < 0 ? 0 : t > 1 ? 1 : t;
     const ex = x - ax - t * dx, ey = y - ay - t * dy;
-    const e = Math.sqrt(ex * ex + ey * ey);
-    if (e > d + tol) continue;
+    const e2 = ex * ex + ey * ey;
+    if (e2 > far2 || Math.sqrt(e2) > d + tol) continue;
     if (!inside) corner = true;
     angles[n++] = Math.atan2(ey, ex);
   }
   if (n < 2) return false;
-  const a = angles.subarray(0, n).sort();
+  // Insertion sort: a handful of sites (a typed-array sort of a fresh subarray cost more than the rest of the test).
+  const a = angles;
+  for (let k = 1; k < n; k++) {
+    const v = a[k] as number;
+    let q = k - 1;
+    while (q >= 0 && (a[q] as number) > v) {
+      a[q + 1] = a[q] as number;
+      q--;
+    }
+    a[q + 1] = v;
+  }
   let gap = (a[0] as number) + 2 * Math.PI - (a[n - 1] as number);
   for (let k = 1; k < n; k++) gap = Math.max(gap, (a[k] as number) - (a[k - 1] as number));
   return corner ? gap < Math.PI - 1e-9 : gap <= Math.PI + 1e-9;
@@ -161,59 +205,77 @@ function consider(px: number, py: number): void {
   }
 }
 
-const sol: [number, number] = [0, 0];
-/** Radius of the last solved triple. */
-let solvedR = 0;
-const Js = new Float64Array(9), Fs = new Float64Array(3);
+/** solveTriple's input (start radius r0, move bound) and result (x, y, radius): typed slots, not arguments or
+ * module variables, so the millions of calls do not box a number each (garbage collection was 8 % of the time). */
+const tripleIn = new Float64Array(2), sol = new Float64Array(3);
 
-/** Newton's method for the point equidistant (radius r) to sites a, b, c, from the origin with r = r0; null when it
- * leaves twice the move bound (the triple has no vertex nearby). */
-function solveTriple(a: number, b: number, c: number, r0: number, maxMove: number): [number, number] | null {
+/** Newton's method for the point equidistant (radius r) to sites a, b, c, from the origin with r = r0 (tripleIn);
+ * false when it leaves twice the move bound (the triple has no vertex nearby), else true with the point in `sol`.
+ * Each row of the Jacobian is (∂g/∂x, ∂g/∂y, −1); kept in locals (some 16 million iterations on the bench layout). */
+function solveTriple(a: number, b: number, c: number): boolean {
+  const r0 = tripleIn[0] as number, maxMove = tripleIn[1] as number;
   let px = 0, py = 0, r = r0;
-  const J = Js, F = Fs;
+  const k0 = kind[a] as number, a0 = sa[a] as number, b0 = sb[a] as number, c0 = sc[a] as number;
+  const k1 = kind[b] as number, a1 = sa[b] as number, b1 = sb[b] as number, c1 = sc[b] as number;
+  const k2 = kind[c] as number, a2 = sa[c] as number, b2 = sb[c] as number, c2 = sc[c] as number;
   for (let it = 0; it < 12; it++) {
-    for (let k = 0; k < 3; k++) {
-      const s = k === 0 ? a : k === 1 ? b : c;
-      let g: number, gx: number, gy: number;
-      if (kind[s] === 0) {
-        gx = sa[s] as number;
-        gy = sb[s] as number;
-        g = gx * px + gy * py - (sc[s] as number);
-      } else {
-        const ex = px - (sa[s] as number), ey = py - (sb[s] as number);
-        g = Math.sqrt(ex * ex + ey * ey);
-        if (g === 0) return null;
-        gx = ex / g;
-        gy = ey / g;
-      }
-      F[k] = g - r;
-      J[3 * k] = gx;
-      J[3 * k + 1] = gy;
-      J[3 * k + 2] = -1;
+    let g0: number, gx0: number, gy0: number, g1: number, gx1: number, gy1: number, g2: number, gx2: number, gy2: number;
+    if (k0 === 0) {
+      gx0 = a0;
+      gy0 = b0;
+      g0 = gx0 * px + gy0 * py - c0;
+    } else {
+      const ex = px - a0, ey = py - b0;
+      g0 = Math.sqrt(ex * ex + ey * ey);
+      if (g0 === 0) return false;
+      gx0 = ex / g0;
+      gy0 = ey / g0;
+    }
+    if (k1 === 0) {
+      gx1 = a1;
+      gy1 = b1;
+      g1 = gx1 * px + gy1 * py - c1;
+    } else {
+      const ex = px - a1, ey = py - b1;
+      g1 = Math.sqrt(ex * ex + ey * ey);
+      if (g1 === 0) return false;
+      gx1 = ex / g1;
+      gy1 = ey / g1;
+    }
+    if (k2 === 0) {
+      gx2 = a2;
+      gy2 = b2;
+      g2 = gx2 * px + gy2 * py - c2;
+    } else {
+      const ex = px - a2, ey = py - b2;
+      g2 = Math.sqrt(ex * ex + ey * ey);
+      if (g2 === 0) return false;
+      gx2 = ex / g2;
+      gy2 = ey / g2;
     }
     // Solve J·δ = −F by Cramer's rule.
-    const det = det3(J[0]!, J[1]!, J[2]!, J[3]!, J[4]!, J[5]!, J[6]!, J[7]!, J[8]!);
-    if (!(Math.abs(det) > 1e-12)) return null;
-    const f0 = -F[0]!, f1 = -F[1]!, f2 = -F[2]!;
-    const dx = det3(f0, J[1]!, J[2]!, f1, J[4]!, J[5]!, f2, J[7]!, J[8]!) / det;
-    const dy = det3(J[0]!, f0, J[2]!, J[3]!, f1, J[5]!, J[6]!, f2, J[8]!) / det;
-    const dr = det3(J[0]!, J[1]!, f0, J[3]!, J[4]!, f1, J[6]!, J[7]!, f2) / det;
+    const det = det3(gx0, gy0, -1, gx1, gy1, -1, gx2, gy2, -1);
+    if (!(Math.abs(det) > 1e-12)) return false;
+    const f0 = -(g0 - r), f1 = -(g1 - r), f2 = -(g2 - r);
+    const dx = det3(f0, gy0, -1, f1, gy1, -1, f2, gy2, -1) / det;
+    const dy = det3(gx0, f0, -1, gx1, f1, -1, gx2, f2, -1) / det;
+    const dr = det3(gx0, gy0, f0, gx1, gy1, f1, gx2, gy2, f2) / det;
     px += dx;
     py += dy;
     r += dr;
-    if (!Number.isFinite(px + py + r) || r <= 0 || px * px + py * py > 4 * maxMove * maxMove) return null;
+    if (!Number.isFinite(px + py + r) || r <= 0 || px * px + py * py > 4 * maxMove * maxMove) return false;
     if (Math.abs(dx) + Math.abs(dy) + Math.abs(dr) <= 1e-12 * (1 + r0)) {
       sol[0] = px;
       sol[1] = py;
-      solvedR = r;
-      return sol;
+      sol[2] = r;
+      return true;
     }
   }
   // Not settled to 1e-12 (rounding): the last iterate is still a candidate, checked on the exact distance.
   sol[0] = px;
   sol[1] = py;
-  solvedR = r;
-  return sol;
+  sol[2] = r;
+  return true;
 }
 
 function det3(a: number, b: number, c: number, d: number, e: number, f: number, g: number, h: number, i: number): number {

@@ -26,9 +26,10 @@
  * a thin sliver between its nodes. Known limit: maxWidth climbs (at most 8) from the cells whose Lipschitz bound beats
  * the best node, and a climb can stall at a neck between two corners: on the 60 k lattice openings of the bench layout
  * 4 maxWidths stay 0.02–0.5 % below a brute-force maximum (29, up to 9 % low, with the earlier 4-seed climbs). Above
- * the node cap (16·maxNodes) the uniform paths below are used. Cost ≈ 210 µs CPU per opening on those openings at load
- * 4–5 (uniform paths ≈ 150 µs in the same runs, i.e. ~1.4×; the 4-seed version ≈ 270 µs): lines and passes over a few
- * hundred to a few thousand nodes, a few snaps or climbs.
+ * the node cap (16·maxNodes) the uniform paths below are used. Cost: lines and passes over a few hundred to a few
+ * thousand nodes, a few snaps or climbs, all in buffers reused from opening to opening; on the bench dump
+ * (bench/widths-run.ts) ≈ 1.8× less CPU than the first version (≈ 210 µs per opening at load 4–5), same results bit
+ * for bit.
  *
  * Uniform paths: the feature is sampled on a node lattice (lattice.ts), D by the exact Euclidean distance transform to
  * the nearest non-interior node, T by painting the maximal disks. For Manhattan features whose vertices lie on
@@ -48,7 +49,7 @@
  * Cost: the lattice path is ~40–80 µs per feature (a few thousand nodes, a few hundred inside): the lattice passes
  * run over the interior nodes only, kept as runs per row (lattice-runs.ts), in buffers reused from feature to
  * feature. The pattern searches reject most probes after one edge test (`distanceAbove`), and with a `WidthCache`
- * congruent copies under translation are measured once.
+ * congruent copies under translation are measured once (width-cache.ts).
  */
 import type { Lattice } from './lattice';
 import { interiorRuns, lastRoots, runDistanceTransform, runMaximalCentres, runMaxD2, sortByD2Descending } from './lattice-runs';
@@ -59,6 +60,7 @@ import { polygonisedCircle } from './circle-width';
 import { manhattanLines } from './manhattan-lines';
 import { manhattanWidths } from './manhattan-widths';
 import type { Box } from './types';
+import { lookup, store, type WidthCache } from './width-cache';
 
 export interface WidthOptions {
   /** Largest lattice (nodes) per feature; larger features use a coarser step (reported in widthStepUm). Default 4,096
@@ -81,21 +83,23 @@ export interface WidthResult {
 }
 
 /**
- * Widths of shapes already measured, keyed by the rings translated to their bbox corner (`shapeKey`). Congruent
- * copies under translation (arrays of the same cell) are measured once; the copies share the first one's result.
+ * Widths of shapes already measured (width-cache.ts), keyed by the rings translated to their bbox corner: the same
+ * shapes as equal `shapeKey` strings. Congruent copies under translation (arrays of the same cell) are measured once;
+ * the copies share the first one's result.
  */
-export type WidthCache = Map<string, WidthResult>;
+export type { WidthCache };
 
 /** Most shapes a cache keeps (beyond that, new shapes are measured but not stored), bounding its memory. */
 const CACHE_LIMIT = 200_000;
 
 /**
- * Translation-invariant key of a feature's rings: points relative to the bbox corner, each ring rotated to start
+ * Translation-invariant key of a feature's rings (the equality the cache keys by, width-cache.ts): points relative to the bbox corner, each ring rotated to start
  * at its lowest-then-leftmost point, rings sorted. Exact on integer dbu.
  */
 export function shapeKey(coords: ArrayLike<number>, rings: [number, number][], bbox: Box): string {
   const parts: string[] = [];
-  for (const [s, e] of rings) {
+  for (let ri = 0; ri < rings.length; ri++) {
+    const s = rings[ri]![0], e = rings[ri]![1];
     let m = s;
     for (let k = s + 1; k < e; k++) {
       const y = coords[2 * k + 1] as number, ym = coords[2 * m + 1] as number;
@@ -131,7 +135,8 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
   const bw = bbox[2] - bbox[0], bh = bbox[3] - bbox[1];
   // Rectangle (possibly cut into tile pieces): all edges axis-aligned and the area fills the bbox.
   let manhattan = true;
-  for (const [s, e] of rings) {
+  for (let ri = 0; ri < rings.length; ri++) {
+    const s = rings[ri]![0], e = rings[ri]![1];
     for (let k = s; k < e && manhattan; k++) {
       const n = k + 1 < e ? k + 1 : s;
       if ((coords[2 * k] as number) !== (coords[2 * n] as number) && (coords[2 * k + 1] as number) !== (coords[2 * n + 1] as number)) manhattan = false;
@@ -150,39 +155,65 @@ export function featureWidths(coords: ArrayLike<number>, rings: [number, number]
     const w = 2 * convexInscribedRadius(coords, rings[0]![0], rings[0]![1]);
     return { minWidth: w, maxWidth: w, step: 0, exact: true };
   }
-  const key = cache ? shapeKey(coords, rings, bbox) : '';
-  const hit = cache?.get(key);
-  if (hit) return hit;
-  // gcd of the vertex offsets: decides whether the exact Manhattan lattice is small enough (latticeWidths).
-  let g = 0;
-  if (manhattan) {
-    for (const [s, e] of rings) {
-      for (let k = s; k < e; k++) g = gcd(gcd(g, (coords[2 * k] as number) - bbox[0]), (coords[2 * k + 1] as number) - bbox[1]);
-    }
+  if (cache) {
+    const hit = lookup(cache, coords, rings, bbox);
+    if (hit) return hit;
   }
   // Measured in the bbox's own frame: the lattice arithmetic is then identical for every translated copy, so a
   // cached result equals a fresh measurement bit for bit, and threads or tiles (each with its own cache) agree.
   const local = toBboxFrame(coords, rings, bbox);
-  const res = latticeWidths(local.coords, local.rings, [0, 0, bbox[2] - bbox[0], bbox[3] - bbox[1]], area, perimeter, manhattan, g, opts);
-  if (cache && cache.size < CACHE_LIMIT) cache.set(key, res);
+  const res = latticeWidths(local, localRings(rings), [0, 0, bbox[2] - bbox[0], bbox[3] - bbox[1]], area, perimeter, manhattan, opts);
+  if (cache && cache.size < CACHE_LIMIT) store(cache, res);
   return res;
 }
 
-/** The rings moved so the bbox's lower-left corner is the origin (exact: integer dbu differences). */
-function toBboxFrame(coords: ArrayLike<number>, rings: [number, number][], bbox: Box): { coords: Float64Array; rings: [number, number][] } {
+/** gcd of the vertex offsets from the bbox corner (0, 0) of rings already in the bbox frame. */
+function vertexGcd(coords: ArrayLike<number>, rings: [number, number][]): number {
+  let g = 0;
+  for (let ri = 0; ri < rings.length; ri++) {
+    const s = rings[ri]![0], e = rings[ri]![1];
+    for (let k = s; k < e; k++) g = gcd(gcd(g, coords[2 * k] as number), coords[2 * k + 1] as number);
+  }
+  return g;
+}
+
+let frameS = new Float64Array(256);
+const ringsS: [number, number][] = [[0, 0]];
+
+/** The rings moved so the bbox's lower-left corner is the origin (exact: integer dbu differences), into module
+ * scratch (valid until the next feature; the rings keep their point ranges, see localRings). */
+function toBboxFrame(coords: ArrayLike<number>, rings: [number, number][], bbox: Box): Float64Array {
   let total = 0;
-  for (const [s, e] of rings) total += e - s;
-  const out = new Float64Array(2 * total);
-  const moved: [number, number][] = [];
+  for (let ri = 0; ri < rings.length; ri++) total += rings[ri]![1] - rings[ri]![0];
+  if (frameS.length < 2 * total) frameS = new Float64Array(Math.max(2 * total, 2 * frameS.length));
+  const out = frameS;
   let o = 0;
-  for (const [s, e] of rings) {
-    moved.push([o, o + e - s]);
+  for (let ri = 0; ri < rings.length; ri++) {
+    const s = rings[ri]![0], e = rings[ri]![1];
     for (let k = s; k < e; k++, o++) {
       out[2 * o] = (coords[2 * k] as number) - bbox[0];
       out[2 * o + 1] = (coords[2 * k + 1] as number) - bbox[1];
     }
   }
-  return { coords: out, rings: moved };
+  return out;
+}
+
+/** Point ranges of the rings as toBboxFrame packs them (one reused pair for the common single ring). */
+function localRings(rings: [number, number][]): [number, number][] {
+  if (rings.length === 1) {
+    const r = ringsS[0]!;
+    r[0] = 0;
+    r[1] = rings[0]![1] - rings[0]![0];
+    return ringsS;
+  }
+  const moved: [number, number][] = [];
+  let o = 0;
+  for (let ri = 0; ri < rings.length; ri++) {
+    const s = rings[ri]![0], e = rings[ri]![1];
+    moved.push([o, o + e - s]);
+    o += e - s;
+  }
+  return moved;
 }
 
 /** Refinement step of the compressed Manhattan lattice near vertex lines, per mean width 2·area/perimeter. */
@@ -192,7 +223,7 @@ const COMPRESSED_STEPS_PER_WIDTH = 4;
 export let compressedFallbacks = 0;
 
 /** The lattice method of the module doc (shapes that are neither rectangles nor convex). */
-function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbox: Box, area: number, perimeter: number, manhattan: boolean, g: number, opts: WidthOptions): WidthResult {
+function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbox: Box, area: number, perimeter: number, manhattan: boolean, opts: WidthOptions): WidthResult {
   const maxNodes = opts.maxNodes ?? 4_096;
   const bw = bbox[2] - bbox[0], bh = bbox[3] - bbox[1];
   let step: number;
@@ -208,6 +239,8 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
     if (w) return { minWidth: w.minWidth, maxWidth: w.maxWidth, step: h, exact: true };
     compressedFallbacks++;
   }
+  // gcd of the vertex offsets: decides whether the exact uniform Manhattan lattice is small enough.
+  const g = manhattan ? vertexGcd(coords, rings) : 0;
   if (manhattan && g > 0 && nodesAt(g / 2) <= exactCap && !opts.sampledLattice) {
     // Any divisor of g/2 keeps the lattice exact; refine to ≥ 40 nodes per mean width so disks centred near
     // junctions are sampled finely enough to cover their neighbours (the self-centred test is strict here).

@@ -4,7 +4,7 @@
  * split into shards merges back to the same result.
  */
 import { describe, expect, it } from 'vitest';
-import { extractFeatures, featuresFromRegions, featureWidths, numberFeatures, openRegions, ringArea, shapeKey, type Box } from '@/lib/geometry';
+import { extractFeatures, featuresFromRegions, featureWidths, numberFeatures, openRegions, ringArea, shapeKey, type Box, type WidthCache } from '@/lib/geometry';
 import { makeSet, mulberry32, ngon, rect, translate, type Ring } from './make-set';
 
 const DBU = 0.001;
@@ -64,7 +64,7 @@ describe('openRegions isolated-polygon fast path', () => {
 describe('featureWidths shape cache', () => {
   // A non-convex, non-Manhattan shape (takes the lattice path): a 45° bar with a square foot.
   const shape: Ring = [0, 0, 6_000, 0, 6_000, 3_000, 21_000, 18_000, 18_000, 21_000, 3_000, 6_000, 0, 6_000];
-  const measure = (ring: Ring, cache?: Map<string, ReturnType<typeof featureWidths>>) => {
+  const measure = (ring: Ring, cache?: WidthCache) => {
     const xs = ring.filter((_, k) => k % 2 === 0), ys = ring.filter((_, k) => k % 2 === 1);
     const bbox: Box = [Math.min(...xs), Math.min(...ys), Math.max(...xs), Math.max(...ys)];
     const perim = ring.reduce((s, _, k) => (k % 2 ? s : s + Math.hypot((ring[(k + 2) % ring.length] as number) - (ring[k] as number), (ring[(k + 3) % ring.length] as number) - (ring[k + 1] as number))), 0);
