@@ -108,7 +108,7 @@ export function largestDisk(L: ManhattanLines, edges: Float64Array, root: Float6
     nClimbs++;
     // The maximum next to a node is usually a medial-axis vertex solved directly from the sites near the node
     // (ridge-snap.ts, certified); otherwise the pattern search climbs to it.
-    const snap = snapToRidge(edges, x, y, dq, reach, dq);
+    const snap = snapToRidge(edges, x, y, dq, reach, dq, true);
     const d = snap ? (snapped[2] as number) : climbToMaximum(edges, x, y, Math.max(hx, hy));
     if (d > maxD) maxD = d;
   }

@@ -11,22 +11,29 @@
  */
 import { distanceToEdges } from './edge-distance';
 
-/** Most sites (nearest first) combined into candidates. */
+/** Most sites (nearest first) combined into candidates; WIDE_SITES for a wide snap (see snapToRidge). */
 const MAX_SITES = 6;
+const WIDE_SITES = 8;
 
 // Sites relative to the start point: kind 0 = line n·p = c (unit normal n pointing at the start), 1 = point (px, py).
-const kind = new Int8Array(MAX_SITES), sa = new Float64Array(MAX_SITES), sb = new Float64Array(MAX_SITES), sc = new Float64Array(MAX_SITES), sd = new Float64Array(MAX_SITES);
+const kind = new Int8Array(WIDE_SITES), sa = new Float64Array(WIDE_SITES), sb = new Float64Array(WIDE_SITES), sc = new Float64Array(WIDE_SITES), sd = new Float64Array(WIDE_SITES);
 const usedS = new Uint8Array(64);
 const candKind = new Int8Array(64), candA = new Float64Array(64), candB = new Float64Array(64), candC = new Float64Array(64), candD = new Float64Array(64);
 
 /** The snapped point: x, y (dbu) and its exact distance to the edges. */
 export const snapped = new Float64Array(3);
 
-function addCandidate(n: number, k: number, a: number, b: number, c: number, dist: number): number {
-  // Same point site from two edges sharing a corner: keep one.
-  if (k === 1) for (let q = 0; q < n; q++) if (candKind[q] === 1 && candA[q] === a && candB[q] === b) return n;
+function addCandidate(n: number, k: number, a: number, b: number, c: number, dist: number, outsideCone = false): number {
+  // Same point site from two edges sharing a corner: keep one, dropped (kind 2) when either edge rules it out.
+  if (k === 1) {
+    for (let q = 0; q < n; q++) {
+      if ((candKind[q] !== 1 && candKind[q] !== 2) || candA[q] !== a || candB[q] !== b) continue;
+      if (outsideCone) candKind[q] = 2;
+      return n;
+    }
+  }
   if (n >= candKind.length) return n;
-  candKind[n] = k;
+  candKind[n] = k === 1 && outsideCone ? 2 : k;
   candA[n] = a;
   candB[n] = b;
   candC[n] = c;
@@ -38,8 +45,11 @@ function addCandidate(n: number, k: number, a: number, b: number, c: number, dis
  * Tries to snap (x, y), at exact distance d from `edges` (edgeList form), to the local maximum of D nearby.
  * `reach` bounds how far the candidate sites may be beyond d (a few search steps). `maxMove` bounds the move
  * (callers restrict their search region; always < d). On success writes `snapped` and returns true.
+ * `wide`: for a search of the largest maximum near the start (maxWidth climbs): corners that cannot be a site of any
+ * point within maxMove are left out, and more sites are combined. Without it the snap keeps its earlier site list,
+ * which the narrowest-centre polish is tuned to (a wider list can carry it to a larger vertex beside a plateau).
  */
-export function snapToRidge(edges: Float64Array, x: number, y: number, d: number, reach: number, maxMove: number): boolean {
+export function snapToRidge(edges: Float64Array, x: number, y: number, d: number, reach: number, maxMove: number, wide = false): boolean {
   // A small wrapper the compiler inlines into the hot callers: the numbers go through typed slots instead of being
   // boxed as arguments of the large function (those allocations made garbage collection a tenth of the time).
   args[0] = x;
@@ -47,14 +57,16 @@ export function snapToRidge(edges: Float64Array, x: number, y: number, d: number
   args[2] = d;
   args[3] = reach;
   args[4] = maxMove;
+  args[5] = wide ? 1 : 0;
   return snapAt(edges);
 }
 
 /** Numeric arguments of snapAt / localMaximumAt (see snapToRidge). */
-const args = new Float64Array(5);
+const args = new Float64Array(6);
 
 function snapAt(edges: Float64Array): boolean {
   const x = args[0] as number, y = args[1] as number, d = args[2] as number, reach = args[3] as number, maxMove = args[4] as number;
+  const wide = args[5] === 1;
   // Candidate sites within d + reach, relative to (x, y); end points clearly beyond (squared distance over (d + reach)²
   // by a 1e-9 relative margin, far beyond rounding) are passed over without a √.
   let n = 0;
@@ -78,23 +90,29 @@ function snapAt(edges: Float64Array): boolean {
       }
       n = addCandidate(n, 0, nx, ny, c, lineDist);
     }
-    // End point sites.
+    // End point sites. A corner v is the nearest boundary point only of points q in its normal cone, behind both of
+    // its edges: (q − v)·u ≤ 0 for the unit direction u along each edge away from v. A q within maxMove of the start
+    // p has (p − v)·u ≤ maxMove there, so (wide snap) a corner failing this for one edge is no site of any candidate:
+    // this drops convex corners (their cone lies outside the opening), which would otherwise crowd the site list.
     const pa2 = ax * ax + ay * ay, pb2 = (ax + dx) * (ax + dx) + (ay + dy) * (ay + dy);
+    // (p − a)·(d/len) for the start corner a; (p − b)·(−d/len) = len − that for the end corner b.
+    const along = -(ax * dx + ay * dy) / len;
     if (!(pa2 > far2)) {
       const pa = Math.sqrt(pa2);
-      if (pa <= d + reach) n = addCandidate(n, 1, ax, ay, 0, pa);
+      if (pa <= d + reach) n = addCandidate(n, 1, ax, ay, 0, pa, wide && along > maxMove);
     }
     if (!(pb2 > far2)) {
       const pb = Math.sqrt(pb2);
-      if (pb <= d + reach) n = addCandidate(n, 1, ax + dx, ay + dy, 0, pb);
+      if (pb <= d + reach) n = addCandidate(n, 1, ax + dx, ay + dy, 0, pb, wide && len - along > maxMove);
     }
   }
-  // Nearest MAX_SITES sites.
+  // Nearest MAX_SITES (WIDE_SITES) sites.
   let m = 0;
   const used = usedS.fill(0, 0, n);
-  while (m < MAX_SITES) {
+  const sites = wide ? WIDE_SITES : MAX_SITES;
+  while (m < sites) {
     let best = -1;
-    for (let q = 0; q < n; q++) if (!used[q] && (best < 0 || (candD[q] as number) < (candD[best] as number))) best = q;
+    for (let q = 0; q < n; q++) if (!used[q] && candKind[q] !== 2 && (best < 0 || (candD[q] as number) < (candD[best] as number))) best = q;
     if (best < 0) break;
     used[best] = 1;
     kind[m] = candKind[best] as number;

@@ -24,8 +24,10 @@
  * widths are exact (widthExact): equal to a brute-force 1/2-dbu grid on seeded 1 nm-grid unions
  * (tests/geometry/manhattan-widths.test.ts), where the uniform exact lattice below differs it misses a covering disk in
  * a thin sliver between its nodes. Known limit: maxWidth climbs (at most 8) from the cells whose Lipschitz bound beats
- * the best node, and a climb can stall at a neck between two corners: on the 60 k lattice openings of the bench layout
- * 4 maxWidths stay 0.02–0.5 % below a brute-force maximum (29, up to 9 % low, with the earlier 4-seed climbs). Above
+ * the best node, and a climb can stall at a neck between two corners when its snap misses a site of the junction disk:
+ * on the 60 k lattice openings of the bench layout that left 4 maxWidths 0.02–0.33 % low until the climbs' snap left
+ * out corners that cannot be nearest points and combined 8 sites (those 4 and 2 more now match a brute-force maximum;
+ * 29, up to 9 % low, with the earlier 4-seed climbs). No proof covers every shape. Above
  * the node cap (16·maxNodes) the uniform paths below are used. Cost: lines and passes over a few hundred to a few
  * thousand nodes, a few snaps or climbs, all in buffers reused from opening to opening; on the bench dump
  * (bench/widths-run.ts) ≈ 1.8× less CPU than the first version (≈ 210 µs per opening at load 4–5), same results bit

@@ -79,6 +79,29 @@ describe('hand-derived widths on a 1 nm vertex grid (compressed lattice)', () =>
     expect(Math.abs(f.maxWidthUm - 2 * r * DBU)).toBeLessThan(1e-9);
   });
 
+  // Two more openings of that layout where the climb's ridge snap combined only the six nearest sites, two of them
+  // convex corners (never a nearest boundary point of an inside point) or lines whose foot lies past the edge, so
+  // the third site of the junction disk was left out and the climb stalled at the neck: 2141 instead of 2141.43 and
+  // 1991 instead of 1994.94 dbu.
+  it('an L whose junction disk is only 0.02 % wider than the arm plateau: maxWidth the junction disk', () => {
+    // Trench x ∈ [1683, 3306], arm y ∈ [10480, 12621] (plateau 1070.5) whose top steps down to 12468 at x = 2141.
+    // Junction disk: right edge x = 3306, top edge y = 12468 and the reflex corner (1683, 10480): centre
+    // (3306 − r, 12468 − r), (1623 − r)² + (1988 − r)² = r² → r = (7222 − √(7222² − 4·(1623² + 1988²)))/2 = 1070.715 dbu.
+    const f = one([[3306, 12468, 2141, 12468, 2141, 12621, 0, 12621, 0, 10480, 1683, 10480, 1683, 0, 3306, 0]]);
+    const r = (7222 - Math.sqrt(7222 ** 2 - 4 * (1623 ** 2 + 1988 ** 2))) / 2;
+    expect(r).toBeGreaterThan(1070.5);
+    expect(Math.abs(f.maxWidthUm - 2 * r * DBU)).toBeLessThan(1e-9);
+  });
+
+  it('a junction beside a narrow notch in the end wall: maxWidth the junction disk', () => {
+    // Arm y ∈ [1691, 2777] (plateau 543), trench x ∈ [11865, 13856] (plateau 995.5) whose right edge stops at 1991, with
+    // an 11 dbu notch to x = 13845 above. Junction disk: right edge x = 13856, top edge y = 2777 and the reflex corner
+    // (11865, 1691): (1991 − r)² + (1086 − r)² = r² → r = (6154 − √(6154² − 4·(1991² + 1086²)))/2 = 997.468 dbu.
+    const f = one([[13856, 1991, 13845, 1991, 13845, 2777, 0, 2777, 0, 1691, 11865, 1691, 11865, 0, 13856, 0]]);
+    const r = (6154 - Math.sqrt(6154 ** 2 - 4 * (1991 ** 2 + 1086 ** 2))) / 2;
+    expect(Math.abs(f.maxWidthUm - 2 * r * DBU)).toBeLessThan(1e-9);
+  });
+
   it('a T with a stem narrower than the bar: minWidth the stem', () => {
     // Bar 2.003 µm × 20.001 µm, stem 1.201 µm × 10 µm: stem plateau 600.5 dbu, far from the junction (its disks
     // reach < 600.5 dbu into the stem): minWidth 1.201 µm. Junction disk: bar bottom y = 0 and the corners
