@@ -5,23 +5,18 @@
  * models then give stop, over-etch and extrapolation notes), some sampled widths and some without a measurable
  * width (mean-width note).
  */
-import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { FeatureTableBuilder, type FeatureTable, type Grid } from '@/lib/geometry';
-import { parseProcessModel, type ProcessModel } from '@/lib/etch';
 import { predictInThreads } from '@/lib/pipeline/parallel-predict';
 import { predictFeatureTable } from '@/lib/pipeline/predict-features';
 import type { FeatureResultTable } from '@/lib/pipeline/feature-results';
 import { mulberry32 } from '@/lib/random';
 import { failingHelper, useAnalysisHelper } from '../support/helper-thread';
+import { sampleModel } from '../support/sample-model';
 
 const grid: Grid = { x0Um: 0, y0Um: 0, pixelUm: 10, nx: 100, ny: 80 };
 
-function model(name: string): ProcessModel {
-  const r = parseProcessModel(JSON.parse(readFileSync(`samples/models/${name}`, 'utf8')));
-  if (!r.ok) throw new Error(`model ${name}`);
-  return r.model;
-}
+const model = sampleModel;
 
 function seededTable(seed: number, n: number, badRow = -1): FeatureTable {
   const rnd = mulberry32(seed);

@@ -11,7 +11,7 @@ import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { parseProcessModel, type ProcessModel } from '@/lib/etch';
+import type { ProcessModel } from '@/lib/etch';
 import { encodeFeatureFile, featureFileBytes } from '@/lib/jobs/feature-file';
 import { readLayoutFile } from '@/lib/layout/read';
 import { inMemoryTileSource } from '@/lib/layout/tile-source';
@@ -21,6 +21,7 @@ import { analysisSettingsSchema, type AnalysisSettings } from '@/lib/pipeline/se
 import { runTiledAnalysis, type TiledAnalysisResult } from '@/lib/pipeline/tiled/run-tiled';
 import { makeSet, mulberry32, ngon, rect, type Ring } from '../geometry/make-set';
 import { testModel } from './fixtures';
+import { sampleModel } from '../support/sample-model';
 
 const dir = mkdtempSync(join(tmpdir(), 'spill-test-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -112,11 +113,6 @@ describe('tiled with spill = tiled in memory = untiled', () => {
     await threeWays(generated(32, 300, 1500), settingsOf({ polarity: 'dark', windowEdge: 'clipped' }), model, 90, 50);
   }, 120_000);
 
-  const models = (name: string) => {
-    const r = parseProcessModel(JSON.parse(readFileSync(`samples/models/${name}`, 'utf8')));
-    if (!r.ok) throw new Error(name);
-    return r.model;
-  };
   for (const [file, layer, modelFile] of [
     ['mems-die.gds', 1, 'deep-trench-continuous.json'],
     ['tsv-test-chip.gds', 2, 'cyclic-via.json'],
@@ -124,7 +120,7 @@ describe('tiled with spill = tiled in memory = untiled', () => {
     it(`sample ${file}`, async () => {
       const L = await readLayoutFile(`samples/${file}`);
       const s = analysisSettingsSchema.parse({ etchLayers: [{ layer, datatype: 0 }], maxListedFlags: 5 });
-      const r = await threeWays(L, s, models(modelFile), 500, 100);
+      const r = await threeWays(L, s, sampleModel(modelFile), 500, 100);
       expect(r.featureFile!.count).toBeGreaterThan(10);
     }, 120_000);
   }

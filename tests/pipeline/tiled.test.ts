@@ -5,13 +5,12 @@
  * outside sources in run-analysis.test.ts and tests/geometry); what is checked here is that tiling changes nothing.
  */
 import { spawnSync } from 'node:child_process';
-import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { openRegions } from '@/lib/geometry/open-regions';
 import { accumulateRegions, coverageFromDifferences, rasterizeOpenRegions } from '@/lib/geometry/raster';
 import { featureWidths } from '@/lib/geometry/widths';
 import { featureColumns } from '@/lib/geometry/feature-table';
-import { parseProcessModel, type ProcessModel } from '@/lib/etch';
+import type { ProcessModel } from '@/lib/etch';
 import { readLayoutFile } from '@/lib/layout/read';
 import { inMemoryTileSource } from '@/lib/layout/tile-source';
 import type { FlatLayout, PolygonSet } from '@/lib/layout/types';
@@ -23,6 +22,7 @@ import { runTiledAnalysis, type TiledOptions } from '@/lib/pipeline/tiled/run-ti
 import { shareLayout } from '@/lib/pipeline/tiled/sources';
 import { makeSet, mulberry32, ngon, rect, type Ring } from '../geometry/make-set';
 import { testModel } from './fixtures';
+import { sampleModel } from '../support/sample-model';
 
 const model = testModel();
 
@@ -219,11 +219,6 @@ describe('tiled = untiled on generated layouts', () => {
 });
 
 describe('tiled = untiled on the samples', () => {
-  const models = (name: string) => {
-    const r = parseProcessModel(JSON.parse(readFileSync(`samples/models/${name}`, 'utf8')));
-    if (!r.ok) throw new Error(name);
-    return r.model;
-  };
   for (const [file, layer, modelFile] of [
     ['mems-die.gds', 1, 'deep-trench-continuous.json'],
     ['tsv-test-chip.gds', 2, 'cyclic-via.json'],
@@ -231,7 +226,7 @@ describe('tiled = untiled on the samples', () => {
     it(`${file}, two tilings`, async () => {
       const L = await readLayoutFile(`samples/${file}`);
       const s = analysisSettingsSchema.parse({ etchLayers: [{ layer, datatype: 0 }] });
-      const m = models(modelFile);
+      const m = sampleModel(modelFile);
       const whole = runAnalysis(L, s, m);
       expect(whole.features.length).toBeGreaterThan(10);
       await compare(L, s, { tileUm: 500 }, m, whole);
