@@ -13,7 +13,7 @@ import { createReadStream } from 'node:fs';
 import { copyFile, mkdir, rename, stat, unlink } from 'node:fs/promises';
 import path from 'node:path';
 import { Readable } from 'node:stream';
-import { cachedCopy, forgetCached, readablePath, settleTimes } from './read-cache';
+import { cachedCopy, forgetCached, readablePath } from './read-cache';
 import { S3ObjectStore } from './s3-store';
 import type { ByteRange, ObjectStat } from './types';
 
@@ -52,7 +52,6 @@ export class CachedS3ObjectStore extends S3ObjectStore {
     const tmp = `${destPath}.tmp-${process.pid}-${randomUUID().slice(0, 8)}`;
     try {
       await copyFile(local, tmp);
-      settleTimes(tmp);
       await rename(tmp, destPath);
     } catch (err) {
       await unlink(tmp).catch(() => undefined);
