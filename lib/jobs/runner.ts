@@ -127,7 +127,7 @@ export class JobRunner implements JobQueue {
 
   /** Marks a job failed from outside a run (e.g. the queue gave up on it); no-op when it already finished. */
   failJob(analysisId: string, code: string, message: string): void {
-    this.finish(analysisId, 'failed', { code, message });
+    finishJob(analysisId, 'failed', { code, message });
   }
 
   private async run(job: RunningJob, row: ClaimedRow): Promise<void> {
@@ -153,7 +153,7 @@ export class JobRunner implements JobQueue {
       await store.deletePrefix(`${resultKey}/`); // leftovers of an interrupted attempt
       const budget = resultBudgetOf(row.team_id);
       if (!budget.ok) {
-        this.finish(row.id, 'failed', { code: 'over-quota', message: budget.message });
+        finishJob(row.id, 'failed', { code: 'over-quota', message: budget.message });
         return;
       }
       staging = await resultStaging(store, resultKey);
@@ -177,8 +177,8 @@ export class JobRunner implements JobQueue {
       });
       if (!result.ok) {
         await discard();
-        if (result.code === 'cancelled') this.finish(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled.' });
-        else this.finish(row.id, 'failed', { code: result.code, message: result.message });
+        if (result.code === 'cancelled') finishJob(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled.' });
+        else finishJob(row.id, 'failed', { code: result.code, message: result.message });
         return;
       }
       progress('saving', 0.95);
@@ -188,36 +188,26 @@ export class JobRunner implements JobQueue {
       await saveResultRows(getDb(), row.id, result, (f) => progress('saving', 0.95 + 0.049 * f));
       if (job.cancelRequested) {
         await discard();
-        this.finish(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled.' });
+        finishJob(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled.' });
         return;
       }
-      this.finish(row.id, 'done', null, { summary: result.summary, resultDir: analysisRelDir(row.id) });
+      finishJob(row.id, 'done', null, { summary: result.summary, resultDir: analysisRelDir(row.id) });
     } catch (err) {
       await discard().catch(() => undefined);
       if (job.crash) {
-        this.finish(row.id, 'failed', { code: 'worker-crash', message: job.crash });
+        finishJob(row.id, 'failed', { code: 'worker-crash', message: job.crash });
       } else if (isStorageNotFound(err)) {
-        this.finish(row.id, 'failed', { code: 'missing-revision', message: `The layout file of this revision is missing from storage (${err.key}); upload the layout again.` });
+        finishJob(row.id, 'failed', { code: 'missing-revision', message: `The layout file of this revision is missing from storage (${err.key}); upload the layout again.` });
       } else if (job.cancelRequested || job.controller.signal.aborted) {
-        this.finish(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled (the worker was stopped).' });
+        finishJob(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled (the worker was stopped).' });
       } else {
         const message = err instanceof Error ? err.message : String(err);
         console.error(`[trenchant] analysis ${row.id} failed in its worker:`, err);
-        this.finish(row.id, 'failed', { code: 'worker-crash', message: `The analysis stopped with an internal error: ${oneLine(message)}` });
+        finishJob(row.id, 'failed', { code: 'worker-crash', message: `The analysis stopped with an internal error: ${oneLine(message)}` });
       }
     } finally {
       await layout?.release().catch(() => undefined);
     }
-  }
-
-  /** Writes a terminal state (only over queued/running, so a late result never overwrites a cancel). */
-  private finish(
-    analysisId: string,
-    status: Extract<AnalysisStatus, 'done' | 'failed' | 'cancelled'>,
-    error: { code: string; message: string } | null,
-    done?: { summary: unknown; resultDir: string },
-  ): void {
-    finishJob(analysisId, status, error, done);
   }
 
   /**
@@ -236,7 +226,7 @@ export class JobRunner implements JobQueue {
     if (!row) return null;
     if (isTerminal(row.status)) return null;
     // Queued (or marked running by a previous process that died): nothing runs it here, so cancel in place.
-    this.finish(analysisId, 'cancelled', { code: 'cancelled', message: 'Cancelled before it started.' });
+    finishJob(analysisId, 'cancelled', { code: 'cancelled', message: 'Cancelled before it started.' });
     return 'cancelled';
   }
 

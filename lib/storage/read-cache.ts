@@ -88,12 +88,15 @@ export function cachedCopy(store: ObjectStore, key: string): string | null {
   return dest;
 }
 
+/** The object's own path (local backend) or its cached copy; null when it has to be downloaded. */
+function readableNow(store: ObjectStore, key: string): string | null {
+  return store.localPath(key) ?? cachedCopy(store, key);
+}
+
 /** A local file holding the object (the object's own path on the local backend). */
 export async function readablePath(store: ObjectStore, key: string): Promise<string> {
-  const local = store.localPath(key);
-  if (local) return local;
-  const cached = cachedCopy(store, key);
-  if (cached) return cached;
+  const ready = readableNow(store, key);
+  if (ready) return ready;
   const dest = cachedPath(store, key);
   await downloadOnce(store, key, dest).done;
   await prune(store, dest);
@@ -102,10 +105,8 @@ export async function readablePath(store: ObjectStore, key: string): Promise<str
 
 /** The same, for synchronous callers: a cold S3 copy blocks this thread while it downloads (download-thread.ts). */
 export function readablePathSync(store: ObjectStore, key: string): string {
-  const local = store.localPath(key);
-  if (local) return local;
-  const cached = cachedCopy(store, key);
-  if (cached) return cached;
+  const ready = readableNow(store, key);
+  if (ready) return ready;
   const dest = cachedPath(store, key);
   const download = downloadOnce(store, key, dest);
   try {
