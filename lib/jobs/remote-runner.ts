@@ -2,39 +2,27 @@
  * Runs analyses for a queue worker that has no database (TRENCHANT_WORKER_DB=none): the task comes in the job's
  * data (remote-task.ts), the layout from storage into a temporary file, the results go to storage, and the summary,
  * flags and map index go back as the job's return value for the server to record. The same piscina worker, cancel
- * flag and grace period as the embedded pool (runner.ts); progress goes to `onProgress` (the worker sends it to the
+ * flag and grace period as the embedded pool (runner.ts; both through pool-task.ts); progress goes to `onProgress` (the worker sends it to the
  * server over Redis).
  */
-import { MessageChannel, type MessagePort } from 'node:worker_threads';
-import Piscina from 'piscina';
-import type { AnalysisTask, AnalysisTaskResult, WorkerMessage } from '@/lib/pipeline/worker';
+import type { AnalysisTaskResult, WorkerMessage } from '@/lib/pipeline/worker';
 import { wholeReadLimitBytes } from '@/lib/layout/whole-read-limit';
 import { isStorageNotFound, storage } from '@/lib/storage';
 import { localInput, resultStaging, type LocalInput, type ResultStaging } from '@/lib/storage/job-files';
 import { analysisRelDir } from './paths';
+import { newAnalysisPool, newTaskControl, requestCancel, runPoolTask, type AnalysisPool, type TaskControl } from './pool-task';
 import type { RemoteJobResult, RemoteTask } from './remote-task';
 import { jobConcurrency } from './job-limits';
 import { workerFile } from './worker-file';
 
-const CANCEL_GRACE_MS = 3_000;
-
-type Running = { flag: Int32Array; port: MessagePort | null; controller: AbortController; cancelled: boolean };
-
 export class RemoteTaskRunner {
   readonly concurrency = jobConcurrency();
-  private pool: Piscina<AnalysisTask, AnalysisTaskResult> | null = null;
-  private readonly running = new Map<string, Running>();
+  private pool: AnalysisPool | null = null;
+  private readonly running = new Map<string, TaskControl>();
 
-  private async getPool(): Promise<Piscina<AnalysisTask, AnalysisTaskResult>> {
+  private async getPool(): Promise<AnalysisPool> {
     if (this.pool) return this.pool;
-    const memoryMb = Number(process.env.TRENCHANT_JOB_MEMORY_MB);
-    this.pool = new Piscina<AnalysisTask, AnalysisTaskResult>({
-      filename: await workerFile(),
-      minThreads: 0,
-      maxThreads: this.concurrency,
-      idleTimeout: 60_000,
-      ...(Number.isFinite(memoryMb) && memoryMb > 0 ? { resourceLimits: { maxOldGenerationSizeMb: memoryMb } } : {}),
-    });
+    this.pool = newAnalysisPool(await workerFile(), this.concurrency);
     return this.pool;
   }
 
@@ -45,13 +33,7 @@ export class RemoteTaskRunner {
   /** Stops a running job at its next check point; its thread is ended if it has not stopped within 3 s. */
   cancel(analysisId: string): void {
     const job = this.running.get(analysisId);
-    if (!job || job.cancelled) return;
-    job.cancelled = true;
-    Atomics.store(job.flag, 0, 1);
-    job.port?.postMessage({ type: 'cancel' });
-    setTimeout(() => {
-      if (this.running.get(analysisId) === job) job.controller.abort();
-    }, CANCEL_GRACE_MS).unref();
+    if (job) requestCancel(job, () => this.running.get(analysisId) === job);
   }
 
   /**
@@ -60,7 +42,7 @@ export class RemoteTaskRunner {
    */
   async run(analysisId: string, task: RemoteTask, onProgress: (stage: string, fraction: number) => void): Promise<RemoteJobResult> {
     if (!task.budget.ok) return { remote: true, ok: false, code: 'over-quota', message: task.budget.message };
-    const job: Running = { flag: new Int32Array(new SharedArrayBuffer(4)), port: null, controller: new AbortController(), cancelled: false };
+    const job = newTaskControl();
     this.running.set(analysisId, job);
     const store = storage();
     const resultKey = analysisRelDir(analysisId);
@@ -76,40 +58,33 @@ export class RemoteTaskRunner {
         throw err;
       }
       const pool = await this.getPool();
-      const channel = new MessageChannel();
-      job.port = channel.port1;
-      channel.port1.on('message', (m: WorkerMessage) => {
-        // The last 5 % is the server's, for saving the results in its database.
-        if (m?.type === 'progress' && m.stage !== 'done') onProgress(m.stage, Math.min(0.95, m.fraction * 0.95));
-      });
-      if (job.cancelled) channel.port1.postMessage({ type: 'cancel' });
       let result: AnalysisTaskResult;
       try {
-        result = await pool.run(
+        result = await runPoolTask(
+          pool,
+          job,
           {
             layoutPath: layout.path,
             settings: task.settings,
             model: task.model,
             outDir: staging.dir,
-            port: channel.port2,
-            cancelFlag: job.flag,
             maxResultBytes: task.budget.maxBytes,
             resultBudgetLabel: task.budget.label,
             wholeReadBytes: wholeReadLimitBytes(),
             storedLayout: { key: task.storedPath, where: store.where },
             ...(task.topCell ? { topCell: task.topCell } : {}),
           },
-          { transferList: [channel.port2], signal: job.controller.signal },
+          (m: WorkerMessage) => {
+            // The last 5 % is the server's, for saving the results in its database.
+            if (m?.type === 'progress' && m.stage !== 'done') onProgress(m.stage, Math.min(0.95, m.fraction * 0.95));
+          },
         );
       } catch (err) {
-        if (job.cancelled || job.controller.signal.aborted) return { remote: true, ok: false, code: 'cancelled', message: 'Cancelled (the worker was stopped).' };
+        if (job.cancelRequested || job.controller.signal.aborted) return { remote: true, ok: false, code: 'cancelled', message: 'Cancelled (the worker was stopped).' };
         const message = err instanceof Error ? err.message : String(err);
         return { remote: true, ok: false, code: 'worker-crash', message: `The analysis stopped with an internal error: ${message.replace(/\s*\n\s*/g, ' ').slice(0, 500)}` };
-      } finally {
-        channel.port1.close();
-        job.port = null;
       }
-      if (!result.ok || job.cancelled) {
+      if (!result.ok || job.cancelRequested) {
         await staging.discard();
         return result.ok ? { remote: true, ok: false, code: 'cancelled', message: 'Cancelled.' } : { ...result, remote: true };
       }

@@ -15,11 +15,9 @@
  * Claiming a job from the table: claim-job.ts; attempts, concurrency and result budgets: job-limits.ts.
  */
 import { existsSync } from 'node:fs';
-import { MessageChannel } from 'node:worker_threads';
-import Piscina from 'piscina';
 import { getDb } from '@/db/client';
 import type { AnalysisStatus } from '@/db/schema';
-import type { AnalysisTask, AnalysisTaskResult, WorkerMessage } from '@/lib/pipeline/worker';
+import type { WorkerMessage } from '@/lib/pipeline/worker';
 import { wholeReadLimitBytes } from '@/lib/layout/whole-read-limit';
 import { isStorageNotFound, storage } from '@/lib/storage';
 import { localInput, resultStaging, type LocalInput, type ResultStaging } from '@/lib/storage/job-files';
@@ -29,26 +27,18 @@ import type { JobQueue } from './queue';
 import { claimJob, type ClaimedRow } from './claim-job';
 import { jobConcurrency, resultBudgetOf } from './job-limits';
 import { analysisRelDir } from './paths';
+import { newAnalysisPool, newTaskControl, requestCancel, runPoolTask, type AnalysisPool, type PoolTaskInput, type TaskControl } from './pool-task';
 import { saveResultRows } from './save-results';
 import { forgetWorkerFile, workerFile } from './worker-file';
-
-/** How long a cancelled job may take to reach a check point before its thread is terminated. */
-const CANCEL_GRACE_MS = 3_000;
 
 /** DB progress writes at most this often per job (SSE subscribers get every message). */
 const PROGRESS_WRITE_MS = 500;
 
-type RunningJob = {
+type RunningJob = TaskControl & {
   analysisId: string;
-  controller: AbortController;
-  port: MessagePort | null;
-  /** Element 0 set to 1 (Atomics.store) = cancel; shared with the worker thread. */
-  flag: Int32Array;
-  cancelRequested: boolean;
   started: boolean;
   crash: string | null;
 };
-type MessagePort = import('node:worker_threads').MessagePort;
 
 export { jobConcurrency, jobMaxAttempts, resultBudgetOf, type ResultBudget } from './job-limits';
 
@@ -59,7 +49,7 @@ export class JobRunner implements JobQueue {
   constructor(options: { autoPump?: boolean } = {}) {
     this.autoPump = options.autoPump ?? true;
   }
-  private pool: Piscina<AnalysisTask, AnalysisTaskResult> | null = null;
+  private pool: AnalysisPool | null = null;
   private readonly running = new Map<string, RunningJob>();
   private pumping = false;
   private pumpAgain = false;
@@ -67,7 +57,7 @@ export class JobRunner implements JobQueue {
 
   private poolFile = '';
 
-  private async getPool(): Promise<Piscina<AnalysisTask, AnalysisTaskResult>> {
+  private async getPool(): Promise<AnalysisPool> {
     // If the compiled worker was removed while the server runs, compile it again and start a new pool for new
     // jobs (the old one finishes its running tasks, then closes).
     if (this.pool && !existsSync(/*turbopackIgnore: true*/ this.poolFile)) {
@@ -78,14 +68,7 @@ export class JobRunner implements JobQueue {
     if (this.pool) return this.pool;
     const filename = await workerFile();
     this.poolFile = filename;
-    const memoryMb = Number(process.env.TRENCHANT_JOB_MEMORY_MB);
-    this.pool ??= new Piscina<AnalysisTask, AnalysisTaskResult>({
-      filename,
-      minThreads: 0,
-      maxThreads: this.concurrency,
-      idleTimeout: 60_000,
-      ...(Number.isFinite(memoryMb) && memoryMb > 0 ? { resourceLimits: { maxOldGenerationSizeMb: memoryMb } } : {}),
-    });
+    this.pool ??= newAnalysisPool(filename, this.concurrency);
     // A thread that fails to start (e.g. the worker file vanished) reports here, not through its task, whose
     // promise would then never settle: fail the jobs that have not heard from their worker yet.
     this.pool.on('error', (err: unknown) => {
@@ -123,15 +106,7 @@ export class JobRunner implements JobQueue {
   }
 
   private start(row: ClaimedRow): Promise<void> {
-    const job: RunningJob = {
-      analysisId: row.id,
-      controller: new AbortController(),
-      port: null,
-      flag: new Int32Array(new SharedArrayBuffer(4)),
-      cancelRequested: false,
-      started: false,
-      crash: null,
-    };
+    const job: RunningJob = { ...newTaskControl(), analysisId: row.id, started: false, crash: null };
     this.running.set(row.id, job);
     return this.run(job, row).finally(() => {
       this.running.delete(row.id);
@@ -152,7 +127,7 @@ export class JobRunner implements JobQueue {
 
   /** Marks a job failed from outside a run (e.g. the queue gave up on it); no-op when it already finished. */
   failJob(analysisId: string, code: string, message: string): void {
-    this.finish(analysisId, 'failed', { code, message });
+    finishJob(analysisId, 'failed', { code, message });
   }
 
   private async run(job: RunningJob, row: ClaimedRow): Promise<void> {
@@ -178,44 +153,32 @@ export class JobRunner implements JobQueue {
       await store.deletePrefix(`${resultKey}/`); // leftovers of an interrupted attempt
       const budget = resultBudgetOf(row.team_id);
       if (!budget.ok) {
-        this.finish(row.id, 'failed', { code: 'over-quota', message: budget.message });
+        finishJob(row.id, 'failed', { code: 'over-quota', message: budget.message });
         return;
       }
       staging = await resultStaging(store, resultKey);
       layout = await localInput(store, row.stored_path);
       const pool = await this.getPool();
-      const channel = new MessageChannel();
-      job.port = channel.port1;
-      channel.port1.on('message', (m: WorkerMessage) => {
-        job.started = true;
-        // Last 5 % is kept for saving the results in the database.
-        if (m?.type === 'progress' && m.stage !== 'done') progress(m.stage, Math.min(0.95, m.fraction * 0.95));
-      });
-      if (job.cancelRequested) channel.port1.postMessage({ type: 'cancel' });
-      const task: AnalysisTask = {
+      const task: PoolTaskInput = {
         layoutPath: layout.path,
         settings: JSON.parse(row.settings),
         model: JSON.parse(row.model),
         outDir: staging.dir,
-        port: channel.port2,
-        cancelFlag: job.flag,
         maxResultBytes: budget.maxBytes,
         resultBudgetLabel: budget.label,
         wholeReadBytes: wholeReadLimitBytes(),
         storedLayout: { key: row.stored_path, where: store.where },
         ...(row.top_cell ? { topCell: row.top_cell } : {}),
       };
-      let result: AnalysisTaskResult;
-      try {
-        result = await pool.run(task, { transferList: [channel.port2], signal: job.controller.signal });
-      } finally {
-        channel.port1.close();
-        job.port = null;
-      }
+      const result = await runPoolTask(pool, job, task, (m: WorkerMessage) => {
+        job.started = true;
+        // Last 5 % is kept for saving the results in the database.
+        if (m?.type === 'progress' && m.stage !== 'done') progress(m.stage, Math.min(0.95, m.fraction * 0.95));
+      });
       if (!result.ok) {
         await discard();
-        if (result.code === 'cancelled') this.finish(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled.' });
-        else this.finish(row.id, 'failed', { code: result.code, message: result.message });
+        if (result.code === 'cancelled') finishJob(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled.' });
+        else finishJob(row.id, 'failed', { code: result.code, message: result.message });
         return;
       }
       progress('saving', 0.95);
@@ -225,36 +188,26 @@ export class JobRunner implements JobQueue {
       await saveResultRows(getDb(), row.id, result, (f) => progress('saving', 0.95 + 0.049 * f));
       if (job.cancelRequested) {
         await discard();
-        this.finish(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled.' });
+        finishJob(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled.' });
         return;
       }
-      this.finish(row.id, 'done', null, { summary: result.summary, resultDir: analysisRelDir(row.id) });
+      finishJob(row.id, 'done', null, { summary: result.summary, resultDir: analysisRelDir(row.id) });
     } catch (err) {
       await discard().catch(() => undefined);
       if (job.crash) {
-        this.finish(row.id, 'failed', { code: 'worker-crash', message: job.crash });
+        finishJob(row.id, 'failed', { code: 'worker-crash', message: job.crash });
       } else if (isStorageNotFound(err)) {
-        this.finish(row.id, 'failed', { code: 'missing-revision', message: `The layout file of this revision is missing from storage (${err.key}); upload the layout again.` });
+        finishJob(row.id, 'failed', { code: 'missing-revision', message: `The layout file of this revision is missing from storage (${err.key}); upload the layout again.` });
       } else if (job.cancelRequested || job.controller.signal.aborted) {
-        this.finish(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled (the worker was stopped).' });
+        finishJob(row.id, 'cancelled', { code: 'cancelled', message: 'Cancelled (the worker was stopped).' });
       } else {
         const message = err instanceof Error ? err.message : String(err);
         console.error(`[trenchant] analysis ${row.id} failed in its worker:`, err);
-        this.finish(row.id, 'failed', { code: 'worker-crash', message: `The analysis stopped with an internal error: ${oneLine(message)}` });
+        finishJob(row.id, 'failed', { code: 'worker-crash', message: `The analysis stopped with an internal error: ${oneLine(message)}` });
       }
     } finally {
       await layout?.release().catch(() => undefined);
     }
-  }
-
-  /** Writes a terminal state (only over queued/running, so a late result never overwrites a cancel). */
-  private finish(
-    analysisId: string,
-    status: Extract<AnalysisStatus, 'done' | 'failed' | 'cancelled'>,
-    error: { code: string; message: string } | null,
-    done?: { summary: unknown; resultDir: string },
-  ): void {
-    finishJob(analysisId, status, error, done);
   }
 
   /**
@@ -265,22 +218,15 @@ export class JobRunner implements JobQueue {
     const sqlite = getDb().$client;
     const job = this.running.get(analysisId);
     if (job) {
-      if (!job.cancelRequested) {
-        job.cancelRequested = true;
-        Atomics.store(job.flag, 0, 1);
-        job.port?.postMessage({ type: 'cancel' });
-        // The worker stops at its next check point; if it does not, terminate its thread.
-        setTimeout(() => {
-          if (this.running.get(analysisId) === job) job.controller.abort();
-        }, CANCEL_GRACE_MS).unref();
-      }
+      // The worker stops at its next check point; if it does not, its thread is terminated.
+      requestCancel(job, () => this.running.get(analysisId) === job);
       return 'running';
     }
     const row = sqlite.prepare('SELECT status FROM analyses WHERE id = ?').get(analysisId) as { status: AnalysisStatus } | undefined;
     if (!row) return null;
     if (isTerminal(row.status)) return null;
     // Queued (or marked running by a previous process that died): nothing runs it here, so cancel in place.
-    this.finish(analysisId, 'cancelled', { code: 'cancelled', message: 'Cancelled before it started.' });
+    finishJob(analysisId, 'cancelled', { code: 'cancelled', message: 'Cancelled before it started.' });
     return 'cancelled';
   }
 

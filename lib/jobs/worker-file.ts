@@ -75,43 +75,39 @@ function runBuild(root: string): Promise<void> {
   });
 }
 
-const holder = globalThis as typeof globalThis & { __trenchantWorkerFile?: Promise<string> };
+type BuiltSlot = '__trenchantWorkerFile' | '__trenchantUploadWorkerFile';
+// On globalThis: Next's dev server reloads modules, and one build per process is the point.
+const holder = globalThis as typeof globalThis & { [slot in BuiltSlot]?: Promise<string> };
+
+/**
+ * Absolute path of an up-to-date compiled file: `override` as given, else `outRel` under the project, built once per
+ * process when `staleReason` finds it stale. A failed build is retried on the next call.
+ */
+function builtFile(slot: BuiltSlot, override: string | undefined, outRel: string, staleReason: (root: string) => string | null, what: string): Promise<string> {
+  if (override) return Promise.resolve(path.resolve(override));
+  const pending = (holder[slot] ??= (async () => {
+    const root = projectRoot();
+    const reason = staleReason(root);
+    if (reason) {
+      console.log(`[trenchant] compiling ${what} (${reason})`);
+      await runBuild(root);
+    }
+    return path.join(/*turbopackIgnore: true*/ root, outRel);
+  })());
+  pending.catch(() => {
+    if (holder[slot] === pending) holder[slot] = undefined;
+  });
+  return pending;
+}
 
 /** Absolute path of an up-to-date worker file (built once per process when needed). */
 export function workerFile(): Promise<string> {
-  const override = process.env.TRENCHANT_WORKER_FILE;
-  if (override) return Promise.resolve(path.resolve(override));
-  holder.__trenchantWorkerFile ??= (async () => {
-    const root = projectRoot();
-    const reason = workerStaleReason(root);
-    if (reason) {
-      console.log(`[trenchant] compiling the analysis worker (${reason})`);
-      await runBuild(root);
-    }
-    return path.join(/*turbopackIgnore: true*/ root, OUT_REL);
-  })();
-  // A failed build is retried on the next call.
-  holder.__trenchantWorkerFile.catch(() => (holder.__trenchantWorkerFile = undefined));
-  return holder.__trenchantWorkerFile;
+  return builtFile('__trenchantWorkerFile', process.env.TRENCHANT_WORKER_FILE, OUT_REL, workerStaleReason, 'the analysis worker');
 }
-
-const uploadHolder = globalThis as typeof globalThis & { __trenchantUploadWorkerFile?: Promise<string> };
 
 /** Absolute path of an up-to-date upload check worker (built with the analysis worker when needed). */
 export function uploadWorkerFile(): Promise<string> {
-  const override = process.env.TRENCHANT_UPLOAD_WORKER_FILE;
-  if (override) return Promise.resolve(path.resolve(override));
-  uploadHolder.__trenchantUploadWorkerFile ??= (async () => {
-    const root = projectRoot();
-    const reason = fileStaleReason(root, UPLOAD_OUT_REL);
-    if (reason) {
-      console.log(`[trenchant] compiling the worker files (${reason})`);
-      await runBuild(root);
-    }
-    return path.join(/*turbopackIgnore: true*/ root, UPLOAD_OUT_REL);
-  })();
-  uploadHolder.__trenchantUploadWorkerFile.catch(() => (uploadHolder.__trenchantUploadWorkerFile = undefined));
-  return uploadHolder.__trenchantUploadWorkerFile;
+  return builtFile('__trenchantUploadWorkerFile', process.env.TRENCHANT_UPLOAD_WORKER_FILE, UPLOAD_OUT_REL, (root) => fileStaleReason(root, UPLOAD_OUT_REL), 'the worker files');
 }
 
 /** Drop the cached path so the next workerFile() checks (and if needed rebuilds) again. */

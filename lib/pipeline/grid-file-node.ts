@@ -1,21 +1,15 @@
 /** Node-side reading and writing of TRGRID1 map files (see grid-file.ts for the format). */
-import { readFile, rename, writeFile, unlink } from 'node:fs/promises';
+import { readFile } from 'node:fs/promises';
+import { bytesIntoPlace } from '../storage/place-file';
 import { decodeGrid, encodeGrid, GridFileError, type GridMap } from './grid-file';
 
 /**
- * Write a map atomically: to `path.tmp-<pid>` then rename, so a reader never sees half a file and a crash
- * leaves no truncated map under the final name.
+ * Write a map atomically (a temporary name beside it, then rename: place-file.ts), so a reader never sees half a
+ * file and a crash leaves no truncated map under the final name.
  */
 export async function writeGridFile(path: string, map: GridMap): Promise<number> {
   const bytes = encodeGrid(map);
-  const tmp = `${path}.tmp-${process.pid}`;
-  try {
-    await writeFile(tmp, bytes);
-    await rename(tmp, path);
-  } catch (err) {
-    await unlink(tmp).catch(() => undefined);
-    throw err;
-  }
+  await bytesIntoPlace(path, bytes);
   return bytes.length;
 }
 

@@ -29,7 +29,7 @@
  * may delete.
  */
 import { statSync } from 'node:fs';
-import { copyFile, mkdir, open, rename, unlink } from 'node:fs/promises';
+import { mkdir, unlink } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { MessagePort } from 'node:worker_threads';
 import { encodeFeatureFile, FEATURE_FILE_NAME } from '../jobs/feature-file';
@@ -40,6 +40,7 @@ import { readLayoutFile } from '../layout/read';
 import { openGdsiiTileSource } from '../layout/gdsii-tile-source';
 import type { TileSource } from '../layout/tile-source';
 import { readsThroughIndex, wholeReadLimitBytes } from '../layout/whole-read-limit';
+import { bytesIntoPlace, moveIntoPlace } from '../storage/place-file';
 import { headerLayout } from './tiled/plan';
 import { analyseInTiles } from './worker-tiled';
 import type { TiledAnalysisResult } from './tiled/run-tiled';
@@ -196,8 +197,8 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
     if (isCancelled()) return cancelled();
 
     await mkdir(task.outDir, { recursive: true });
-    if (spilledFile) await moveInto(spilledFile.path, join(task.outDir, FEATURE_FILE_NAME));
-    else if (featureBytes.body && featureBytes.tables) await writeAtomic(join(task.outDir, FEATURE_FILE_NAME), [featureBytes.body, featureBytes.tables]);
+    if (spilledFile) await moveIntoPlace(spilledFile.path, join(task.outDir, FEATURE_FILE_NAME));
+    else if (featureBytes.body && featureBytes.tables) await bytesIntoPlace(join(task.outDir, FEATURE_FILE_NAME), [featureBytes.body, featureBytes.tables]);
     spilledFile = null;
     const featureFile: FeatureFileInfo = { file: FEATURE_FILE_NAME, count: featureCount, bytes: featureBytes.byteLength };
     const maps: MapFile[] = [];
@@ -233,45 +234,6 @@ function analysisMemoryMb(): number {
 
 function overBudgetMessage(planned: number, label: string, what: string): string {
   return `the results would take ${(planned / MiB).toFixed(1)} MiB (${what}), above ${label}; choose a coarser pixel (pixel.sizeUm or pixel.maxPixels) or fewer density windows, or ask a team admin to raise the limit`;
-}
-
-/** A finished file into place: renamed when on the same file system, else copied under a temporary name first. */
-async function moveInto(from: string, path: string): Promise<void> {
-  try {
-    await rename(from, path);
-    return;
-  } catch (err) {
-    if ((err as NodeJS.ErrnoException).code !== 'EXDEV') throw err;
-  }
-  const tmp = `${path}.tmp-${process.pid}`;
-  try {
-    await copyFile(from, tmp);
-    await rename(tmp, path);
-  } catch (err) {
-    await unlink(tmp).catch(() => undefined);
-    throw err;
-  }
-  await unlink(from).catch(() => undefined);
-}
-
-/** Write the parts in order to a temporary name, then rename (a reader never sees half a file). */
-async function writeAtomic(path: string, parts: Uint8Array[]): Promise<void> {
-  const tmp = `${path}.tmp-${process.pid}`;
-  try {
-    const fh = await open(tmp, 'w');
-    try {
-      for (const part of parts) {
-        let done = 0;
-        while (done < part.length) done += (await fh.write(part, done, part.length - done)).bytesWritten;
-      }
-    } finally {
-      await fh.close();
-    }
-    await rename(tmp, path);
-  } catch (err) {
-    await unlink(tmp).catch(() => undefined);
-    throw err;
-  }
 }
 
 function cancelled(): AnalysisTaskResult {

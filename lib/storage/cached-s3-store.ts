@@ -8,11 +8,10 @@
  * Other reads (a layout streamed once, a byte range of a cold file) go to the bucket directly. Writes and deletes
  * drop the cached copy, so the cache can never answer with bytes the bucket no longer holds under that key.
  */
-import { randomUUID } from 'node:crypto';
 import { createReadStream } from 'node:fs';
-import { copyFile, mkdir, rename, stat, unlink } from 'node:fs/promises';
-import path from 'node:path';
+import { stat } from 'node:fs/promises';
 import { Readable } from 'node:stream';
+import { copyIntoPlace } from './place-file';
 import { cachedCopy, forgetCached, readablePath } from './read-cache';
 import { S3ObjectStore } from './s3-store';
 import type { ByteRange, ObjectStat } from './types';
@@ -48,15 +47,7 @@ export class CachedS3ObjectStore extends S3ObjectStore {
   override async downloadTo(key: string, destPath: string): Promise<void> {
     const local = this.cachedOrNull(key);
     if (!local) return super.downloadTo(key, destPath);
-    await mkdir(path.dirname(destPath), { recursive: true });
-    const tmp = `${destPath}.tmp-${process.pid}-${randomUUID().slice(0, 8)}`;
-    try {
-      await copyFile(local, tmp);
-      await rename(tmp, destPath);
-    } catch (err) {
-      await unlink(tmp).catch(() => undefined);
-      throw err;
-    }
+    await copyIntoPlace(local, destPath); // a copy out of the cache: no settleTimes (that is for files entering it)
   }
 
   override async putFile(key: string, srcPath: string, options?: { move?: boolean }): Promise<void> {

@@ -3,13 +3,14 @@
  * can be awaited by asynchronous readers and waited for by synchronous ones alike (the per-opening column file is
  * read with positional reads from code that is synchronous all the way up: lib/jobs/feature-columns.ts). The thread
  * keeps one SDK client per configuration and runs its downloads concurrently; each streams the body to a temporary
- * file beside the destination and renames it into place, so no thread holds the object in memory and a failed
+ * file beside the destination (named as place-file.ts names them) and renames it into place, so no thread holds the object in memory and a failed
  * download leaves no partial file under the destination's name. Each outcome is written to memory shared with the
  * caller (Atomics.wait for synchronous waiters) and posted (for the promise). The thread keeps the process alive
  * only while downloads are running; if it stops, its downloads fail and the next download starts a new one.
  */
 import path from 'node:path';
 import { Worker } from 'node:worker_threads';
+import { tempNameBeside } from './place-file';
 import type { S3Config } from './s3-config';
 import { StorageNotFoundError } from './types';
 
@@ -109,7 +110,7 @@ export type Download = {
 export function startDownload(config: S3Config, key: string, dest: string): Download {
   const shared = new SharedArrayBuffer(8 + 2048);
   const state = new Int32Array(shared, 0, 2);
-  const tmp = `${dest}.tmp-${process.pid}-dl-${Math.random().toString(36).slice(2, 10)}`;
+  const tmp = tempNameBeside(dest, 'dl');
   const t = downloadThread();
   const id = nextId++;
   const outcome = (): Error | null => {

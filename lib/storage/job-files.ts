@@ -7,6 +7,7 @@
 import { mkdir, mkdtemp, readdir, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
+import { TEMP_MARK } from './place-file';
 import { keepInCache } from './read-cache';
 import type { ObjectStore } from './types';
 
@@ -54,7 +55,7 @@ export async function resultStaging(store: ObjectStore, prefix: string): Promise
       const keys: string[] = [];
       try {
         for (const entry of await readdir(dir, { withFileTypes: true })) {
-          if (!entry.isFile() || entry.name.includes('.tmp-')) continue;
+          if (!entry.isFile() || entry.name.includes(TEMP_MARK)) continue;
           const key = `${prefix}/${entry.name}`;
           const file = path.join(dir, entry.name);
           await store.putFile(key, file);

@@ -1,15 +1,14 @@
 /**
  * The default backend: objects are files under the data folder, at their key as relative path (what the server
  * did before there was a storage interface, so existing data folders keep working). Writes go to a temporary name
- * beside the target and are renamed into place, so a reader never sees half a file.
+ * beside the target and are renamed into place (place-file.ts), so a reader never sees half a file.
  */
-import { randomUUID } from 'node:crypto';
-import { createReadStream, createWriteStream } from 'node:fs';
-import { copyFile, mkdir, readdir, rename, rm, stat, unlink, writeFile } from 'node:fs/promises';
+import { createReadStream } from 'node:fs';
+import { readdir, rm, stat, unlink } from 'node:fs/promises';
 import path from 'node:path';
 import { Readable } from 'node:stream';
-import { pipeline } from 'node:stream/promises';
 import { checkKey, checkPrefix, StorageKeyError } from './keys';
+import { bytesIntoPlace, copyIntoPlace, moveIntoPlace, streamIntoPlace } from './place-file';
 import { StorageNotFoundError, type ByteRange, type ObjectStat, type ObjectStore } from './types';
 
 const isEnoent = (err: unknown) => (err as NodeJS.ErrnoException | null)?.code === 'ENOENT';
@@ -35,42 +34,17 @@ export class LocalObjectStore implements ObjectStore {
     return this.abs(key);
   }
 
-  private async intoPlace(key: string, write: (tmp: string) => Promise<void>): Promise<void> {
-    const dest = this.abs(key);
-    await mkdir(path.dirname(dest), { recursive: true });
-    const tmp = `${dest}.tmp-${process.pid}-${randomUUID().slice(0, 8)}`;
-    try {
-      await write(tmp);
-      await rename(tmp, dest);
-    } catch (err) {
-      await unlink(tmp).catch(() => undefined);
-      throw err;
-    }
-  }
-
+  // async, so a bad key rejects rather than throws
   async putFile(key: string, srcPath: string, options: { move?: boolean } = {}): Promise<void> {
-    if (options.move) {
-      const dest = this.abs(key);
-      await mkdir(path.dirname(dest), { recursive: true });
-      try {
-        await rename(srcPath, dest);
-        return;
-      } catch (err) {
-        if ((err as NodeJS.ErrnoException).code !== 'EXDEV') throw err;
-      }
-      await this.intoPlace(key, (tmp) => copyFile(srcPath, tmp));
-      await unlink(srcPath);
-      return;
-    }
-    await this.intoPlace(key, (tmp) => copyFile(srcPath, tmp));
+    return options.move ? moveIntoPlace(srcPath, this.abs(key)) : copyIntoPlace(srcPath, this.abs(key));
   }
 
-  putBytes(key: string, bytes: Uint8Array): Promise<void> {
-    return this.intoPlace(key, (tmp) => writeFile(tmp, bytes));
+  async putBytes(key: string, bytes: Uint8Array): Promise<void> {
+    return bytesIntoPlace(this.abs(key), bytes);
   }
 
-  putStream(key: string, body: Readable): Promise<void> {
-    return this.intoPlace(key, (tmp) => pipeline(body, createWriteStream(tmp)));
+  async putStream(key: string, body: Readable): Promise<void> {
+    return streamIntoPlace(this.abs(key), body);
   }
 
   async stat(key: string): Promise<ObjectStat | null> {
@@ -101,15 +75,7 @@ export class LocalObjectStore implements ObjectStore {
   async downloadTo(key: string, destPath: string): Promise<void> {
     const src = this.abs(key);
     if (!(await this.stat(key))) throw new StorageNotFoundError(key, this.where);
-    await mkdir(path.dirname(destPath), { recursive: true });
-    const tmp = `${destPath}.tmp-${process.pid}-${randomUUID().slice(0, 8)}`;
-    try {
-      await copyFile(src, tmp);
-      await rename(tmp, destPath);
-    } catch (err) {
-      await unlink(tmp).catch(() => undefined);
-      throw err;
-    }
+    await copyIntoPlace(src, destPath);
   }
 
   async delete(key: string): Promise<void> {

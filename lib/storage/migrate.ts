@@ -15,6 +15,7 @@ import { GetObjectCommand, HeadObjectCommand } from '@aws-sdk/client-s3';
 import { Upload } from '@aws-sdk/lib-storage';
 import { fileSums, etagMatches, type FileSums } from './checksums';
 import { checkKey } from './keys';
+import { TEMP_MARK } from './place-file';
 import { PART_BYTES, type S3ObjectStore } from './s3-store';
 
 /** Top folders of the data folder that hold stored objects; everything else there (the database, tmp/) stays. */
@@ -71,7 +72,7 @@ export async function listStoredFiles(dataDir: string): Promise<{ files: Migrate
     });
     for (const e of entries) {
       if (!e.isFile()) continue;
-      if (e.name.includes('.tmp-')) {
+      if (e.name.includes(TEMP_MARK)) {
         temporary++;
         continue;
       }

@@ -8,14 +8,15 @@
  * forgetCached() drops copies when objects are deleted (the caching store, cached-s3-store.ts, does it on every
  * delete and overwrite). A cold key is downloaded once however many readers ask for it at the same time.
  */
-import { createHash, randomUUID } from 'node:crypto';
+import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, statSync, utimesSync } from 'node:fs';
-import { copyFile, mkdir, readdir, rename, rm, stat, unlink } from 'node:fs/promises';
+import { readdir, rm, stat, unlink } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { checkKey } from './keys';
 import { asS3Store } from './s3-store';
 import { startDownload, type Download } from './download-thread';
+import { copyIntoPlace, moveIntoPlace, TEMP_MARK } from './place-file';
 import type { ObjectStore } from './types';
 
 /** A copy used within this long is never evicted (it may be open right now). */
@@ -87,12 +88,15 @@ export function cachedCopy(store: ObjectStore, key: string): string | null {
   return dest;
 }
 
+/** The object's own path (local backend) or its cached copy; null when it has to be downloaded. */
+function readableNow(store: ObjectStore, key: string): string | null {
+  return store.localPath(key) ?? cachedCopy(store, key);
+}
+
 /** A local file holding the object (the object's own path on the local backend). */
 export async function readablePath(store: ObjectStore, key: string): Promise<string> {
-  const local = store.localPath(key);
-  if (local) return local;
-  const cached = cachedCopy(store, key);
-  if (cached) return cached;
+  const ready = readableNow(store, key);
+  if (ready) return ready;
   const dest = cachedPath(store, key);
   await downloadOnce(store, key, dest).done;
   await prune(store, dest);
@@ -101,10 +105,8 @@ export async function readablePath(store: ObjectStore, key: string): Promise<str
 
 /** The same, for synchronous callers: a cold S3 copy blocks this thread while it downloads (download-thread.ts). */
 export function readablePathSync(store: ObjectStore, key: string): string {
-  const local = store.localPath(key);
-  if (local) return local;
-  const cached = cachedCopy(store, key);
-  if (cached) return cached;
+  const ready = readableNow(store, key);
+  if (ready) return ready;
   const dest = cachedPath(store, key);
   const download = downloadOnce(store, key, dest);
   try {
@@ -125,26 +127,9 @@ export function readablePathSync(store: ObjectStore, key: string): string {
 export async function keepInCache(store: ObjectStore, key: string, srcPath: string, options: { move?: boolean } = {}): Promise<void> {
   if (store.localPath(key)) return;
   const dest = cachedPath(store, key);
-  await mkdir(path.dirname(dest), { recursive: true });
-  if (options.move) {
-    try {
-      settleTimes(srcPath);
-      await rename(srcPath, dest);
-      await prune(store, dest);
-      return;
-    } catch (err) {
-      if ((err as NodeJS.ErrnoException).code !== 'EXDEV') throw err;
-    }
-  }
-  const tmp = `${dest}.tmp-${process.pid}-${randomUUID().slice(0, 8)}`;
-  try {
-    await copyFile(srcPath, tmp);
-    settleTimes(tmp);
-    await rename(tmp, dest);
-  } catch (err) {
-    await unlink(tmp).catch(() => undefined);
-    throw err;
-  }
+  // settleTimes on the file entering the cache: the moved file itself, or the temporary copy before its rename.
+  if (options.move) await moveIntoPlace(srcPath, dest, settleTimes);
+  else await copyIntoPlace(srcPath, dest, settleTimes);
   await prune(store, dest);
 }
 
@@ -175,7 +160,7 @@ async function prune(store: ObjectStore, keep: string): Promise<void> {
     const file = path.join(e.parentPath, e.name);
     const st = await stat(file).catch(() => null);
     if (!st) continue;
-    if (e.name.includes('.tmp-')) {
+    if (e.name.includes(TEMP_MARK)) {
       // A download or copy in progress, or the leftover of a process that stopped mid-download.
       if (Date.now() - st.mtimeMs > STALE_TMP_MS) await unlink(file).catch(() => undefined);
       continue;

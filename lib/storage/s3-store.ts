@@ -3,15 +3,13 @@
  * @aws-sdk/lib-storage's Upload (multipart above 8 MiB, so a layout of gigabytes is never held in memory); reads
  * are streamed; a range read is an HTTP Range request.
  */
-import { randomUUID } from 'node:crypto';
-import { createReadStream, createWriteStream } from 'node:fs';
-import { mkdir, rename, unlink } from 'node:fs/promises';
-import path from 'node:path';
+import { createReadStream } from 'node:fs';
+import { unlink } from 'node:fs/promises';
 import { Readable } from 'node:stream';
-import { pipeline } from 'node:stream/promises';
 import { DeleteObjectCommand, DeleteObjectsCommand, GetObjectCommand, HeadBucketCommand, HeadObjectCommand, ListObjectsV2Command, PutObjectCommand, S3Client, S3ServiceException } from '@aws-sdk/client-s3';
 import { Upload } from '@aws-sdk/lib-storage';
 import { checkKey, checkPrefix } from './keys';
+import { streamIntoPlace } from './place-file';
 import { describeS3, type S3Config } from './s3-config';
 import { StorageNotFoundError, type ByteRange, type ObjectStat, type ObjectStore } from './types';
 
@@ -120,15 +118,7 @@ export class S3ObjectStore implements ObjectStore {
 
   async downloadTo(key: string, destPath: string): Promise<void> {
     const body = await this.getStream(key);
-    await mkdir(path.dirname(destPath), { recursive: true });
-    const tmp = `${destPath}.tmp-${process.pid}-${randomUUID().slice(0, 8)}`;
-    try {
-      await pipeline(body, createWriteStream(tmp));
-      await rename(tmp, destPath);
-    } catch (err) {
-      await unlink(tmp).catch(() => undefined);
-      throw err;
-    }
+    await streamIntoPlace(destPath, body);
   }
 
   async delete(key: string): Promise<void> {
