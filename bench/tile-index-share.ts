@@ -37,6 +37,7 @@ if (child) {
     threads, tiles: jobs.length, coldMs: Math.round(coldMs), warmMs: Math.round(warmMs), cpuS: Math.round((cpu.user + cpu.system) / 1e5) / 10,
     peakRssMB: MB(process.resourceUsage().maxRSS * 1024), rssAfterColdMB: MB(rssCold), rssEndMB: MB(process.memoryUsage().rss),
     threadPeaksMB: pool.peakBytes().map(MB),
+    ...('indexPasses' in pool ? { indexPassesPerThread: (pool as { indexPasses(): number[] }).indexPasses() } : {}),
   }));
   await pool.close();
 } else {

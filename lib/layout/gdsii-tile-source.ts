@@ -17,6 +17,7 @@ import { ElementReader } from './element-reader';
 import { LayoutReadError } from './errors';
 import { indexGdsiiFile, type GdsiiIndex, type IndexOptions, type IndexedCell } from './gdsii-index';
 import { HierarchyWalker } from './gdsii-walk';
+import { chooseTopCell } from './hierarchy';
 import { GrowF64, GrowU32 } from './grow-buffer';
 import { layerKey, type CellDef } from './library';
 import type { TileSource, TileSourceHeader } from './tile-source';
@@ -80,6 +81,15 @@ export function gdsiiTileSourceOfIndex(index: GdsiiIndex, before: { size: number
     closeSync(fd);
     throw err;
   }
+}
+
+/**
+ * A tile source over an index another thread may have built (gdsii-index.ts `shared`), with the top cell `topCell`
+ * (default: the indexing rule). Refused, like any open, when the file changed since the index was built.
+ */
+export function gdsiiTileSourceOfSharedIndex(index: GdsiiIndex, opts: GdsiiTileSourceOptions = {}): GdsiiTileSource {
+  const top = chooseTopCell(index.lib, index.totals, opts.topCell);
+  return gdsiiTileSourceOfIndex(top === index.top ? index : { ...index, top }, { size: index.fileSize, mtimeMs: index.mtimeMs }, opts);
 }
 
 class Source implements GdsiiTileSource {
