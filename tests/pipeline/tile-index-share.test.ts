@@ -15,13 +15,17 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { isShared } from '@/lib/layout/array-alloc';
 import { indexGdsiiFile, type GdsiiIndex } from '@/lib/layout/gdsii-index';
 import { gdsiiTileSourceOfSharedIndex, openGdsiiTileSource } from '@/lib/layout/gdsii-tile-source';
+import { readLayoutFile } from '@/lib/layout/read';
+import { runAnalysis } from '@/lib/pipeline/run-analysis';
 import { analysisSettingsSchema } from '@/lib/pipeline/settings';
+import { runTiledAnalysis } from '@/lib/pipeline/tiled/run-tiled';
 import { IndexRegistry } from '@/lib/pipeline/tiled/index-registry';
 import { planTiles, type TilePlan } from '@/lib/pipeline/tiled/plan';
 import { packPart } from '@/lib/pipeline/tiled/stitch-features';
 import { sharedTileThreads } from '@/lib/pipeline/tiled/tile-pool';
 import { runTileJob, type TileJob, type TileJobResult } from '@/lib/pipeline/tiled/tile-work';
 import { allLayers, flatDie, hierarchicalDie, polygonsOf, tileGrid } from '../layout/tile-fixtures';
+import { testModel } from './fixtures';
 
 const dir = mkdtempSync(join(tmpdir(), 'trenchant-index-share-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -126,7 +130,7 @@ function packed(r: TileJobResult): Buffer {
 }
 
 describe('a pool of tile threads', () => {
-  it('indexes a file once for two threads and four tiles at once; the tiles equal the inline ones byte for byte', async () => {
+  it('indexes a file once for two threads and six tiles at once; the tiles equal the inline ones byte for byte', async () => {
     const file = write('pool.gds', flatDie(6_000, 5));
     const plan = planFor(file);
     const jobs: TileJob[] = Array.from({ length: Math.min(6, plan.ntx * plan.nty) }, (_, t) => ({ kind: 'core', tile: t, marginDbu: plan.marginDbu }));
@@ -172,6 +176,10 @@ describe('a pool of tile threads', () => {
     const spec = { kind: 'file' as const, path: file };
     const first = sharedTileThreads(1, registry)!;
     await first.run(jobs[0]!, spec, plan);
+    // Its thread dies (as a tile worker's thread out of memory would): the pool is broken, the index is not lost.
+    const dying = { kind: 'module' as const, url: new URL('./tiled-fixture-source.ts', import.meta.url).href, exportName: 'openDyingSource', args: {} };
+    await expect(first.run(jobs[0]!, dying, plan)).rejects.toThrow(/tile worker 0 stopped \(exit code 7\)/);
+    expect(first.broken()).toBe(true);
     await first.close();
     const second = sharedTileThreads(2, registry)!;
     try {
@@ -187,6 +195,29 @@ describe('a pool of tile threads', () => {
       expect(second.broken()).toBe(false);
     } finally {
       await second.close();
+    }
+  }, 120_000);
+});
+
+describe('an analysis on its own tile threads', () => {
+  it('hands its shared index to them (no pass there); a source of its own index makes one pass for both threads; same result', async () => {
+    const file = write('analysis.gds', flatDie(6_000, 8));
+    const model = testModel();
+    const whole = runAnalysis(await readLayoutFile(file), settings, model);
+    const spec = { kind: 'file' as const, path: file };
+    for (const [shared, passes] of [[true, 0], [false, 1]] as const) {
+      const source = openGdsiiTileSource(file, { shared });
+      try {
+        const tiled = await runTiledAnalysis(source, settings, model, { tileUm: 300, spec, threads: 2, queueUrl: null });
+        expect(tiled.tiled).toMatchObject({ via: 'threads', threads: 2, threadIndexPasses: passes });
+        const { timingsMs: _a, ...a } = tiled.summary;
+        const { timingsMs: _b, ...b } = whole.summary;
+        expect(a).toEqual(b);
+        expect(tiled.features).toEqual(whole.features);
+        tiled.maps.forEach((m, k) => expect(bytesOf(m.values).equals(bytesOf(whole.maps[k]!.values))).toBe(true));
+      } finally {
+        source.close();
+      }
     }
   }, 120_000);
 });
