@@ -12,6 +12,7 @@
  */
 import { randomBytes } from 'node:crypto';
 import { closeSync, openSync, readSync, statSync } from 'node:fs';
+import { resolve } from 'node:path';
 import type { GdsiiIndex } from '../../layout/gdsii-index';
 
 export interface RegisteredIndex {
@@ -43,7 +44,7 @@ function gdsiiFileState(path: string): FileState | null {
     }
     // A GDSII stream starts with the HEADER record 00 06 00 02 (as open-tile-source.ts decides).
     if (head[0] !== 0 || head[1] !== 6 || head[2] !== 0 || head[3] !== 2) return null;
-    return { key: `${path}\u0000${st.size}\u0000${st.mtimeMs}`, size: st.size, mtimeMs: st.mtimeMs };
+    return { key: `${resolve(path)}\u0000${st.size}\u0000${st.mtimeMs}`, size: st.size, mtimeMs: st.mtimeMs };
   } catch {
     return null;
   }

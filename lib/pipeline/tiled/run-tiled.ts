@@ -16,7 +16,7 @@
 import { randomBytes } from 'node:crypto';
 import { rmSync } from 'node:fs';
 import { availableParallelism, tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { join, resolve } from 'node:path';
 import { FeatureFileWriter } from '../../jobs/feature-file-writer';
 import { OpeningSpill } from './spill';
 import type { ProcessModel } from '../../etch';
@@ -40,7 +40,7 @@ const TILE_SHARE = 0.6;
 /** The source's GDSII index when it was built in shared memory for the spec's file: the threads then use it as it is. */
 function sharedIndexOf(source: TileSource, spec: TileSourceSpec): GdsiiIndex | undefined {
   const index = (source as Partial<GdsiiTileSource>).index;
-  return index?.shared && spec.kind === 'file' && index.path === spec.path ? index : undefined;
+  return index?.shared && spec.kind === 'file' && resolve(index.path) === resolve(spec.path) ? index : undefined;
 }
 /** Rows per chunk of a spilled run's per-opening stages. */
 const SPILL_CHUNK = 65_536;
