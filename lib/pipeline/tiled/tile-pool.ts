@@ -1,6 +1,8 @@
 /**
  * Where tile jobs run: inline on the calling thread, or on worker threads (tile-thread.ts), each opening its own
- * TileSource from a serialisable spec. Threads start like the feature threads (parallel-features.ts): the compiled
+ * TileSource from a serialisable spec. A GDSII file's index is not built per thread: the pool asks its registry
+ * (index-registry.ts), which has the first free thread build it in shared memory once, and sends it with each
+ * thread's first job of that file. Threads start like the feature threads (parallel-features.ts): the compiled
  * sibling `tile-thread.mjs` when present, else the TypeScript source through tsx's loader.
  */
 import { existsSync } from 'node:fs';
