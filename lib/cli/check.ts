@@ -246,7 +246,8 @@ async function check(values: Values, positionals: string[]): Promise<number> {
   const helper = str('tiles') === undefined ? startAnalysisHelper() : null;
   try {
     // The tiled path (its on-disk index, worker pools and queue code) is loaded only when asked for.
-    if (str('tiles') !== undefined) source = await (await import('../layout/open-tile-source')).openLayoutTileSource(file, topCell !== undefined ? { topCell } : {});
+    // A GDSII index in shared memory: the worker threads read it instead of indexing the file again.
+    if (str('tiles') !== undefined) source = await (await import('../layout/open-tile-source')).openLayoutTileSource(file, { shared: true, ...(topCell !== undefined ? { topCell } : {}) });
     else layout = await readLayoutFile(file, topCell !== undefined ? { topCell } : {});
   } catch (err) {
     helper?.close();
@@ -263,7 +264,7 @@ async function check(values: Values, positionals: string[]): Promise<number> {
       const marginUm = str('tile-margin-um') !== undefined ? numberOption('tile-margin-um', str('tile-margin-um')) : undefined;
       const threads = str('threads') !== undefined ? numberOption('threads', str('threads')) : 2;
       if (!Number.isInteger(threads) || threads < 0 || threads > 64) throw new UsageError('--threads must be a whole number from 0 to 64');
-      // Each worker thread opens the file itself from the spec (its own index and file handle).
+      // Each worker thread opens the file itself from the spec (its own file handle; the index is the one above).
       const spec = { kind: 'file' as const, path: resolve(file), ...(topCell !== undefined ? { topCell } : {}) };
       let tiled;
       try {

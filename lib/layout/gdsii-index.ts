@@ -11,8 +11,12 @@
  * longer than GRID_MIN, a grid of buckets by element centre — elements are reordered by bucket in place, and each
  * bucket keeps its bbox (≈ 1 byte per element) — so a tile tests buckets first and reads only the elements it
  * needs. Geometry is read back by position.
+ *
+ * With `shared`, every typed array of the lists lives in shared memory (array-alloc.ts), so the index can be posted
+ * to worker threads whole: the lists are shared, only the cell structure (names, references) is cloned.
  */
 import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
+import { plainAlloc, sharedAlloc, type ArrayAlloc } from './array-alloc';
 import { LayoutReadError } from './errors';
 import { GdsiiParser, type ElementSink } from './gdsii-parser';
 import { bottomUpOrder, cellTotals, checkMissingCells, chooseTopCell, type CellTotals } from './hierarchy';
@@ -64,6 +68,10 @@ export interface IndexedCell {
 export interface GdsiiIndex {
   path: string;
   fileSize: number;
+  /** The file's modification time when indexing began: offsets are valid only while size and time are unchanged. */
+  mtimeMs: number;
+  /** Lists in shared memory (IndexOptions.shared). */
+  shared: boolean;
   lib: GdsLibrary;
   cells: IndexedCell[];
   order: number[];
@@ -87,7 +95,7 @@ interface ListBuilder {
 class IndexSink implements ElementSink {
   readonly keepLabels = false;
   /** Store offset / 2 in uint32 (files below 8 GiB; element offsets are even). */
-  constructor(readonly half: boolean) {}
+  constructor(readonly half: boolean, readonly alloc: ArrayAlloc) {}
   readonly byCell = new Map<CellDef, Map<number, ListBuilder>>();
   private lastCell: CellDef | null = null;
   private lastList: ListBuilder | null = null;
@@ -121,14 +129,14 @@ class IndexSink implements ElementSink {
     if (i === 0) {
       // Small lists (most cells) start small; later chunks are full size.
       const size = list.count === 0 ? 16 : CHUNK;
-      list.offsets.push(this.half ? new Uint32Array(size) : new Float64Array(size));
-      list.boxes.push(new Int32Array(4 * size));
+      list.offsets.push(this.half ? this.alloc.u32(size) : this.alloc.f64(size));
+      list.boxes.push(this.alloc.i32(4 * size));
     } else if (i === list.offsets[list.offsets.length - 1]!.length) {
       // First chunk outgrew its small start: widen it to a full chunk.
-      const o = this.half ? new Uint32Array(CHUNK) : new Float64Array(CHUNK);
+      const o = this.half ? this.alloc.u32(CHUNK) : this.alloc.f64(CHUNK);
       o.set(list.offsets[0]!);
       list.offsets[0] = o;
-      const b = new Int32Array(4 * CHUNK);
+      const b = this.alloc.i32(4 * CHUNK);
       b.set(list.boxes[0]!);
       list.boxes[0] = b;
     }
@@ -152,19 +160,26 @@ const DONE = 0xffffffff;
  * Trim the last chunk and, for long lists sort the elements into a grid
  * of buckets by bbox centre — in place (cycle-following permutation), so no second copy of the list exists.
  */
-function buildList(b: ListBuilder, halfOffsets: boolean): ElementList {
+function buildList(b: ListBuilder, halfOffsets: boolean, alloc: ArrayAlloc): ElementList {
   const count = b.count;
   const last = b.offsets.length - 1;
   const used = count - (last << CHUNK_BITS);
   if (last >= 0 && used < b.offsets[last]!.length) {
-    b.offsets[last] = b.offsets[last]!.slice(0, used);
-    b.boxes[last] = (b.boxes[last] as Int32Array).slice(0, 4 * used);
+    const o = b.offsets[last]!;
+    const trimmed = o instanceof Uint32Array ? alloc.u32(used) : alloc.f64(used);
+    trimmed.set(o.subarray(0, used));
+    b.offsets[last] = trimmed;
+    const box = alloc.i32(4 * used);
+    box.set((b.boxes[last] as Int32Array).subarray(0, 4 * used));
+    b.boxes[last] = box;
   }
   const offsets = b.offsets;
   const boxes = b.boxes;
+  const exact = alloc.f64(4);
+  exact.set(b.exact);
   const list: ElementList = {
     key: b.key, layer: b.layer, datatype: b.datatype, count, points: b.points,
-    offsetChunks: offsets, offsetScale: halfOffsets ? 2 : 1, boxChunks: boxes, exact: Float64Array.from(b.exact), grid: null,
+    offsetChunks: offsets, offsetScale: halfOffsets ? 2 : 1, boxChunks: boxes, exact, grid: null,
   };
   if (count <= GRID_MIN) return list;
   const boxAt = (i: number, q: number) => boxes[i >> CHUNK_BITS]![4 * (i & MASK) + q] as number;
@@ -174,7 +189,7 @@ function buildList(b: ListBuilder, halfOffsets: boolean): ElementList {
   const sy = g / Math.max(1, ey1 - ey0);
   // dest[i]: first the bucket of element i, then (counting sort, stable) its position in bucket order.
   const dest = new Uint32Array(count);
-  const starts = new Uint32Array(g * g + 1);
+  const starts = alloc.u32(g * g + 1);
   for (let i = 0; i < count; i++) {
     const bx = Math.min(g - 1, Math.max(0, Math.floor(((boxAt(i, 0) + boxAt(i, 2)) / 2 - ex0) * sx)));
     const by = Math.min(g - 1, Math.max(0, Math.floor(((boxAt(i, 1) + boxAt(i, 3)) / 2 - ey0) * sy)));
@@ -184,7 +199,7 @@ function buildList(b: ListBuilder, halfOffsets: boolean): ElementList {
   }
   for (let k = 0; k < g * g; k++) starts[k + 1]! += starts[k] as number;
   const fill = starts.slice(0, g * g);
-  const bb = new Float64Array(4 * g * g);
+  const bb = alloc.f64(4 * g * g);
   for (let k = 0; k < g * g; k++) bb.set([Infinity, Infinity, -Infinity, -Infinity], 4 * k);
   for (let i = 0; i < count; i++) {
     const k = dest[i] as number;
@@ -224,6 +239,8 @@ export interface IndexOptions {
   topCell?: string;
   /** Keep byte offsets as float64 even below 8 GiB (the large-file layout, for tests). */
   float64Offsets?: boolean;
+  /** Keep the lists in shared memory, to hand the index to worker threads without copying (array-alloc.ts). */
+  shared?: boolean;
   /** Read buffer size (default 1 MiB). */
   chunkBytes?: number;
   signal?: AbortSignal;
@@ -231,8 +248,13 @@ export interface IndexOptions {
   onProgress?: (bytes: number, fileSize: number) => void;
 }
 
+let passes = 0;
+/** Index passes this thread has started (how often a file was indexed: tests and logs of the tile threads). */
+export const indexPasses = (): number => passes;
+
 /** Index the GDSII file at `path`. Throws LayoutReadError for unreadable or bad input. */
 export function indexGdsiiFile(path: string, opts: IndexOptions = {}): GdsiiIndex {
+  passes++;
   let fd: number;
   try {
     fd = openSync(path, 'r');
@@ -241,8 +263,9 @@ export function indexGdsiiFile(path: string, opts: IndexOptions = {}): GdsiiInde
     throw new LayoutReadError('io', `cannot read ${path}: ${e.code === 'ENOENT' ? 'no such file' : e.code === 'EISDIR' ? 'is a directory' : e.message}`);
   }
   try {
-    const fileSize = fstatSync(fd).size;
-    const sink = new IndexSink(fileSize < 2 ** 33 && !opts.float64Offsets);
+    const st = fstatSync(fd);
+    const fileSize = st.size;
+    const sink = new IndexSink(fileSize < 2 ** 33 && !opts.float64Offsets, opts.shared ? sharedAlloc() : plainAlloc);
     const parser = new GdsiiParser(sink);
     const buf = new Uint8Array(opts.chunkBytes ?? 1 << 20);
     for (let pos = 0; ;) {
@@ -262,7 +285,7 @@ export function indexGdsiiFile(path: string, opts: IndexOptions = {}): GdsiiInde
     const lib = parser.finish();
     const cells = lib.cells.map((def): IndexedCell => {
       const builders = sink.byCell.get(def);
-      const lists = builders ? [...builders.values()].sort((a, b) => a.key - b.key).map((b) => buildList(b, sink.half)) : [];
+      const lists = builders ? [...builders.values()].sort((a, b) => a.key - b.key).map((b) => buildList(b, sink.half, sink.alloc)) : [];
       sink.byCell.delete(def); // let the chunks go before the next cell's lists are built
       return { def, lists, elements: lists.reduce((n, l) => n + l.count, 0) };
     });
@@ -271,7 +294,7 @@ export function indexGdsiiFile(path: string, opts: IndexOptions = {}): GdsiiInde
     const order = bottomUpOrder(lib);
     const totals = cellTotals(lib, order, (_cell, i) => (cells[i] as IndexedCell).lists.map((l) => [l.key, l.count, l.points] as const));
     const top = chooseTopCell(lib, totals, opts.topCell);
-    return { path, fileSize, lib, cells, order, totals, top };
+    return { path, fileSize, mtimeMs: st.mtimeMs, shared: sink.alloc.shared, lib, cells, order, totals, top };
   } finally {
     closeSync(fd);
   }

@@ -3,7 +3,7 @@
  * is indexed on disk (gdsii-tile-source.ts) and analysed tile by tile (tiled/run-tiled.ts), giving the same maps,
  * openings, flags and summary as a whole read, plus a record of the tiling in the summary. Tiles are sized from the
  * analysis memory budget (tiled/tile-budget.ts). They run on this thread by default, or on
- * TRENCHANT_TILE_THREADS worker threads that each open the file themselves (each then holds its own index), or
+ * TRENCHANT_TILE_THREADS worker threads that read this analysis's own index (built in shared memory), or
  * as jobs on the `tiles` queue (tile-queue.ts) when TRENCHANT_REDIS_URL is set, the task names the layout's storage
  * key and at least one tile worker listens: tile workers open the layout through the storage interface (their read
  * cache on S3, the data folder's file on the local backend), not this process's local copy. Without a listening

@@ -147,6 +147,8 @@ export default async function analyse(task: AnalysisTask): Promise<AnalysisTaskR
       // The reader polls `aborted` only: this view of it also sees the shared cancel flag, inside the index pass and tile reads.
       const readSignal = { get aborted() { return isCancelled(); } } as AbortSignal;
       source = openGdsiiTileSource(task.layoutPath, {
+        // In shared memory: tile threads of this analysis (TRENCHANT_TILE_THREADS) read this index, not their own.
+        shared: true,
         signal: readSignal,
         onProgress: (bytes, size) => post('reading', (READ_SHARE * bytes) / Math.max(1, size)),
         ...(task.topCell ? { topCell: task.topCell } : {}),

@@ -1,26 +1,42 @@
 /**
  * Local files for an analysis job, whichever backend stores them: the worker thread reads the layout from a path
- * and writes its maps and column file into a folder (lib/pipeline/worker.ts), so on S3 the layout is downloaded to
+ * and writes its maps and column file into a folder (lib/pipeline/worker.ts), so on S3 the layout is fetched to
  * a temporary file first and the results are written to a temporary folder, then uploaded. On the local backend
  * both are the stored paths themselves, as before.
+ *
+ * On S3 the layout comes through the machine's read cache (read-cache.ts), and the job's file is a hard link to the
+ * cached copy: a worker process that runs an analysis and, as a tile worker, that analysis's tiles (which read the
+ * cached copy, stored-source.ts) downloads the layout once and keeps one copy on disk; the job's file stays whole if
+ * the cache lets its copy go meanwhile. Where no link can be made (cache on another file system) the cached copy is
+ * copied; where the copy went before it could be linked, the object is downloaded as before.
  */
-import { mkdir, mkdtemp, readdir, rm } from 'node:fs/promises';
+import { copyFile, link, mkdir, mkdtemp, readdir, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { TEMP_MARK } from './place-file';
-import { keepInCache } from './read-cache';
+import { keepInCache, readablePath } from './read-cache';
+import { asS3Store } from './s3-store';
 import type { ObjectStore } from './types';
 
 export type LocalInput = { path: string; release: () => Promise<void> };
 
-/** The object as a local file for the duration of a job; release() removes a downloaded copy. */
+/** The object as a local file for the duration of a job; release() removes the job's file (not the cached copy). */
 export async function localInput(store: ObjectStore, key: string, name = 'layout'): Promise<LocalInput> {
   const local = store.localPath(key);
   if (local) return { path: local, release: async () => undefined };
   const dir = await mkdtemp(path.join(tmpdir(), 'trenchant-job-'));
   const file = path.join(dir, `${name}${path.extname(key)}`);
   try {
-    await store.downloadTo(key, file);
+    const cached = asS3Store(store) ? await readablePath(store, key) : null;
+    if (!cached) await store.downloadTo(key, file);
+    else {
+      await link(cached, file).catch(() =>
+        copyFile(cached, file).catch(async (err: NodeJS.ErrnoException) => {
+          if (err.code !== 'ENOENT') throw err;
+          await store.downloadTo(key, file);
+        }),
+      );
+    }
   } catch (err) {
     await rm(dir, { recursive: true, force: true });
     throw err;

@@ -19,3 +19,8 @@ export function fixtureLayout(seed: number): FlatLayout {
 export function openFixtureSource(args: { seed: number }): TileSource {
   return inMemoryTileSource(fixtureLayout(args.seed));
 }
+
+/** A source whose thread stops the moment it is opened (exit code 7): a tile thread that dies, for the pool tests. */
+export function openDyingSource(): TileSource {
+  process.exit(7);
+}

@@ -16,11 +16,13 @@
 import { randomBytes } from 'node:crypto';
 import { rmSync } from 'node:fs';
 import { availableParallelism, tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { join, resolve } from 'node:path';
 import { FeatureFileWriter } from '../../jobs/feature-file-writer';
 import { OpeningSpill } from './spill';
 import type { ProcessModel } from '../../etch';
 import { coverageFromDifferences } from '../../geometry/raster';
+import type { GdsiiIndex } from '../../layout/gdsii-index';
+import type { GdsiiTileSource } from '../../layout/gdsii-tile-source';
 import type { TileSource } from '../../layout/tile-source';
 import { AnalysisAbortedError } from '../errors';
 import { runAnalysis, type AnalysisHooks, type AnalysisResult } from '../run-analysis';
@@ -34,6 +36,12 @@ import { PENDING_SIZE, type TileJob, type TileJobResult } from './tile-work';
 import { permuteFeatureTable } from '../../geometry/feature-table';
 
 const TILE_SHARE = 0.6;
+
+/** The source's GDSII index when it was built in shared memory for the spec's file: the threads then use it as it is. */
+function sharedIndexOf(source: TileSource, spec: TileSourceSpec): GdsiiIndex | undefined {
+  const index = (source as Partial<GdsiiTileSource>).index;
+  return index?.shared && spec.kind === 'file' && resolve(index.path) === resolve(spec.path) ? index : undefined;
+}
 /** Rows per chunk of a spilled run's per-opening stages. */
 const SPILL_CHUNK = 65_536;
 
@@ -71,6 +79,8 @@ export interface TiledStats {
   jobMs: { read: number; union: number; raster: number; features: number };
   /** Sampled peak of each worker's heap + external buffers, bytes (inline: the calling thread). */
   peakBytesPerWorker: number[];
+  /** GDSII index passes the worker threads ran (0 when they used the source's shared index, inline or on the queue). */
+  threadIndexPasses: number;
   /** Polygons read over all jobs / polygons in the etch layers: the cost of margins and re-reads. */
   readAmplification: number;
 }
@@ -101,7 +111,7 @@ export async function runTiledAnalysis(source: TileSource, settings: AnalysisSet
   const executor: TileExecutor =
     redisUrl && opts.spec && opts.spec.kind !== 'memory'
       ? await (await import('./tile-queue')).queueExecutor(redisUrl, opts.spec, plan, Math.max(1, opts.threads ?? 2))
-      : ((wantThreads > 0 && opts.spec ? threadExecutor(opts.spec, plan, wantThreads) : null) ?? inlineExecutor(source, plan));
+      : ((wantThreads > 0 && opts.spec ? threadExecutor(opts.spec, plan, wantThreads, sharedIndexOf(source, opts.spec)) : null) ?? inlineExecutor(source, plan));
   const t0 = performance.now();
   const { nx, ny } = plan.grid;
   const acc = new Float64Array(nx * ny);
@@ -232,6 +242,7 @@ export async function runTiledAnalysis(source: TileSource, settings: AnalysisSet
     tilePhaseMs: round(tilePhaseMs),
     jobMs: { read: round(jobMs.read), union: round(jobMs.union), raster: round(jobMs.raster), features: round(jobMs.features) },
     peakBytesPerWorker: executor.peakBytes(),
+    threadIndexPasses: (executor.indexPasses?.() ?? []).reduce((a, b) => a + b, 0),
     readAmplification: plan.polygonCount > 0 ? Math.round((polygonsRead / plan.polygonCount) * 1000) / 1000 : 1,
   };
   return Object.assign(result, { tiled }, featureFile ? { featureFile, spillCursors } : {});

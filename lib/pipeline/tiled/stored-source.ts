@@ -3,8 +3,8 @@
  * share nothing with the analysing process but Redis and the bucket. The tile queue worker resolves a 'stored' spec
  * to a local file before its threads open it: on S3 the object is fetched once into this machine's read cache
  * (read-cache.ts: single-flight, kept while there is room, never stale because stored objects never change under
- * their key); on the local backend it is the data folder's own file. The GDSII index is then built by the tile
- * thread on its first tile of the file and reused for the rest (tile-thread.ts).
+ * their key); on the local backend it is the data folder's own file. The GDSII index is then built once by one
+ * tile thread and shared with the others (index-registry.ts, tile-thread.ts).
  */
 import { storage } from '@/lib/storage';
 import { readablePath } from '@/lib/storage/read-cache';

@@ -1,12 +1,16 @@
 /**
  * Where tile jobs run: inline on the calling thread, or on worker threads (tile-thread.ts), each opening its own
- * TileSource from a serialisable spec. Threads start like the feature threads (parallel-features.ts): the compiled
+ * TileSource from a serialisable spec. A GDSII file's index is not built per thread: the pool asks its registry
+ * (index-registry.ts), which has the first free thread build it in shared memory once, and sends it with each
+ * thread's first job of that file. Threads start like the feature threads (parallel-features.ts): the compiled
  * sibling `tile-thread.mjs` when present, else the TypeScript source through tsx's loader.
  */
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
+import type { GdsiiIndex } from '../../layout/gdsii-index';
 import type { TileSource } from '../../layout/tile-source';
+import { IndexRegistry } from './index-registry';
 import type { TilePlan } from './plan';
 import type { TileSourceSpec } from './sources';
 import { unpackPart } from './stitch-features';
@@ -19,6 +23,8 @@ export interface TileExecutor {
   run(job: TileJob): Promise<TileJobResult & { worker: number }>;
   /** Peak sampled memory (heap + external buffers, bytes) per worker. */
   peakBytes(): number[];
+  /** GDSII index passes run by the worker threads (none inline or on the queue: the source or the tile workers index). */
+  indexPasses?(): number[];
   close(): Promise<void>;
 }
 
@@ -51,15 +57,44 @@ function startWorker(data: unknown): Worker | null {
   }
 }
 
-interface Pending {
-  resolve(r: TileJobResult & { worker: number }): void;
-  reject(e: Error): void;
+interface Reply {
+  id: number;
+  result?: TileJobResult & { packed: Float64Array };
+  /** Answer to a build request: the index, its lists in shared memory. */
+  index?: GdsiiIndex;
+  /** The thread no longer has the index the job names: send it again with the index. */
+  need?: boolean;
+  error?: { name: string; message: string };
+  peakBytes: number;
+  /** GDSII index passes this thread has run (gdsii-index.ts indexPasses). */
+  indexPasses?: number;
 }
 
-/** `threads` worker threads, or null when none can start (the caller then runs inline). */
-export function threadExecutor(spec: TileSourceSpec, plan: TilePlan, threads: number): TileExecutor | null {
-  const pool = startTileThreads(threads, { spec, plan });
-  return pool && { threads, via: 'threads', run: (job) => pool.run(job), peakBytes: pool.peakBytes, close: pool.close };
+interface Pending {
+  resolve(r: Reply): void;
+  reject(e: Error): void;
+  worker: number;
+}
+
+/**
+ * `threads` worker threads, or null when none can start (the caller then runs inline). `index`: a GDSII index the
+ * caller built in shared memory for `spec`'s file (the analysis's own source), handed to the threads as it is.
+ */
+export function threadExecutor(spec: TileSourceSpec, plan: TilePlan, threads: number, index?: GdsiiIndex): TileExecutor | null {
+  const registry = new IndexRegistry();
+  if (index) registry.put(index);
+  const pool = startTileThreads(threads, { spec, plan }, registry);
+  return pool && {
+    threads,
+    via: 'threads',
+    run: (job) => pool.run(job),
+    peakBytes: pool.peakBytes,
+    indexPasses: pool.indexPasses,
+    async close() {
+      await pool.close();
+      registry.clear();
+    },
+  };
 }
 
 /** Threads serving tiles of any analysis: each job names its source and plan (a tile queue worker, tile-queue.ts). */
@@ -69,15 +104,18 @@ export interface SharedTileThreads {
   /** A thread stopped (crashed, ran out of memory): this pool runs nothing more; start another. */
   broken(): boolean;
   peakBytes(): number[];
+  /** GDSII index passes each thread has run so far (one per file per pool when the registry works). */
+  indexPasses(): number[];
   close(): Promise<void>;
 }
 
-export function sharedTileThreads(threads: number): SharedTileThreads | null {
-  const pool = startTileThreads(threads, { perJob: true });
-  return pool && { threads, run: (job, spec, plan) => pool.run(job, { spec, plan }), broken: pool.broken, peakBytes: pool.peakBytes, close: pool.close };
+/** `registry`: where the GDSII indexes of the files live; give one that outlives the pool to keep them across pools. */
+export function sharedTileThreads(threads: number, registry: IndexRegistry = new IndexRegistry()): SharedTileThreads | null {
+  const pool = startTileThreads(threads, { perJob: true }, registry);
+  return pool && { threads, run: (job, spec, plan) => pool.run(job, { spec, plan }), broken: pool.broken, peakBytes: pool.peakBytes, indexPasses: pool.indexPasses, close: pool.close };
 }
 
-function startTileThreads(threads: number, boot: unknown) {
+function startTileThreads(threads: number, boot: { spec?: TileSourceSpec; plan?: TilePlan; perJob?: boolean }, registry: IndexRegistry) {
   const workers: Worker[] = [];
   for (let k = 0; k < threads; k++) {
     const w = startWorker(boot);
@@ -88,28 +126,26 @@ function startTileThreads(threads: number, boot: unknown) {
     workers.push(w);
   }
   const peaks = new Array<number>(threads).fill(0);
+  const passes = new Array<number>(threads).fill(0);
   const idle: number[] = workers.map((_, k) => k);
   const waiting: (() => void)[] = [];
-  const inflight = new Map<number, Pending & { worker: number }>();
+  const inflight = new Map<number, Pending>();
+  // Which registry indexes each thread was sent (a thread that let one go asks again: `need`).
+  const sent = workers.map(() => new Set<string>());
   let nextId = 1;
   let failed: Error | null = null;
   workers.forEach((w, k) => {
-    w.on('message', (msg: { id: number; result?: TileJobResult & { packed: Float64Array }; error?: { name: string; message: string }; peakBytes: number }) => {
+    w.on('message', (msg: Reply) => {
       peaks[k] = Math.max(peaks[k] as number, msg.peakBytes);
+      passes[k] = Math.max(passes[k] as number, msg.indexPasses ?? 0);
       const p = inflight.get(msg.id);
       if (!p) return;
       inflight.delete(msg.id);
-      idle.push(k);
-      waiting.shift()?.();
       if (msg.error) {
         const e = new Error(msg.error.message);
         e.name = msg.error.name;
         p.reject(e);
-      } else if (msg.result) {
-        const { packed, ...rest } = msg.result;
-        const part = unpackPart(packed);
-        p.resolve({ ...rest, features: part.features, keys: Array.from(part.keys), worker: k });
-      }
+      } else p.resolve(msg);
     });
     const fail = (err: Error) => {
       failed = err;
@@ -125,20 +161,65 @@ function startTileThreads(threads: number, boot: unknown) {
       if (code !== 0) fail(new Error(`tile worker ${k} stopped (exit code ${code})`));
     });
   });
+  const stopListening = registry.onEvict((indexId) => {
+    workers.forEach((w, k) => {
+      if ((sent[k] as Set<string>).delete(indexId)) w.postMessage({ drop: indexId });
+    });
+  });
+  const acquire = async (): Promise<number> => {
+    while (idle.length === 0 && !failed) await new Promise<void>((r) => waiting.push(r));
+    if (failed) throw failed;
+    return idle.shift() as number;
+  };
+  const release = (k: number) => {
+    idle.push(k);
+    waiting.shift()?.();
+  };
+  const ask = (k: number, msg: object): Promise<Reply> =>
+    new Promise((resolve, reject) => {
+      const id = nextId++;
+      inflight.set(id, { resolve, reject, worker: k });
+      (workers[k] as Worker).postMessage({ ...msg, id });
+    });
+  // The first thread free builds a file's index; the registry makes every other request wait for that one.
+  const build = async (path: string, indexId: string): Promise<GdsiiIndex> => {
+    const k = await acquire();
+    try {
+      (sent[k] as Set<string>).add(indexId);
+      const r = await ask(k, { build: { path, indexId } });
+      if (!r.index) throw new Error(`tile thread ${k} sent no index for ${path}`);
+      return r.index;
+    } finally {
+      release(k);
+    }
+  };
   return {
     async run(job: TileJob, ctx?: { spec: TileSourceSpec; plan: TilePlan }): Promise<TileJobResult & { worker: number }> {
-      while (idle.length === 0 && !failed) await new Promise<void>((r) => waiting.push(r));
       if (failed) throw failed;
-      const k = idle.shift() as number;
-      const id = nextId++;
-      return new Promise((resolve, reject) => {
-        inflight.set(id, { resolve, reject, worker: k });
-        (workers[k] as Worker).postMessage({ id, job, ...ctx });
-      });
+      const spec = ctx?.spec ?? boot.spec;
+      const building = spec?.kind === 'file' ? registry.get(spec.path, build) : null;
+      const entry = building ? await building : null;
+      const k = await acquire();
+      try {
+        const has = sent[k] as Set<string>;
+        const send = (withIndex: boolean) => ask(k, { job, ...ctx, ...(entry ? { index: { id: entry.id, ...(withIndex ? { data: entry.index } : {}) } } : {}) });
+        const fresh = entry !== null && !has.has(entry.id);
+        if (entry) has.add(entry.id);
+        let r = await send(fresh);
+        if (r.need) r = await send(true);
+        if (!r.result) throw new Error(`tile thread ${k} sent no result`);
+        const { packed, ...rest } = r.result;
+        const part = unpackPart(packed);
+        return { ...rest, features: part.features, keys: Array.from(part.keys), worker: k };
+      } finally {
+        release(k);
+      }
     },
     broken: () => failed !== null,
     peakBytes: () => peaks.slice(),
+    indexPasses: () => passes.slice(),
     async close() {
+      stopListening();
       await Promise.all(workers.map((w) => w.terminate()));
     },
   };

@@ -6,8 +6,9 @@
  * fetched into the worker's read cache, stored-source.ts), a file path every worker can read, or a module. The
  * 'memory' spec cannot cross processes and is refused.
  *
- * One pool of threads per tile worker serves every analysis; each thread keeps the last few sources it opened, so
- * a file's GDSII index is built once per thread and reused across its tiles (tile-thread.ts).
+ * One pool of threads per tile worker serves every analysis. A file's GDSII index is built once per tile worker, by
+ * one of its threads, in shared memory, and used by all of them (index-registry.ts); it is kept for the last few
+ * files, also across a pool restarted after a thread died, and rebuilt when the file changes (size, time).
  *
  * Results travel as base64 of the Float64Arrays (a 500 × 500-pixel core is 2 MB). A tile job is pure, so a retry
  * gives the same result: a job that fails is retried once (attempts: 2); a worker that dies mid-job (kill -9, out
@@ -18,6 +19,7 @@
 import { existsSync } from 'node:fs';
 import { Queue, QueueEvents, UnrecoverableError, Worker, type Job } from 'bullmq';
 import { lockMs, openRedis, redisPrefix, safeUrl } from '../../jobs/bullmq-shared';
+import { IndexRegistry } from './index-registry';
 import type { TilePlan } from './plan';
 import type { TileSourceSpec } from './sources';
 import { packPart, unpackPart } from './stitch-features';
@@ -127,6 +129,8 @@ export interface TileQueueWorkerOptions {
   threads?: number;
   /** A line per job started and ended (default: none; `npm run worker` passes console.log). */
   log?: (line: string) => void;
+  /** Where the GDSII indexes of this worker live (default: its own; tests pass one to count builds). */
+  indexes?: IndexRegistry;
 }
 
 /** A tile worker: takes tile jobs of any analysis from Redis and runs them on its threads. */
@@ -136,6 +140,7 @@ export async function startTileQueueWorker(url: string, options: number | TileQu
   const log = opts.log ?? (() => undefined);
   const connection = openRedis(url, 'tiles-worker');
   let pool: SharedTileThreads | null = null;
+  const indexes = opts.indexes ?? new IndexRegistry();
   // A stored layout is looked up in the read cache once per process, not per tile: the cache marks a copy used by
   // touching its file times, which an open GDSII source would take for a changed file.
   const resolved = new Map<string, Promise<TileSourceSpec>>();
@@ -170,7 +175,7 @@ export async function startTileQueueWorker(url: string, options: number | TileQu
       pool = null;
       await old.close();
     }
-    pool ??= sharedTileThreads(threads);
+    pool ??= sharedTileThreads(threads, indexes);
     if (!pool) throw new Error('tile worker: no worker thread could start');
     log(`[trenchant] tile worker ${process.pid}: job ${job.id} (${job.data.job.kind} of tile ${job.data.job.tile}) started${job.attemptsStarted > 1 ? ` (pick-up ${job.attemptsStarted})` : ''}`);
     const r = await pool.run(job.data.job, local, plan);
@@ -195,6 +200,7 @@ export async function startTileQueueWorker(url: string, options: number | TileQu
     async close() {
       await worker.close();
       await pool?.close();
+      indexes.clear();
       connection.disconnect();
     },
   };
