@@ -101,7 +101,9 @@ export type KernelShape = 'gaussian' | 'exponential';
 /** Truncation radius in units of L: Gaussian 4σ per axis (drops 1.3e-4 of the mass), exponential 10 L (5e-4). */
 export const KERNEL_RADIUS_IN_L: Record<KernelShape, number> = { gaussian: 4, exponential: 10 };
 /** Smallest L in pixels before the grid is coarsened (keeps the discrete kernel close to the continuous one). */
-export const MIN_L_PIXELS: Record<KernelShape, number> = { gaussian: 8, exponential: 4 };
+// Exponential: 8, not 4 — at 4 coarse pixels per L the block average and bilinear return of its cusp-shaped kernel
+// were off by up to 3e-3 in density against scipy (tests/geometry/outside-density.test.ts); at 8 by about 7e-4.
+export const MIN_L_PIXELS: Record<KernelShape, number> = { gaussian: 8, exponential: 8 };
 
 /**
  * Normalised discrete kernel for length L given in pixels: pixel (di, dj) holds the kernel's integral over that
@@ -190,8 +192,9 @@ function coarsen(values: ArrayLike<number>, nx: number, ny: number, f: number, m
 /**
  * Effective pattern density: coverage convolved with a normalised kernel of length L, on the same grid.
  * When L spans more than MIN_L_PIXELS pixels, the coverage is first block-averaged by the largest integer factor
- * keeping L ≥ MIN_L_PIXELS coarse pixels, convolved there, and interpolated back bilinearly (relative error of
- * order (pixel/L)² / 8 for the Gaussian, i.e. < 0.2 %). Deep-etch loading lengths of millimetres thus cost
+ * keeping L ≥ MIN_L_PIXELS coarse pixels, convolved there, and interpolated back bilinearly (error of order
+ * (pixel/L)²/8 of the density's local variation; measured ≤ 1.5e-3 in density against scipy, outside-density.test.ts).
+ * Deep-etch loading lengths of millimetres thus cost
  * little. Result in [0, 1] for coverage in [0, 1] ('empty' far inside a filled die → 1).
  */
 export function effectiveDensity(coverage: ArrayLike<number>, grid: Grid, opts: EffectiveDensityOptions): Float32Array {
