@@ -57,6 +57,7 @@ import type { Lattice } from './lattice';
 import { interiorRuns, lastRoots, runDistanceTransform, runMaximalCentres, runMaxD2, sortByD2Descending } from './lattice-runs';
 import { polishLocal, refineLargestDisk, seededBest } from './disk-search';
 import { edgeList } from './edge-distance';
+import { reflexSeededMaximum } from './reflex-seeds';
 import { convexInscribedRadius, isConvexRing } from './convex-width';
 import { polygonisedCircle } from './circle-width';
 import { manhattanLines } from './manhattan-lines';
@@ -273,8 +274,11 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
   const minW = exact || sc.node < 0 ? sc.width : (2 * polishLocal(edges, lat, sc.node)) / step;
   // The largest disk's centre may lie between nodes (e.g. a Manhattan frame corner, where it touches a concave
   // corner): polish the best nodes by pattern search on the exact distance to the rings.
-  const maxD = refineLargestDisk(edges, lat, d2, runs);
-  return { minWidth: Math.min(minW * step, 2 * seededBest), maxWidth: 2 * maxD, step, exact };
+  let maxD = refineLargestDisk(edges, lat, d2, runs);
+  const minCap = 2 * seededBest;
+  // Off the exact lattice, junction disks at reflex corners can hide behind the arms' plateaus (reflex-seeds.ts).
+  if (!exact) maxD = reflexSeededMaximum(coords, rings, edges, step, maxD);
+  return { minWidth: Math.min(minW * step, minCap), maxWidth: 2 * maxD, step, exact };
 }
 
 /**
