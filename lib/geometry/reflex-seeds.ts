@@ -10,7 +10,7 @@ import { climbToMaximum } from './disk-search';
 import { distanceToEdges } from './edge-distance';
 
 /** Reflex corners looked at, and climbs made from the best of their starts (bounds the cost per opening). */
-const MAX_REFLEX = 64, MAX_CLIMBS = 4;
+const MAX_REFLEX = 64, MAX_CLIMBS = 2;
 const seedX = new Float64Array(MAX_REFLEX), seedY = new Float64Array(MAX_REFLEX), seedD = new Float64Array(MAX_REFLEX);
 
 /** Nonzero winding number of (x, y) in the rings (interior on the left: outer rings counter-clockwise). */
