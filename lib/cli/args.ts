@@ -16,11 +16,28 @@ type Options = NonNullable<ParseArgsConfig['options']>;
  */
 export function parseCommandArgs<O extends Options>(argv: string[], options: O) {
   try {
-    return parseArgs({ args: argv, options, allowPositionals: true, strict: true });
+    return parseArgs({ args: joinNegativeValues(argv, options), options, allowPositionals: true, strict: true });
   } catch (err) {
     // node's messages can span lines; commands promise one-line errors.
     throw new UsageError((err instanceof Error ? err.message : String(err)).replace(/\s*\n\s*/g, ' '));
   }
+}
+
+/**
+ * node's parseArgs refuses `--origin-um -10,5` (a value starting with "-" looks like an option to it). A value
+ * option followed by something that reads as a negative number is joined into `--origin-um=-10,5`.
+ */
+function joinNegativeValues(argv: string[], options: Options): string[] {
+  const out: string[] = [];
+  for (let k = 0; k < argv.length; k++) {
+    const a = argv[k] as string, next = argv[k + 1];
+    const name = a.startsWith('--') && !a.includes('=') ? a.slice(2) : undefined;
+    if (name !== undefined && options[name]?.type === 'string' && next !== undefined && /^-(\d|\.\d)/.test(next)) {
+      out.push(`${a}=${next}`);
+      k++;
+    } else out.push(a);
+  }
+  return out;
 }
 
 /** Parse a finite number option, naming the option in the error. */

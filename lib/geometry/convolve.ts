@@ -101,7 +101,9 @@ export type KernelShape = 'gaussian' | 'exponential';
 /** Truncation radius in units of L: Gaussian 4σ per axis (drops 1.3e-4 of the mass), exponential 10 L (5e-4). */
 export const KERNEL_RADIUS_IN_L: Record<KernelShape, number> = { gaussian: 4, exponential: 10 };
 /** Smallest L in pixels before the grid is coarsened (keeps the discrete kernel close to the continuous one). */
-export const MIN_L_PIXELS: Record<KernelShape, number> = { gaussian: 8, exponential: 4 };
+// Exponential: 8, not 4 — at 4 coarse pixels per L the block average and bilinear return of its cusp-shaped kernel
+// were off by up to 3e-3 in density against scipy (tests/geometry/outside-density.test.ts); at 8 by about 7e-4.
+export const MIN_L_PIXELS: Record<KernelShape, number> = { gaussian: 8, exponential: 8 };
 
 /**
  * Normalised discrete kernel for length L given in pixels: pixel (di, dj) holds the kernel's integral over that
@@ -149,28 +151,50 @@ export interface EffectiveDensityOptions {
   maxFftSide?: number;
 }
 
-/** Block-average by an integer factor f; 'empty' keeps outside pixels as zeros, 'mirror' averages what exists. */
-function coarsen(values: ArrayLike<number>, nx: number, ny: number, f: number, outside: 'empty' | 'mirror') {
+/**
+ * Block-average by an integer factor f onto a coarse grid with `m` extra coarse pixels on every side. Block (ci, cj)
+ * (ci in [−m, cx + m)) averages fine pixels ci·f … ci·f + f − 1; fine pixels outside the die are zeros ('empty') or
+ * the die reflected at its own edge ('mirror', reflectIndex), so the partial last block and the margin hold what
+ * lies there. (Reflecting the coarse grid instead would put the mirror at the coarse grid's edge, up to f − 1 fine
+ * pixels past the die's, and averaging only the existing pixels of a partial block would stretch them over the block.)
+ * Separable: block sums along x for every fine row, then along y.
+ */
+function coarsen(values: ArrayLike<number>, nx: number, ny: number, f: number, m: number, outside: 'empty' | 'mirror') {
   const cx = Math.ceil(nx / f), cy = Math.ceil(ny / f);
-  const out = new Float64Array(cx * cy);
-  const cnt = new Float64Array(cx * cy);
+  const ex = cx + 2 * m, ey = cy + 2 * m;
+  const fine = (i: number, n: number) => (outside === 'mirror' ? reflectIndex(i, n) : i >= 0 && i < n ? i : -1);
+  const rowSums = new Float64Array(ny * ex);
+  const colOf = new Int32Array(ex * f);
+  for (let c = 0; c < ex * f; c++) colOf[c] = fine((c - m * f), nx);
   for (let j = 0; j < ny; j++) {
-    const cj = Math.floor(j / f);
-    for (let i = 0; i < nx; i++) {
-      const q = cj * cx + Math.floor(i / f);
-      out[q]! += values[j * nx + i] as number;
-      cnt[q]! += 1;
+    for (let c = 0; c < ex; c++) {
+      let s = 0;
+      for (let a = 0; a < f; a++) {
+        const i = colOf[c * f + a] as number;
+        if (i >= 0) s += values[j * nx + i] as number;
+      }
+      rowSums[j * ex + c] = s;
     }
   }
-  for (let q = 0; q < out.length; q++) out[q] = (out[q] as number) / (outside === 'empty' ? f * f : (cnt[q] as number));
-  return { values: out, cx, cy };
+  const out = new Float64Array(ex * ey);
+  for (let r = 0; r < ey; r++) {
+    for (let b = 0; b < f; b++) {
+      const j = fine((r - m) * f + b, ny);
+      if (j < 0) continue;
+      for (let c = 0; c < ex; c++) out[r * ex + c]! += rowSums[j * ex + c] as number;
+    }
+  }
+  const inv = 1 / (f * f);
+  for (let q = 0; q < out.length; q++) out[q] = (out[q] as number) * inv;
+  return { values: out, ex, ey };
 }
 
 /**
  * Effective pattern density: coverage convolved with a normalised kernel of length L, on the same grid.
  * When L spans more than MIN_L_PIXELS pixels, the coverage is first block-averaged by the largest integer factor
- * keeping L ≥ MIN_L_PIXELS coarse pixels, convolved there, and interpolated back bilinearly (relative error of
- * order (pixel/L)² / 8 for the Gaussian, i.e. < 0.2 %). Deep-etch loading lengths of millimetres thus cost
+ * keeping L ≥ MIN_L_PIXELS coarse pixels, convolved there, and interpolated back bilinearly (error of order
+ * (pixel/L)²/8 of the density's local variation; measured ≤ 1.5e-3 in density against scipy, outside-density.test.ts).
+ * Deep-etch loading lengths of millimetres thus cost
  * little. Result in [0, 1] for coverage in [0, 1] ('empty' far inside a filled die → 1).
  */
 export function effectiveDensity(coverage: ArrayLike<number>, grid: Grid, opts: EffectiveDensityOptions): Float32Array {
@@ -183,25 +207,28 @@ export function effectiveDensity(coverage: ArrayLike<number>, grid: Grid, opts: 
   // Keep the padded FFT within maxSide per axis.
   const side = (ff: number) => Math.max(Math.ceil(grid.nx / ff), Math.ceil(grid.ny / ff)) + 3 * Math.ceil(KERNEL_RADIUS_IN_L[shape] * (lPx / ff));
   while (side(f) > maxSide) f++;
-  const { values, cx, cy } = f > 1 ? coarsen(coverage, grid.nx, grid.ny, f, outside) : { values: coverage, cx: grid.nx, cy: grid.ny };
-  const { kernel, r } = densityKernel(shape, lPx / f);
-  const coarse = convolve2d(values, cx, cy, kernel, r, outside === 'mirror' ? 'mirror' : 'zero');
-  const out = new Float32Array(grid.nx * grid.ny);
   if (f === 1) {
-    for (let q = 0; q < out.length; q++) out[q] = coarse[q] as number;
-    return out;
+    const { kernel, r } = densityKernel(shape, lPx);
+    const fine = convolve2d(coverage, grid.nx, grid.ny, kernel, r, outside === 'mirror' ? 'mirror' : 'zero');
+    return Float32Array.from(fine);
   }
-  // Bilinear from coarse pixel centres ((c + 0.5)·f in fine pixels) to fine pixel centres, clamped at the ends.
+  const { kernel, r } = densityKernel(shape, lPx / f);
+  // A margin of coarse pixels: one for the interpolation at the die's edges (no clamping there: the effective density
+  // changes fastest at the edge), plus the kernel radius when the outside is the mirrored die.
+  const m = outside === 'mirror' ? r + 1 : 1;
+  const { values, ex, ey } = coarsen(coverage, grid.nx, grid.ny, f, m, outside);
+  const coarse = convolve2d(values, ex, ey, kernel, r, 'zero');
+  const out = new Float32Array(grid.nx * grid.ny);
+  // Bilinear from coarse pixel centres (fine coordinate (c − m + 0.5)·f) to fine pixel centres (i + 0.5).
   for (let j = 0; j < grid.ny; j++) {
-    const v = Math.min(Math.max((j + 0.5) / f - 0.5, 0), cy - 1);
-    const j0 = Math.min(Math.floor(v), cy - 2 < 0 ? 0 : cy - 2), fv = cy > 1 ? v - j0 : 0;
+    const v = (j + 0.5) / f - 0.5 + m;
+    const j0 = Math.floor(v), fv = v - j0;
     for (let i = 0; i < grid.nx; i++) {
-      const u = Math.min(Math.max((i + 0.5) / f - 0.5, 0), cx - 1);
-      const i0 = Math.min(Math.floor(u), cx - 2 < 0 ? 0 : cx - 2), fu = cx > 1 ? u - i0 : 0;
-      const i1 = Math.min(i0 + 1, cx - 1), j1 = Math.min(j0 + 1, cy - 1);
+      const u = (i + 0.5) / f - 0.5 + m;
+      const i0 = Math.floor(u), fu = u - i0;
       out[j * grid.nx + i] =
-        (coarse[j0 * cx + i0] as number) * (1 - fu) * (1 - fv) + (coarse[j0 * cx + i1] as number) * fu * (1 - fv) +
-        (coarse[j1 * cx + i0] as number) * (1 - fu) * fv + (coarse[j1 * cx + i1] as number) * fu * fv;
+        (coarse[j0 * ex + i0] as number) * (1 - fu) * (1 - fv) + (coarse[j0 * ex + i0 + 1] as number) * fu * (1 - fv) +
+        (coarse[(j0 + 1) * ex + i0] as number) * (1 - fu) * fv + (coarse[(j0 + 1) * ex + i0 + 1] as number) * fu * fv;
     }
   }
   return out;

@@ -22,6 +22,9 @@ import type { Box, Polarity } from './types';
 export type { OpenRegions } from './region-builder';
 export { clipRingToBox } from './tile-union';
 
+/** Largest automatic tile: polygons spanning more are clipped to their tiles before clipper (tile-union.ts). */
+export const MAX_TILE_DBU = 2 ** 30;
+
 export interface OpenRegionsOptions {
   polarity?: Polarity;
   /** Reference region (dbu); default: the bounding box of the set. Required to be non-empty for 'dark'. */
@@ -84,7 +87,7 @@ export function planUnion(set: PolygonSet, opts: OpenRegionsOptions = {}, alloc:
   const region: Box | null = opts.regionDbu ?? bbox;
   if (!region || region[2] <= region[0] || region[3] <= region[1]) return { empty: region ?? [0, 0, 0, 0] };
   const w = region[2] - region[0], h = region[3] - region[1];
-  const tile = opts.tileDbu ?? Math.max(1, Math.ceil(Math.sqrt((w * h * 64) / Math.max(1, set.count))));
+  const tile = opts.tileDbu ?? Math.min(MAX_TILE_DBU, Math.max(1, Math.ceil(Math.sqrt((w * h * 64) / Math.max(1, set.count)))));
   const ntx = Math.max(1, Math.ceil(w / tile)), nty = Math.max(1, Math.ceil(h / tile));
 
   // Bucket polygon indices per tile (closed bbox test so touching polygons meet in some tile).

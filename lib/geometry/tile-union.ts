@@ -110,10 +110,11 @@ export function processTile(set: PolygonSet, polyBox: Float64Array, members: Uin
   let paths: ClipperLib.Paths = [];
   let anyClockwise = false;
   for (const p of clipperSet) {
-    const path: ClipperLib.Path = [];
+    let path: ClipperLib.Path = [];
     for (let k = set.offsets[p] as number; k < (set.offsets[p + 1] as number); k++) {
       path.push({ X: set.coords[2 * k] as number, Y: set.coords[2 * k + 1] as number });
     }
+    if (spansTooFar(polyBox, p)) path = clipHugeRing(path, tb);
     if (path.length < 3) continue;
     if (ClipperLib.Clipper.Area(path) < 0) anyClockwise = true;
     paths.push(path);
@@ -154,6 +155,27 @@ export function processTile(set: PolygonSet, polyBox: Float64Array, members: Uin
       addCoverageRing(b, clipRingToBox(xy, tb), sign);
     }
   }
+}
+
+/**
+ * clipper-lib's JS port returns nothing for a polygon spanning 2³² dbu or more (measured: a triangle across
+ * ±2³¹, the int32 extremes of GDSII, unites and clips to an empty set), so such a polygon would vanish without a
+ * word. Polygons spanning 2³⁰ dbu or more are clipped to the tile first (tiles are at most MAX_TILE_DBU, open-regions.ts)
+ * and their crossings with the tile lines rounded to the dbu grid (≤ 0.5 dbu on a line of ≥ 2³⁰ dbu).
+ */
+const HUGE_SPAN_DBU = 2 ** 30;
+
+function spansTooFar(polyBox: Float64Array, p: number): boolean {
+  return (polyBox[4 * p + 2] as number) - (polyBox[4 * p] as number) >= HUGE_SPAN_DBU || (polyBox[4 * p + 3] as number) - (polyBox[4 * p + 1] as number) >= HUGE_SPAN_DBU;
+}
+
+function clipHugeRing(path: ClipperLib.Path, tb: Box): ClipperLib.Path {
+  const xy: number[] = [];
+  for (const pt of path) xy.push(pt.X, pt.Y);
+  const clipped = clipRingToBox(xy, tb);
+  const out: ClipperLib.Path = [];
+  for (let k = 0; k + 1 < clipped.length; k += 2) out.push({ X: Math.round(clipped[k] as number), Y: Math.round(clipped[k + 1] as number) });
+  return out;
 }
 
 /**

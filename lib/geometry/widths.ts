@@ -44,7 +44,11 @@
  * (ridge-snap.ts, accepted only where the directions to the nearest boundary points certify a maximum); a wider snap
  * sets a floor where the search stalls on a slanted crease or a plateau below a nearby larger maximum. The tests hold
  * a curved non-convex shape (an annulus) to 2 % of its analytic width and Manhattan T/L/cross/comb openings off the
- * exact lattice to 1e-6 dbu. A node counts as self-centred when no node with a strictly larger disk covers it, so
+ * exact lattice to 1e-6 dbu. Known limit (outside check, tests/fixtures/verify/make_widths.py): an L of 3 and 4 µm arms
+ * rotated by 5° or 45° reads minWidth 4 µm — both arms' ridges tie on the lattice (D = √8 steps) and only the first
+ * tied node is polished; polishing every tied node instead let nodes beside stubs thinner than the lattice (an L
+ * with a 1 µm arm) polish to points near the edge, so it was left. Largest disks at reflex corners get extra climbs
+ * (reflex-seeds.ts); an L at 17° or 41° still reads 4.00 instead of 4.20 µm. A node counts as self-centred when no node with a strictly larger disk covers it, so
  * lattice noise can only raise minWidth. Axis-aligned rectangles, convex shapes and polygonised circles are
  * computed analytically.
  *
@@ -57,6 +61,7 @@ import type { Lattice } from './lattice';
 import { interiorRuns, lastRoots, runDistanceTransform, runMaximalCentres, runMaxD2, sortByD2Descending } from './lattice-runs';
 import { polishLocal, refineLargestDisk, seededBest } from './disk-search';
 import { edgeList } from './edge-distance';
+import { reflexSeededMaximum } from './reflex-seeds';
 import { convexInscribedRadius, isConvexRing } from './convex-width';
 import { polygonisedCircle } from './circle-width';
 import { manhattanLines } from './manhattan-lines';
@@ -273,8 +278,11 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
   const minW = exact || sc.node < 0 ? sc.width : (2 * polishLocal(edges, lat, sc.node)) / step;
   // The largest disk's centre may lie between nodes (e.g. a Manhattan frame corner, where it touches a concave
   // corner): polish the best nodes by pattern search on the exact distance to the rings.
-  const maxD = refineLargestDisk(edges, lat, d2, runs);
-  return { minWidth: Math.min(minW * step, 2 * seededBest), maxWidth: 2 * maxD, step, exact };
+  let maxD = refineLargestDisk(edges, lat, d2, runs);
+  const minCap = 2 * seededBest;
+  // Off the exact lattice, junction disks at reflex corners can hide behind the arms' plateaus (reflex-seeds.ts).
+  if (!exact) maxD = reflexSeededMaximum(coords, rings, edges, step, maxD);
+  return { minWidth: Math.min(minW * step, minCap), maxWidth: 2 * maxD, step, exact };
 }
 
 /**
