@@ -97,7 +97,7 @@ export function FindingsSection({ analysisId }: { analysisId: string }) {
           Findings{' '}
           {data ? (
             <span className="font-mono text-sm font-normal text-ink-500" data-testid="findings-count">
-              {data.view === 'groups' ? `${data.total} group${data.total === 1 ? '' : 's'} · ${data.findings ?? 0} finding${data.findings === 1 ? '' : 's'}` : `${data.total} finding${data.total === 1 ? '' : 's'}`}
+              {data.view === 'groups' ? `${data.total.toLocaleString('en')} group${data.total === 1 ? '' : 's'} · ${(data.findings ?? 0).toLocaleString('en')} finding${data.findings === 1 ? '' : 's'}` : `${data.total.toLocaleString('en')} finding${data.total === 1 ? '' : 's'}`}
             </span>
           ) : null}
         </h2>

@@ -1,11 +1,13 @@
 import { Card } from '@/components/ui/card';
 import { formatPercent } from '@/lib/format/percent';
+import { layerHints } from '@/lib/pipeline/layer-hints';
 import type { AnalysisSummary } from '@/lib/pipeline/summary';
 
 export type Summary = AnalysisSummary;
 
 const pct = (v: number) => formatPercent(v);
 const um = (v: number) => `${v.toFixed(2)} µm`;
+const n = (v: number) => v.toLocaleString('en');
 
 function Figure({ label, value, sub }: { label: string; value: string; sub?: string }) {
   return (
@@ -22,18 +24,24 @@ export function SummaryPanel({ summary: s }: { summary: Summary }) {
   const kinds = Object.entries(s.flags.counts)
     .map(([kind, c]) => ({ kind, ...c, total: c.error + c.warning + c.info }))
     .filter((k) => k.total > 0);
+  const hints = layerHints(s);
   return (
-    <Card className="p-6" >
+    <Card className="p-6">
       <h2 className="mb-4 text-lg font-semibold text-ink-900">Summary</h2>
+      {hints.map((h) => (
+        <p key={h} role="note" className="mb-4 rounded-md border border-warn/40 bg-warn/5 px-3 py-2 text-sm text-ink-800" data-testid="layer-hint">
+          {h}
+        </p>
+      ))}
       <div className="grid gap-3 sm:grid-cols-2 lg:grid-cols-4" data-testid="summary">
         <Figure label="Global open-area density" value={pct(s.globalDensity)} sub={`layers ${s.layout.etchLayers.join(', ')} · ${s.layout.polygonCount.toLocaleString('en')} polygons`} />
-        <Figure label="Openings analysed" value={s.features.count.toLocaleString('en')} sub={Object.entries(s.features.byShape).map(([k, n]) => `${n} ${k}`).join(' · ')} />
+        <Figure label="Openings analysed" value={s.features.count.toLocaleString('en')} sub={Object.entries(s.features.byShape).map(([k, c]) => `${n(c)} ${k}`).join(' · ')} />
         <Figure
           label="Predicted depth"
           value={s.depth ? `${s.depth.minUm.toFixed(1)}–${s.depth.maxUm.toFixed(1)} µm` : '—'}
-          sub={s.depth ? `spread ${um(s.depth.spreadUm)} · ${s.depth.reachingTarget} of ${s.features.count} reach ${s.limits.targetDepthUm} µm` : 'no openings'}
+          sub={s.depth ? `spread ${um(s.depth.spreadUm)} · ${n(s.depth.reachingTarget)} of ${n(s.features.count)} reach ${s.limits.targetDepthUm} µm` : 'no openings'}
         />
-        <Figure label="Flags" value={`${s.flags.bySeverity.error} errors`} sub={`${s.flags.bySeverity.warning} warnings · ${s.flags.bySeverity.info} info`} />
+        <Figure label="Flags" value={`${n(s.flags.bySeverity.error)} error${s.flags.bySeverity.error === 1 ? '' : 's'}`} sub={`${n(s.flags.bySeverity.warning)} warning${s.flags.bySeverity.warning === 1 ? '' : 's'} · ${n(s.flags.bySeverity.info)} info`} />
       </div>
       <div className="mt-5 grid gap-6 lg:grid-cols-2">
         <table className="w-full text-left text-sm">
@@ -87,9 +95,9 @@ export function SummaryPanel({ summary: s }: { summary: Summary }) {
               kinds.map((k) => (
                 <tr key={k.kind} className="border-t border-wafer-200">
                   <td className="py-1.5 pr-3">{k.kind}</td>
-                  <td className="py-1.5 pr-3 font-mono">{k.error}</td>
-                  <td className="py-1.5 pr-3 font-mono">{k.warning}</td>
-                  <td className="py-1.5 font-mono">{k.info}</td>
+                  <td className="py-1.5 pr-3 font-mono">{n(k.error)}</td>
+                  <td className="py-1.5 pr-3 font-mono">{n(k.warning)}</td>
+                  <td className="py-1.5 font-mono">{n(k.info)}</td>
                 </tr>
               ))
             )}

@@ -4,7 +4,7 @@ import { useQuery } from '@tanstack/react-query';
 import { useCallback, useState } from 'react';
 import { useFindingSelection } from '@/components/analysis/finding-selection';
 import { apiJson } from '@/components/pipeline/api-client';
-import { mapKindInfo, sampleAt } from '@/lib/viewer/map-kinds';
+import { mapKindInfo, mapVariantLabel, sampleAt } from '@/lib/viewer/map-kinds';
 import { focusOn, scaleBar, screenToLayout, type View } from '@/lib/viewer/view-transform';
 import type { ViewerInfo } from '@/lib/viewer/viewer-source';
 import { FlagTooltip, type HoverMark } from './flag-tooltip';
@@ -88,7 +88,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
           {shownMaps.map((m) => (
             <button key={m.name} type="button" role="tab" aria-selected={shown?.name === m.name} onClick={() => setCurrent(m.name)} data-testid={`map-${m.name}`} className={`rounded px-2 py-1 ${shown?.name === m.name ? 'bg-ink-900 text-wafer-50' : 'text-ink-700 hover:bg-wafer-200/60'}`}>
               {mapKindInfo(m.kind).label}
-              {m.name !== m.kind ? ` ${m.name.replace(`${m.kind}-`, '')}` : ''}
+              {m.name !== m.kind ? ` ${mapVariantLabel(m.name, m.kind)}` : ''}
               {m.whatIf ? ' (what-if)' : ''}
             </button>
           ))}

@@ -1,7 +1,7 @@
 'use client';
 
 import { gradientCss, type ScaleName } from '@/lib/viewer/color-scale';
-import { formatValue, mapKindInfo } from '@/lib/viewer/map-kinds';
+import { formatValue, mapKindInfo, mapVariantLabel } from '@/lib/viewer/map-kinds';
 import type { WhatIfParams } from '@/lib/viewer/whatif';
 import { markStyle } from './flag-marks';
 
@@ -72,7 +72,7 @@ export function Readout({ at, rows }: { at: [number, number] | null; rows: Reado
             <tr key={r.name} data-testid={`readout-${r.name}`} data-value={Number.isFinite(r.value) ? r.value : ''}>
               <td className="pr-2 font-sans text-ink-500">
                 {mapKindInfo(r.kind).label}
-                {r.name !== r.kind ? <span className="text-ink-500"> ({r.name.replace(`${r.kind}-`, '')})</span> : null}
+                {r.name !== r.kind ? <span className="text-ink-500"> ({mapVariantLabel(r.name, r.kind)})</span> : null}
                 {r.whatIf ? ' *' : ''}
               </td>
               <td className="text-right text-ink-900">{at ? formatValue(r.value, r.unit) : '—'}</td>
