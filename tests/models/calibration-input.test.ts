@@ -39,6 +39,14 @@ describe('calibration CSV — every bad row named by its line', () => {
     expect(r.rows).toEqual([]);
     expect(r.errors[0]?.line).toBe(3);
   });
+  it('a row with too few or too many values is its own error; the rows around it are still read and checked', () => {
+    // a short row used to end the whole file with the parser's own words and hide the other lines' errors
+    const r = parseCalibrationCsvReport(`${HEADER}\n1,trench,0.1,10,20\n2,trench,zz,10,22\n3,trench,0.1,10\n2,5,trench,0.1,10,30\n5,hole,0.2,10,24\n`);
+    expect(r.rows.map((x) => x.line)).toEqual([2, 6]);
+    expect(r.errors.map((e) => e.line)).toEqual([3, 4, 5]);
+    expect(r.errors[1]?.message).toBe('line 4: 4 values, the header has 5 columns (width_um,kind,density,time_min,depth_um); a decimal comma splits a number in two');
+    expect(r.errors[2]?.message).toMatch(/^line 5: 6 values, the header has 5 columns/);
+  });
   it('caps the list at 100 errors and says so', () => {
     const lines = [HEADER, ...Array.from({ length: 150 }, () => '2,slot,0.3,10,25')];
     const r = parseCalibrationCsvReport(lines.join('\n'));

@@ -28,7 +28,8 @@ function Section({ title, children, testId }: { title: string; children: React.R
   );
 }
 
-const show = (v: unknown) => (v === null || v === undefined ? '—' : String(v));
+// Six significant digits: fitted values carry float noise (3.6633096781354544) that is not precision.
+const show = (v: unknown) => (v === null || v === undefined ? '—' : typeof v === 'number' ? String(Number(v.toPrecision(6))) : String(v));
 
 export default async function ModelVersionPage({ params, searchParams }: { params: Promise<{ versionId: string }>; searchParams: Promise<{ against?: string }> }) {
   const user = await requireUser();
