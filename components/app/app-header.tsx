@@ -9,7 +9,7 @@ export function AppHeader({ user, teams }: { user: AuthUser; teams: { id: string
   return (
     <header className="bg-ink-900 text-wafer-50">
       {/* Below lg the navigation takes its own row and scrolls sideways, so a phone never gets a page wider than itself. */}
-      <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-8 gap-y-1 px-4 py-2 sm:px-6 lg:h-14 lg:flex-nowrap lg:py-0">
+      <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-4 gap-y-1 px-4 py-2 sm:px-6 lg:h-14 lg:flex-nowrap lg:gap-x-8 lg:py-0">
         <Link href="/projects" aria-label="Trenchant home" className="shrink-0">
           <Logo size={26} />
         </Link>

@@ -39,7 +39,7 @@ export function FindingsTable(props: Props) {
 
   return (
     <div className="overflow-x-auto">
-      <table className="w-full text-left text-sm" data-testid="findings-table">
+      <table className="w-full min-w-[36rem] text-left text-sm" data-testid="findings-table">
         <thead className="text-xs text-ink-500">
           <tr>
             {props.canAct ? (

@@ -44,65 +44,69 @@ export function SummaryPanel({ summary: s }: { summary: Summary }) {
         <Figure label="Flags" value={`${n(s.flags.bySeverity.error)} error${s.flags.bySeverity.error === 1 ? '' : 's'}`} sub={`${n(s.flags.bySeverity.warning)} warning${s.flags.bySeverity.warning === 1 ? '' : 's'} · ${n(s.flags.bySeverity.info)} info`} />
       </div>
       <div className="mt-5 grid gap-6 lg:grid-cols-2">
-        <table className="w-full text-left text-sm">
-          <thead className="text-xs text-ink-500">
-            <tr>
-              <th className="py-1 pr-3 font-medium">window / step</th>
-              <th className="py-1 pr-3 font-medium">min</th>
-              <th className="py-1 pr-3 font-medium">max</th>
-              <th className="py-1 pr-3 font-medium">mean</th>
-              <th className="py-1 font-medium">max step</th>
-            </tr>
-          </thead>
-          <tbody className="font-mono text-xs">
-            {s.windows.map((w) => (
-              <tr key={`${w.windowUm}-${w.stepUm}`} className="border-t border-wafer-200">
-                <td className="py-1.5 pr-3">
-                  {w.windowUm}/{w.stepUm} µm
-                </td>
-                <td className="py-1.5 pr-3">{pct(w.min)}</td>
-                <td className="py-1.5 pr-3">{pct(w.max)}</td>
-                <td className="py-1.5 pr-3">{pct(w.mean)}</td>
-                <td className="py-1.5">{pct(w.maxGradient)}</td>
-              </tr>
-            ))}
-            <tr className="border-t border-wafer-200">
-              <td className="py-1.5 pr-3">effective ({s.effectiveDensity.kernel}, L {s.effectiveDensity.lengthUm} µm)</td>
-              <td className="py-1.5 pr-3">{pct(s.effectiveDensity.min)}</td>
-              <td className="py-1.5 pr-3">{pct(s.effectiveDensity.max)}</td>
-              <td className="py-1.5 pr-3" />
-              <td className="py-1.5" />
-            </tr>
-          </tbody>
-        </table>
-        <table className="w-full text-left text-sm">
-          <thead className="text-xs text-ink-500">
-            <tr>
-              <th className="py-1 pr-3 font-medium">flag kind</th>
-              <th className="py-1 pr-3 font-medium">errors</th>
-              <th className="py-1 pr-3 font-medium">warnings</th>
-              <th className="py-1 font-medium">info</th>
-            </tr>
-          </thead>
-          <tbody className="text-xs">
-            {kinds.length === 0 ? (
+        <div className="overflow-x-auto">
+          <table className="w-full text-left text-sm">
+            <thead className="text-xs text-ink-500">
               <tr>
-                <td colSpan={4} className="py-2 text-ink-500">
-                  No limit crossed.
-                </td>
+                <th className="py-1 pr-3 font-medium">window / step</th>
+                <th className="py-1 pr-3 font-medium">min</th>
+                <th className="py-1 pr-3 font-medium">max</th>
+                <th className="py-1 pr-3 font-medium">mean</th>
+                <th className="py-1 font-medium">max step</th>
               </tr>
-            ) : (
-              kinds.map((k) => (
-                <tr key={k.kind} className="border-t border-wafer-200">
-                  <td className="py-1.5 pr-3">{k.kind}</td>
-                  <td className="py-1.5 pr-3 font-mono">{n(k.error)}</td>
-                  <td className="py-1.5 pr-3 font-mono">{n(k.warning)}</td>
-                  <td className="py-1.5 font-mono">{n(k.info)}</td>
+            </thead>
+            <tbody className="font-mono text-xs whitespace-nowrap">
+              {s.windows.map((w) => (
+                <tr key={`${w.windowUm}-${w.stepUm}`} className="border-t border-wafer-200">
+                  <td className="py-1.5 pr-3">
+                    {w.windowUm}/{w.stepUm} µm
+                  </td>
+                  <td className="py-1.5 pr-3">{pct(w.min)}</td>
+                  <td className="py-1.5 pr-3">{pct(w.max)}</td>
+                  <td className="py-1.5 pr-3">{pct(w.mean)}</td>
+                  <td className="py-1.5">{pct(w.maxGradient)}</td>
                 </tr>
-              ))
-            )}
-          </tbody>
-        </table>
+              ))}
+              <tr className="border-t border-wafer-200">
+                <td className="py-1.5 pr-3">effective ({s.effectiveDensity.kernel}, L {s.effectiveDensity.lengthUm} µm)</td>
+                <td className="py-1.5 pr-3">{pct(s.effectiveDensity.min)}</td>
+                <td className="py-1.5 pr-3">{pct(s.effectiveDensity.max)}</td>
+                <td className="py-1.5 pr-3" />
+                <td className="py-1.5" />
+              </tr>
+            </tbody>
+          </table>
+        </div>
+        <div className="overflow-x-auto">
+          <table className="w-full text-left text-sm">
+            <thead className="text-xs text-ink-500">
+              <tr>
+                <th className="py-1 pr-3 font-medium">flag kind</th>
+                <th className="py-1 pr-3 font-medium">errors</th>
+                <th className="py-1 pr-3 font-medium">warnings</th>
+                <th className="py-1 font-medium">info</th>
+              </tr>
+            </thead>
+            <tbody className="text-xs">
+              {kinds.length === 0 ? (
+                <tr>
+                  <td colSpan={4} className="py-2 text-ink-500">
+                    No limit crossed.
+                  </td>
+                </tr>
+              ) : (
+                kinds.map((k) => (
+                  <tr key={k.kind} className="border-t border-wafer-200">
+                    <td className="py-1.5 pr-3">{k.kind}</td>
+                    <td className="py-1.5 pr-3 font-mono">{n(k.error)}</td>
+                    <td className="py-1.5 pr-3 font-mono">{n(k.warning)}</td>
+                    <td className="py-1.5 font-mono">{n(k.info)}</td>
+                  </tr>
+                ))
+              )}
+            </tbody>
+          </table>
+        </div>
       </div>
       {s.extrapolation.length > 0 ? (
         <ul className="mt-4 space-y-0.5 text-xs text-warn">
