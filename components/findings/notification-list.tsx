@@ -8,7 +8,7 @@ import { Button } from '@/components/ui/button';
 import { Card } from '@/components/ui/card';
 import type { NotificationPrefs } from '@/lib/review/notifications';
 
-type Item = { id: string; kind: string; at: string; actorName: string; title: string; body: string; read: boolean; href: string | null };
+type Item = { id: string; kind: string; at: string; actorName: string; title: string; body: string; read: boolean; context?: string | null; href: string | null };
 const KIND_LABEL: Record<string, string> = { assignment: 'Assigned', mention: 'Mentioned', status: 'Status' };
 const PREF_LABEL: Record<keyof NotificationPrefs, string> = {
   emailAssignment: 'when a finding is assigned to me',
@@ -66,6 +66,11 @@ export function NotificationList({ initial, prefs }: { initial: { unread: number
                 </p>
                 <span className="font-mono text-[11px] text-ink-500">{formatWhen(n.at)}</span>
               </div>
+              {n.context ? (
+                <p className="mt-0.5 text-xs text-ink-500" data-testid="notification-context">
+                  {n.context}
+                </p>
+              ) : null}
               {n.body ? <p className="mt-1 text-xs whitespace-pre-wrap text-ink-700">{n.body}</p> : null}
             </li>
           ))}
