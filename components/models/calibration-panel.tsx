@@ -27,6 +27,7 @@ const TEMPLATE = [
   '',
 ].join('\n');
 
+const TYPED_NAME = 'typed measurements';
 const TYPED_START = 'width_um,kind,density,time_min,depth_um\n';
 
 const fmt = (v: number | null | undefined, d = 4) => (v === null || v === undefined || !Number.isFinite(v) ? '—' : String(Number(v.toPrecision(d))));
@@ -165,7 +166,7 @@ export function CalibrationPanel({ versionId, document, stored, editable }: { ve
                 className="block w-full rounded-md border border-wafer-300 bg-white px-3 py-2 font-mono text-xs text-ink-900 focus:border-copper-500 focus:outline-none focus:ring-2 focus:ring-copper-400/30"
                 data-testid="calibration-rows"
               />
-              <Button type="button" variant="secondary" onClick={() => loadText(typed, 'typed measurements')} data-testid="calibration-use-rows">
+              <Button type="button" variant="secondary" onClick={() => loadText(typed, TYPED_NAME)} data-testid="calibration-use-rows">
                 Check these rows
               </Button>
             </div>
@@ -179,7 +180,7 @@ export function CalibrationPanel({ versionId, document, stored, editable }: { ve
               </p>
               {report.errors.length ? (
                 <div className="rounded-md border border-fail/30 bg-fail/5 p-3" role="alert">
-                  <p className="text-sm font-medium text-fail">Fix these rows and load the file again; nothing is fitted while any row is wrong.</p>
+                  <p className="text-sm font-medium text-fail">Fix these rows and {report.fileName === TYPED_NAME ? 'check them' : 'load the file'} again; nothing is fitted while any row is wrong.</p>
                   <ul className="mt-1 max-h-48 space-y-0.5 overflow-auto font-mono text-xs text-fail" data-testid="calibration-errors">
                     {report.errors.map((e, i) => (
                       <li key={i}>{e.message}</li>

@@ -34,7 +34,7 @@ export function SummaryPanel({ summary: s }: { summary: Summary }) {
         </p>
       ))}
       <div className="grid gap-3 sm:grid-cols-2 lg:grid-cols-4" data-testid="summary">
-        <Figure label="Global open-area density" value={pct(s.globalDensity)} sub={`layers ${s.layout.etchLayers.join(', ')} · ${s.layout.polygonCount.toLocaleString('en')} polygons`} />
+        <Figure label="Global open-area density" value={pct(s.globalDensity)} sub={`layers ${s.layout.etchLayers.join(', ')} · ${n(s.layout.polygonCount)} polygon${s.layout.polygonCount === 1 ? '' : 's'}`} />
         <Figure label="Openings analysed" value={s.features.count.toLocaleString('en')} sub={Object.entries(s.features.byShape).map(([k, c]) => `${n(c)} ${k}`).join(' · ')} />
         <Figure
           label="Predicted depth"
