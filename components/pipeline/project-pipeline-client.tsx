@@ -50,7 +50,7 @@ export function ProjectPipelineClient({ projectId, canUpload, canAnalyse }: { pr
   });
 
   return (
-    <div className="mt-6 grid gap-6" data-testid="project-pipeline">
+    <div className="mt-6 grid grid-cols-1 gap-6" data-testid="project-pipeline">
       <Card className="p-6">
         <div className="mb-4 flex items-center justify-between gap-4">
           <h2 className="text-lg font-semibold text-ink-900">Layouts</h2>

@@ -82,7 +82,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
   const bar = view ? scaleBar(view.scale, 140) : null;
 
   return (
-    <div className="grid gap-3" data-testid="canvas-viewer" data-mode={mode} data-ready={ready && maps.length > 0 ? 'yes' : 'no'} data-view={view ? JSON.stringify({ cx: view.cx, cy: view.cy, scale: view.scale, width: view.width, height: view.height }) : ''} data-selected={selected?.flagId ?? ''}>
+    <div className="grid grid-cols-1 gap-3" data-testid="canvas-viewer" data-mode={mode} data-ready={ready && maps.length > 0 ? 'yes' : 'no'} data-view={view ? JSON.stringify({ cx: view.cx, cy: view.cy, scale: view.scale, width: view.width, height: view.height }) : ''} data-selected={selected?.flagId ?? ''}>
       <div className="flex flex-wrap items-center gap-2 text-xs">
         <div className="flex flex-wrap gap-1" role="tablist" aria-label="map">
           {shownMaps.map((m) => (
@@ -109,7 +109,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
           WHAT-IF: depth, margin, risk and opening flags below are recomputed in the browser from changed model parameters — not the stored analysis until saved as a new analysis.
         </p>
       ) : null}
-      <div className="grid gap-3 lg:grid-cols-[1fr_260px]">
+      <div className="grid grid-cols-1 gap-3 lg:grid-cols-[minmax(0,1fr)_260px]">
         <div className="relative h-[560px] self-start">
           <div
             ref={hostRef}

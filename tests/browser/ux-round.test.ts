@@ -38,9 +38,14 @@ describe('UX round: phone width, uploads, layer choice, calibration, compare', (
 
   it('at 390 px the header and the project page fit the screen (nav scrolls in its own row)', async () => {
     const page = await signedIn('designer', 390, 844);
+    await page.waitForLoadState('networkidle');
     expect(await pageWidth(page)).toBeLessThanOrEqual(390);
     await page.goto(`${server.baseUrl}/projects/${kestrel.id}`);
     await page.getByTestId('analyses-table').waitFor();
+    expect(await pageWidth(page)).toBeLessThanOrEqual(390);
+    // the analysis page with its findings table (kept at a readable minimum width, scrolled inside its card)
+    await page.getByTestId('analyses-table').getByRole('link').first().click();
+    await page.getByTestId('findings-table').waitFor({ timeout: 120_000 });
     expect(await pageWidth(page)).toBeLessThanOrEqual(390);
     expect(await page.getByRole('button', { name: 'Sign out' }).isVisible()).toBe(true);
     await screenshot(page, 'ux-phone-project');
@@ -87,7 +92,7 @@ describe('UX round: phone width, uploads, layer choice, calibration, compare', (
     await page.getByTestId('layer-hint').waitFor({ timeout: 120_000 });
     expect(await page.getByTestId('layer-hint').textContent()).toMatch(/of the die is open on layer 0\/0 \(polarity clear\).*die outline/);
     // map tabs use the summary's words for windows, not the stored file names
-    await page.getByTestId('canvas-viewer').waitFor();
+    await page.waitForFunction(() => document.querySelector('[data-testid=canvas-viewer]')?.getAttribute('data-ready') === 'yes', null, { timeout: 60_000 });
     const tabs = (await page.getByRole('tablist', { name: 'map' }).textContent()) ?? '';
     expect(tabs).toMatch(/Window density 100\/50 µm/);
     expect(tabs).not.toMatch(/100um/);
@@ -96,11 +101,11 @@ describe('UX round: phone width, uploads, layer choice, calibration, compare', (
   });
 
   it('measurements can be typed for a calibration; a short row names its line and the rows around it are still checked', async () => {
-    const pe = await signIn(server.baseUrl, byRole('process').email, DEMO_PASSWORD_DEFAULT);
+    const pe = await signIn(server.baseUrl, byRole('process_engineer').email, DEMO_PASSWORD_DEFAULT);
     const list = (await (await pe.get(`/api/v1/teams/${DEMO_TEAM.id}/models`)).json()) as { models: { key: string; versions: { id: string; number: number }[] }[] };
     const v2 = list.models.find((m) => m.key === 'deep-trench-continuous')!.versions[0]!.id;
     const draft = ((await (await pe.post(`/api/v1/model-versions/${v2}/drafts`)).json()) as { version: { id: string; document: Record<string, unknown> } }).version;
-    const page = await signedIn('process');
+    const page = await signedIn('process_engineer');
     await page.goto(`${server.baseUrl}/models/versions/${draft.id}`);
     await page.getByTestId('calibration-typed').locator('summary').click();
     await page.getByTestId('calibration-rows').fill('width_um,kind,density,time_min,depth_um\n2,trench,0.2,20,38\n5,trench,0.2\n10,trench,zz,20,52\n');
