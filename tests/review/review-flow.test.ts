@@ -59,6 +59,8 @@ describe('review of one analysis', () => {
     const r = changeFindings(db, { analysisId: id, teamId: TEAM_ID, actor: reviewer, keys: keys.slice(0, 2), assigneeId: 'demo-designer', link });
     expect(r.changed).toBe(2);
     expect(r.mails.map((m) => m.to)).toEqual(['designer@larkspur.example']);
+    // the mail says which project and layout revision, right under its title
+    expect(r.mails[0]?.text.split('\n').slice(0, 2)).toEqual([expect.stringMatching(/assigned 2 findings to you$/), `${DEMO_PROJECTS[0].name} · Synthetic trenches r1`]);
     const n = db.select().from(notifications).where(eq(notifications.userId, 'demo-designer')).all();
     expect(n.map((x) => x.kind)).toEqual(['assignment']);
     // the in-app list names the project and layout revision the finding is in
