@@ -84,7 +84,7 @@ describe('UX round: phone width, uploads, layer choice, calibration, compare', (
     const revision = layouts[0]!.revisions[0]!;
     // the demo layout's layer 0/0 is its die outline: one polygon over the whole die
     expect(revision.layers.find((l) => l.layer === 0 && l.datatype === 0)?.polygons).toBe(1);
-    const res = await designer.post(`/api/v1/projects/${kestrel.id}/analyses`, { revisionId: revision.id, settings: { etchLayers: [{ layer: 0, datatype: 0 }] }, modelId: 'deep-trench-continuous' });
+    const res = await designer.post(`/api/v1/projects/${kestrel.id}/analyses`, { revisionId: revision.id, settings: { etchLayers: [{ layer: 0, datatype: 0 }], densityWindows: [{ windowUm: 100, stepUm: 50 }] }, modelId: 'deep-trench-continuous' });
     expect(res.status).toBe(202);
     const { analysis } = (await res.json()) as { analysis: { id: string } };
     const page = await signedIn('designer');
@@ -92,10 +92,9 @@ describe('UX round: phone width, uploads, layer choice, calibration, compare', (
     await page.getByTestId('layer-hint').waitFor({ timeout: 120_000 });
     expect(await page.getByTestId('layer-hint').textContent()).toMatch(/of the die is open on layer 0\/0 \(polarity clear\).*die outline/);
     // map tabs use the summary's words for windows, not the stored file names
-    await page.waitForFunction(() => document.querySelector('[data-testid=canvas-viewer]')?.getAttribute('data-ready') === 'yes', null, { timeout: 60_000 });
-    const tabs = (await page.getByRole('tablist', { name: 'map' }).textContent()) ?? '';
-    expect(tabs).toMatch(/Window density 100\/50 µm/);
-    expect(tabs).not.toMatch(/100um/);
+    const tab = page.getByTestId('map-window-density-100um-50um');
+    await tab.waitFor({ timeout: 60_000 });
+    expect(await tab.textContent()).toBe('Window density 100/50 µm');
     await screenshot(page, 'ux-layer-hint');
     await page.context().close();
   });

@@ -72,6 +72,19 @@ describe('underdetermined fits get a clear message', () => {
     expect(r.ok).toBe(false);
     if (!r.ok) expect(r.message).toMatch(/different local densities/);
   });
+  it('a fit on a handful of points says how few and how wide a 95 % interval really is', () => {
+    // Student t with 1 and 2 degrees of freedom has closed-form quantiles (Cauchy: tan(π(p − ½)); ν = 2:
+    // (2p − 1)·√(2 / (4p(1 − p)))), which check the table the warning quotes.
+    const p = 0.975;
+    expect(Math.tan(Math.PI * (p - 0.5)).toFixed(2)).toBe('12.71');
+    const t2 = ((2 * p - 1) * Math.sqrt(2 / (4 * p * (1 - p)))).toFixed(3);
+    const few = fitCalibration(rows([[2, 10], [4, 14], [8, 17], [16, 19]]), { baseModel: base });
+    expect(few.ok).toBe(true);
+    if (few.ok) expect(few.warnings.join(' ')).toContain(`only 4 measurements for 2 fitted parameters (2 degrees of freedom): the standard errors rest on very few points, and a 95 % interval is ${t2}× the standard error`);
+    const many = fitCalibration(rows([2, 3, 4, 5, 6, 8, 10, 12, 16, 20, 30, 40].map((w) => [w, 20 - 20 / w])), { baseModel: base });
+    expect(many.ok).toBe(true);
+    if (many.ok) expect(many.warnings.filter((w) => /degrees? of freedom/.test(w))).toEqual([]);
+  });
   it('nothing chosen to fit', () => {
     const r = fitCalibration(rows([[2, 10], [4, 14]]), { baseModel: base, fit: [] });
     expect(r.ok).toBe(false);
