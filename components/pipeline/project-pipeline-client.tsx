@@ -70,7 +70,7 @@ export function ProjectPipelineClient({ projectId, canUpload, canAnalyse }: { pr
             <li key={l.id}>
               <h3 className="text-sm font-semibold text-ink-800">{l.name}</h3>
               <div className="overflow-x-auto">
-                <table className="mt-2 w-full text-left text-sm">
+                <table className="mt-2 w-full min-w-[34rem] text-left text-sm">
                   <thead className="text-xs text-ink-500">
                     <tr>
                       <th className="py-1 pr-3 font-medium">rev</th>
@@ -139,7 +139,7 @@ export function ProjectPipelineClient({ projectId, canUpload, canAnalyse }: { pr
         {analyses.data && analyses.data.analyses.length === 0 ? <p className="text-sm text-ink-500">No analysis yet.</p> : null}
         {analyses.data && analyses.data.analyses.length > 0 ? (
           <div className="overflow-x-auto">
-            <table className="w-full text-left text-sm" data-testid="analyses-table">
+            <table className="w-full min-w-[34rem] text-left text-sm" data-testid="analyses-table">
               <thead className="text-xs text-ink-500">
                 <tr>
                   <th className="py-1 pr-3 font-medium">layout</th>
