@@ -8,11 +8,12 @@ import type { AuthUser } from '@/lib/auth/session';
 export function AppHeader({ user, teams }: { user: AuthUser; teams: { id: string; name: string }[] }) {
   return (
     <header className="bg-ink-900 text-wafer-50">
-      <div className="mx-auto flex h-14 max-w-6xl items-center gap-8 px-6">
-        <Link href="/projects" aria-label="Trenchant home">
+      {/* Below lg the navigation takes its own row and scrolls sideways, so a phone never gets a page wider than itself. */}
+      <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-4 gap-y-1 px-4 py-2 sm:px-6 lg:h-14 lg:flex-nowrap lg:gap-x-8 lg:py-0">
+        <Link href="/projects" aria-label="Trenchant home" className="shrink-0">
           <Logo size={26} />
         </Link>
-        <nav className="flex items-center gap-1 text-sm">
+        <nav className="order-last -mx-2.5 flex w-full items-center gap-1 overflow-x-auto whitespace-nowrap text-sm lg:order-none lg:mx-0 lg:w-auto" data-testid="main-nav">
           <Link href="/projects" className="rounded px-2.5 py-1.5 text-ink-100 hover:bg-ink-800 hover:text-white">
             Projects
           </Link>
@@ -30,10 +31,13 @@ export function AppHeader({ user, teams }: { user: AuthUser; teams: { id: string
           <Link href="/api-docs" className="rounded px-2.5 py-1.5 text-ink-100 hover:bg-ink-800 hover:text-white">
             API
           </Link>
+          <Link href="/account/tokens" className="rounded px-2.5 py-1.5 text-ink-300 hover:bg-ink-800 hover:text-white sm:hidden">
+            API tokens
+          </Link>
         </nav>
-        <div className="ml-auto flex items-center gap-3 text-sm">
+        <div className="ml-auto flex items-center gap-3 whitespace-nowrap text-sm">
           <NotificationBell userId={user.id} />
-          <Link href="/account/tokens" className="text-ink-300 hover:text-white">
+          <Link href="/account/tokens" className="hidden text-ink-300 hover:text-white sm:inline">
             API tokens
           </Link>
           <span className="hidden text-ink-300 sm:inline" data-testid="current-user">

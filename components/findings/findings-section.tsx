@@ -97,7 +97,7 @@ export function FindingsSection({ analysisId }: { analysisId: string }) {
           Findings{' '}
           {data ? (
             <span className="font-mono text-sm font-normal text-ink-500" data-testid="findings-count">
-              {data.view === 'groups' ? `${data.total} group${data.total === 1 ? '' : 's'} · ${data.findings ?? 0} finding${data.findings === 1 ? '' : 's'}` : `${data.total} finding${data.total === 1 ? '' : 's'}`}
+              {data.view === 'groups' ? `${data.total.toLocaleString('en')} group${data.total === 1 ? '' : 's'} · ${(data.findings ?? 0).toLocaleString('en')} finding${data.findings === 1 ? '' : 's'}` : `${data.total.toLocaleString('en')} finding${data.total === 1 ? '' : 's'}`}
             </span>
           ) : null}
         </h2>
@@ -120,7 +120,7 @@ export function FindingsSection({ analysisId }: { analysisId: string }) {
             </p>
           ) : null}
           <FindingsToolbar state={state} update={update} kinds={data.kinds} layers={data.layers} members={data.members} />
-          <div className={`mt-3 grid gap-4 ${state.finding ? 'xl:grid-cols-[minmax(0,1fr)_22rem]' : ''}`}>
+          <div className={`mt-3 grid grid-cols-1 gap-4 ${state.finding ? 'xl:grid-cols-[minmax(0,1fr)_22rem]' : ''}`}>
             <div className="min-w-0">
               {canAct ? <BulkBar selectedCount={checked.size} memberCount={memberCount} data={data} pending={bulk.isPending} error={bulk.error?.message ?? null} onApply={(c) => bulk.mutate(c)} onClear={() => setChecked(new Set())} /> : null}
               <FindingsTable analysisId={analysisId} data={data} checked={checked} toggle={toggle} highlight={highlight} openKey={state.finding ?? null} onPick={pick} canAct={canAct} />

@@ -7,9 +7,12 @@ import { SEVERITY_TONE, StatusPill } from './status-pill';
 import { isGroup, type FindingItem, type FindingsResponse, type GroupRow } from './types';
 
 const fmt = (v: number) => (Number.isFinite(v) ? String(Number(v.toPrecision(4))) : String(v));
-const unitText = (u: string) => (u === 'ratio' ? ':1' : u === 'fraction' ? '' : u);
 export const measuredText = (f: FindingItem) =>
-  f.unit === 'fraction' ? `${fmt(f.measured * 100)} % / ${fmt(f.limit * 100)} %` : `${fmt(f.measured)} / ${fmt(f.limit)} ${unitText(f.unit)}`;
+  f.unit === 'fraction'
+    ? `${fmt(f.measured * 100)} % / ${fmt(f.limit * 100)} %`
+    : f.unit === 'ratio'
+      ? `${fmt(f.measured)}:1 / ${fmt(f.limit)}:1`
+      : `${fmt(f.measured)} / ${fmt(f.limit)} ${f.unit}`;
 
 type Props = {
   analysisId: string;
@@ -36,7 +39,7 @@ export function FindingsTable(props: Props) {
 
   return (
     <div className="overflow-x-auto">
-      <table className="w-full text-left text-sm" data-testid="findings-table">
+      <table className="w-full min-w-[36rem] text-left text-sm" data-testid="findings-table">
         <thead className="text-xs text-ink-500">
           <tr>
             {props.canAct ? (
@@ -92,7 +95,7 @@ export function FindingsTable(props: Props) {
                       <span className="block text-xs text-ink-500">{x.cause}</span>
                     </td>
                     <td className="py-2 pr-3 text-right font-mono text-xs" data-testid="group-count">
-                      {x.matching === x.count ? x.count : `${x.matching} of ${x.count}`}
+                      {x.matching === x.count ? x.count.toLocaleString('en') : `${x.matching.toLocaleString('en')} of ${x.count.toLocaleString('en')}`}
                     </td>
                     <td className="py-2 pr-3 font-mono text-xs whitespace-nowrap">
                       {x.widthRangeUm ? (fmt(x.widthRangeUm[0]) === fmt(x.widthRangeUm[1]) ? `${fmt(x.widthRangeUm[0])} µm` : `${fmt(x.widthRangeUm[0])}–${fmt(x.widthRangeUm[1])} µm`) : 'region'}

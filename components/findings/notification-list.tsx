@@ -8,7 +8,7 @@ import { Button } from '@/components/ui/button';
 import { Card } from '@/components/ui/card';
 import type { NotificationPrefs } from '@/lib/review/notifications';
 
-type Item = { id: string; kind: string; at: string; actorName: string; title: string; body: string; read: boolean; href: string | null };
+type Item = { id: string; kind: string; at: string; actorName: string; title: string; body: string; read: boolean; context?: string | null; href: string | null };
 const KIND_LABEL: Record<string, string> = { assignment: 'Assigned', mention: 'Mentioned', status: 'Status' };
 const PREF_LABEL: Record<keyof NotificationPrefs, string> = {
   emailAssignment: 'when a finding is assigned to me',
@@ -53,19 +53,21 @@ export function NotificationList({ initial, prefs }: { initial: { unread: number
         <ul className="divide-y divide-wafer-200" data-testid="notification-list">
           {items.map((n) => (
             <li key={n.id} className={`px-5 py-3 ${n.read ? '' : 'bg-copper-300/10'}`} data-read={n.read}>
-              <div className="flex flex-wrap items-baseline justify-between gap-2">
-                <p className="text-sm">
-                  <span className="mr-2 rounded bg-wafer-200 px-1.5 py-0.5 text-[11px] text-ink-700">{KIND_LABEL[n.kind] ?? n.kind}</span>
-                  {n.href ? (
-                    <Link href={n.href} onClick={() => markOne(n.id)} className="font-medium text-ink-900 hover:underline">
-                      {n.title}
-                    </Link>
-                  ) : (
-                    <span className="font-medium">{n.title}</span>
-                  )}
-                </p>
-                <span className="font-mono text-[11px] text-ink-500">{formatWhen(n.at)}</span>
-              </div>
+              <p className="text-sm">
+                <span className="mr-2 rounded bg-wafer-200 px-1.5 py-0.5 text-[11px] text-ink-700">{KIND_LABEL[n.kind] ?? n.kind}</span>
+                {n.href ? (
+                  <Link href={n.href} onClick={() => markOne(n.id)} className="font-medium text-ink-900 hover:underline">
+                    {n.title}
+                  </Link>
+                ) : (
+                  <span className="font-medium">{n.title}</span>
+                )}
+              </p>
+              {/* One meta line, whatever the title's length: where (project · layout) and when. */}
+              <p className="mt-0.5 text-xs text-ink-500">
+                {n.context ? <span data-testid="notification-context">{n.context} · </span> : null}
+                <span className="font-mono text-[11px]">{formatWhen(n.at)}</span>
+              </p>
               {n.body ? <p className="mt-1 text-xs whitespace-pre-wrap text-ink-700">{n.body}</p> : null}
             </li>
           ))}

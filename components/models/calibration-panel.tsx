@@ -27,6 +27,9 @@ const TEMPLATE = [
   '',
 ].join('\n');
 
+const TYPED_NAME = 'typed measurements';
+const TYPED_START = 'width_um,kind,density,time_min,depth_um\n';
+
 const fmt = (v: number | null | undefined, d = 4) => (v === null || v === undefined || !Number.isFinite(v) ? '—' : String(Number(v.toPrecision(d))));
 
 type FitState = { kind: 'none' } | { kind: 'refused'; message: string } | { kind: 'done'; fit: CalibrationFit; fileName: string; fitted: FitParameter[] };
@@ -47,6 +50,7 @@ export function CalibrationPanel({ versionId, document, stored, editable }: { ve
   const input = useRef<HTMLInputElement>(null);
   const templateHref = useMemo(() => `data:text/csv;charset=utf-8,${encodeURIComponent(TEMPLATE)}`, []);
 
+  const [typed, setTyped] = useState(TYPED_START);
   const load = async (file: File) => {
     setMessage(undefined);
     setState({ kind: 'none' });
@@ -54,8 +58,14 @@ export function CalibrationPanel({ versionId, document, stored, editable }: { ve
       setReport({ rows: [], errors: [{ line: null, message: `${file.name} is ${(file.size / 1048576).toFixed(1)} MiB; calibration files are limited to 5 MiB` }], errorsTruncated: false, fileName: file.name });
       return;
     }
-    const r = parseCalibrationCsvReport(await file.text());
-    setReport({ ...r, fileName: file.name });
+    loadText(await file.text(), file.name);
+  };
+  // A handful of SEM measurements need no file: typed rows go through the same parser, and errors name their line.
+  const loadText = (text: string, fileName: string) => {
+    setMessage(undefined);
+    setState({ kind: 'none' });
+    const r = parseCalibrationCsvReport(text);
+    setReport({ ...r, fileName });
     const spread = r.rows.length ? Math.max(...r.rows.map((x) => x.density)) - Math.min(...r.rows.map((x) => x.density)) : 0;
     setFitParams(spread >= 0.05 ? ['openRateUmPerMin', 'reactionProbability', 'loadingCoefficient'] : ['openRateUmPerMin', 'reactionProbability']);
   };
@@ -141,6 +151,26 @@ export function CalibrationPanel({ versionId, document, stored, editable }: { ve
               </a>
             </p>
           </div>
+          <details className="rounded-md border border-wafer-200 bg-white px-3 py-2 text-sm" data-testid="calibration-typed">
+            <summary className="cursor-pointer text-ink-800">Or type the measurements (one row per measured feature)</summary>
+            <div className="mt-2 space-y-2">
+              <label htmlFor="calibration-rows" className="block text-xs text-ink-500">
+                Same columns as the file: width in µm, trench or hole, effective density 0–1, etch time in min, measured depth in µm.
+              </label>
+              <textarea
+                id="calibration-rows"
+                value={typed}
+                onChange={(e) => setTyped(e.target.value)}
+                rows={7}
+                spellCheck={false}
+                className="block w-full rounded-md border border-wafer-300 bg-white px-3 py-2 font-mono text-xs text-ink-900 focus:border-copper-500 focus:outline-none focus:ring-2 focus:ring-copper-400/30"
+                data-testid="calibration-rows"
+              />
+              <Button type="button" variant="secondary" onClick={() => loadText(typed, TYPED_NAME)} data-testid="calibration-use-rows">
+                Check these rows
+              </Button>
+            </div>
+          </details>
 
           {report ? (
             <div className="space-y-3">
@@ -150,7 +180,7 @@ export function CalibrationPanel({ versionId, document, stored, editable }: { ve
               </p>
               {report.errors.length ? (
                 <div className="rounded-md border border-fail/30 bg-fail/5 p-3" role="alert">
-                  <p className="text-sm font-medium text-fail">Fix these rows and load the file again; nothing is fitted while any row is wrong.</p>
+                  <p className="text-sm font-medium text-fail">Fix these rows and {report.fileName === TYPED_NAME ? 'check them' : 'load the file'} again; nothing is fitted while any row is wrong.</p>
                   <ul className="mt-1 max-h-48 space-y-0.5 overflow-auto font-mono text-xs text-fail" data-testid="calibration-errors">
                     {report.errors.map((e, i) => (
                       <li key={i}>{e.message}</li>

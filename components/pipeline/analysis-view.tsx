@@ -78,7 +78,7 @@ function View({ analysisId, initial, canCancel }: { analysisId: string; initial:
   const active = live.status === 'queued' || live.status === 'running';
 
   return (
-    <div className="grid gap-6">
+    <div className="grid grid-cols-1 gap-6">
       <Card className="p-6">
         <div className="flex flex-wrap items-center justify-between gap-4">
           <div className="flex items-center gap-3">

@@ -18,6 +18,8 @@ export function UploadForm({ projectId, maxBytes, maxLabel }: { projectId: strin
   const input = useRef<HTMLInputElement>(null);
   const [file, setFile] = useState<File | null>(null);
   const [name, setName] = useState('');
+  // The name follows the chosen file until the user types one, so picking a second file never keeps the first's name.
+  const [nameTyped, setNameTyped] = useState(false);
   const [note, setNote] = useState('');
   const [over, setOver] = useState(false);
   const [phase, setPhase] = useState<Phase>({ kind: 'idle' });
@@ -27,7 +29,7 @@ export function UploadForm({ projectId, maxBytes, maxLabel }: { projectId: strin
     if (!f) return;
     setFile(f);
     setPhase({ kind: 'idle' });
-    if (!name) setName(f.name.replace(/\.[^.]*$/, ''));
+    if (!nameTyped || !name.trim()) setName(f.name.replace(/\.[^.]*$/, ''));
   };
   const onDrop = (e: DragEvent) => {
     e.preventDefault();
@@ -94,7 +96,10 @@ export function UploadForm({ projectId, maxBytes, maxLabel }: { projectId: strin
         <input ref={input} type="file" name="file" className="sr-only" data-testid="file-input" onChange={(e) => choose(e.target.files?.[0])} />
       </div>
       {fieldErrors.file ? <p className="text-xs text-fail">{fieldErrors.file.join(' ')}</p> : null}
-      <Field label="Layout name" name="name" value={name} onChange={(e) => setName(e.target.value)} errors={fieldErrors.name} hint="Uploading under an existing name adds a new revision of that layout." />
+      <Field label="Layout name" name="name" value={name} onChange={(e) => {
+          setName(e.target.value);
+          setNameTyped(true);
+        }} errors={fieldErrors.name} hint="Uploading under an existing name adds a new revision of that layout." />
       <Field label="Note (optional)" name="note" value={note} onChange={(e) => setNote(e.target.value)} errors={fieldErrors.note} placeholder="What changed in this revision" />
       {phase.kind === 'sending' ? (
         <div className="space-y-1.5" data-testid="upload-progress">

@@ -3,8 +3,8 @@ import type { ButtonHTMLAttributes } from 'react';
 type Variant = 'primary' | 'secondary' | 'ghost' | 'danger';
 
 const VARIANT: Record<Variant, string> = {
-  primary: 'bg-copper-500 text-white hover:bg-copper-600 disabled:bg-copper-300',
-  secondary: 'bg-white text-ink-900 ring-1 ring-wafer-300 hover:bg-wafer-50 disabled:text-ink-300',
+  primary: 'bg-copper-500 text-white hover:bg-copper-600 disabled:bg-wafer-200 disabled:text-ink-500',
+  secondary: 'bg-white text-ink-900 ring-1 ring-wafer-300 hover:bg-wafer-50 disabled:bg-wafer-100 disabled:text-ink-500',
   ghost: 'text-ink-700 hover:bg-wafer-200/60',
   danger: 'bg-white text-fail ring-1 ring-fail/40 hover:bg-fail/5',
 };

@@ -4,7 +4,7 @@ import { useQuery } from '@tanstack/react-query';
 import { useCallback, useState } from 'react';
 import { useFindingSelection } from '@/components/analysis/finding-selection';
 import { apiJson } from '@/components/pipeline/api-client';
-import { mapKindInfo, sampleAt } from '@/lib/viewer/map-kinds';
+import { mapKindInfo, mapVariantLabel, sampleAt } from '@/lib/viewer/map-kinds';
 import { focusOn, scaleBar, screenToLayout, type View } from '@/lib/viewer/view-transform';
 import type { ViewerInfo } from '@/lib/viewer/viewer-source';
 import { FlagTooltip, type HoverMark } from './flag-tooltip';
@@ -82,13 +82,13 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
   const bar = view ? scaleBar(view.scale, 140) : null;
 
   return (
-    <div className="grid gap-3" data-testid="canvas-viewer" data-mode={mode} data-ready={ready && maps.length > 0 ? 'yes' : 'no'} data-view={view ? JSON.stringify({ cx: view.cx, cy: view.cy, scale: view.scale, width: view.width, height: view.height }) : ''} data-selected={selected?.flagId ?? ''}>
+    <div className="grid grid-cols-1 gap-3" data-testid="canvas-viewer" data-mode={mode} data-ready={ready && maps.length > 0 ? 'yes' : 'no'} data-view={view ? JSON.stringify({ cx: view.cx, cy: view.cy, scale: view.scale, width: view.width, height: view.height }) : ''} data-selected={selected?.flagId ?? ''}>
       <div className="flex flex-wrap items-center gap-2 text-xs">
         <div className="flex flex-wrap gap-1" role="tablist" aria-label="map">
           {shownMaps.map((m) => (
             <button key={m.name} type="button" role="tab" aria-selected={shown?.name === m.name} onClick={() => setCurrent(m.name)} data-testid={`map-${m.name}`} className={`rounded px-2 py-1 ${shown?.name === m.name ? 'bg-ink-900 text-wafer-50' : 'text-ink-700 hover:bg-wafer-200/60'}`}>
               {mapKindInfo(m.kind).label}
-              {m.name !== m.kind ? ` ${m.name.replace(`${m.kind}-`, '')}` : ''}
+              {m.name !== m.kind ? ` ${mapVariantLabel(m.name, m.kind)}` : ''}
               {m.whatIf ? ' (what-if)' : ''}
             </button>
           ))}
@@ -109,7 +109,7 @@ export function CanvasViewer({ analysisId, onFailure }: { analysisId: string; on
           WHAT-IF: depth, margin, risk and opening flags below are recomputed in the browser from changed model parameters — not the stored analysis until saved as a new analysis.
         </p>
       ) : null}
-      <div className="grid gap-3 lg:grid-cols-[1fr_260px]">
+      <div className="grid grid-cols-1 gap-3 lg:grid-cols-[minmax(0,1fr)_260px]">
         <div className="relative h-[560px] self-start">
           <div
             ref={hostRef}

@@ -1,7 +1,7 @@
 'use client';
 
 import { gradientCss, type ScaleName } from '@/lib/viewer/color-scale';
-import { formatValue, mapKindInfo } from '@/lib/viewer/map-kinds';
+import { formatValue, mapKindInfo, mapVariantLabel } from '@/lib/viewer/map-kinds';
 import type { WhatIfParams } from '@/lib/viewer/whatif';
 import { markStyle } from './flag-marks';
 
@@ -13,7 +13,7 @@ export function Legend(props: { mapName: string; kind: string; scale: ScaleName;
         {info.label} {props.whatIf ? <span className="ml-1 rounded bg-copper-600 px-1 text-white">what-if</span> : null}
       </p>
       <p className="text-ink-500" data-testid="legend-unit">
-        {props.mapName} · {info.unit}
+        {[mapVariantLabel(props.mapName, props.kind), info.unit === 'fraction' ? 'open-area fraction (1 = 100 %)' : info.unit].filter(Boolean).join(' · ')}
       </p>
       <div className="mt-2 h-3 w-full rounded-sm border border-ink-900/20" style={{ background: gradientCss(props.scale) }} aria-hidden />
       <div className="mt-1 flex items-center justify-between gap-2">
@@ -72,10 +72,10 @@ export function Readout({ at, rows }: { at: [number, number] | null; rows: Reado
             <tr key={r.name} data-testid={`readout-${r.name}`} data-value={Number.isFinite(r.value) ? r.value : ''}>
               <td className="pr-2 font-sans text-ink-500">
                 {mapKindInfo(r.kind).label}
-                {r.name !== r.kind ? <span className="text-ink-500"> ({r.name.replace(`${r.kind}-`, '')})</span> : null}
+                {r.name !== r.kind ? <span className="text-ink-500"> ({mapVariantLabel(r.name, r.kind)})</span> : null}
                 {r.whatIf ? ' *' : ''}
               </td>
-              <td className="text-right text-ink-900">{at ? formatValue(r.value, r.unit) : '—'}</td>
+              <td className="text-right whitespace-nowrap text-ink-900">{at ? formatValue(r.value, r.unit) : '—'}</td>
               <td className="pl-1 font-sans text-ink-500">{unitText(r.unit)}</td>
             </tr>
           ))}

@@ -100,6 +100,13 @@ function rowPredictor(model: ProcessModel): (row: CalibrationRow) => number {
 }
 
 /** What data is missing for the requested fit, or null when the fit is determined. */
+/**
+ * Two-sided 95 % Student-t quantiles t(0.975, ν) for ν = 1…9 degrees of freedom (any statistics table, e.g. NIST/
+ * SEMATECH e-Handbook of Statistical Methods, table 1.3.6.7.2). From ν = 10 on the quantile is within 15 % of the
+ * normal 1.96 that the depth bands use, and no warning is given.
+ */
+const T975: Readonly<Record<number, number>> = { 1: 12.71, 2: 4.303, 3: 3.182, 4: 2.776, 5: 2.571, 6: 2.447, 7: 2.365, 8: 2.306, 9: 2.262 };
+
 export function underdeterminedReason(rows: CalibrationRow[], fit: FitParameter[]): string | null {
   const n = rows.length;
   const p = fit.length;
@@ -289,6 +296,12 @@ export function fitCalibration(rows: CalibrationRow[], options: CalibrationOptio
     parameters: Object.fromEntries(Object.entries(parameters).map(([k, v]) => [k, { value: v.value, standardError: v.standardError }])),
   };
   const fittedModel = processModelSchema.parse({ ...base, ...withParameters(base, fit, values), stopLayer: base.stopLayer, mask: base.mask, calibration: record });
+  const t95 = T975[dof];
+  if (t95 !== undefined) {
+    warnings.push(
+      `only ${n} measurements for ${p} fitted parameter${p === 1 ? '' : 's'} (${dof} degree${dof === 1 ? '' : 's'} of freedom): the standard errors rest on very few points, and a 95 % interval is ${t95}× the standard error, not 1.96×; measure more structures before publishing`,
+    );
+  }
   if (!(rSquared > 0.9)) warnings.push(`R² = ${rSquared.toFixed(3)}: the model explains the data poorly; check the data or fit more parameters`);
   return {
     ok: true,

@@ -65,24 +65,30 @@ function rowOf(r: Record<string, string>, line: number): CalibrationRow {
  *   // [{ line: 2, message: 'line 2: kind must be trench or hole, got "slot"' }]
  */
 export function parseCalibrationCsvReport(text: string): CalibrationCsvReport {
-  let records: { record: Record<string, string>; info: { lines: number } }[];
+  // Rows are read as arrays (relax_column_count) and matched to the header here, so a row with too few or too many
+  // values is one line's error, not the end of the file: "2,5" typed with a decimal comma shifts every value after it.
+  let records: { record: string[]; info: { lines: number } }[];
   try {
-    records = parse(text, { columns: (h: string[]) => h.map((c) => c.trim().toLowerCase()), comment: '#', skip_empty_lines: true, trim: true, info: true, bom: true });
+    records = parse(text, { comment: '#', skip_empty_lines: true, trim: true, info: true, bom: true, relax_column_count: true }) as unknown as typeof records;
   } catch (err) {
     const e = err as { message?: string; lines?: number };
-    const msg = (e.message ?? String(err)).replace(/\s+/g, ' ');
+    const msg = (e.message ?? String(err)).replace(/\s+/g, ' ').replace(/\s*(at|on) line \d+\.?$/, '');
     return { rows: [], errors: [{ line: e.lines ?? null, message: e.lines ? `line ${e.lines}: ${msg}` : msg }], errorsTruncated: false };
   }
-  const first = records[0];
-  if (!first) return { rows: [], errors: [{ line: null, message: `no data rows: expected a header ${REQUIRED.join(',')} and at least one row` }], errorsTruncated: false };
-  const missing = REQUIRED.filter((c) => !(c in first.record));
-  if (missing.length) return { rows: [], errors: [{ line: 1, message: `line 1: missing column(s) ${missing.join(', ')} (need ${REQUIRED.join(',')})` }], errorsTruncated: false };
+  const [head, ...body] = records;
+  if (!head || body.length === 0) return { rows: [], errors: [{ line: null, message: `no data rows: expected a header ${REQUIRED.join(',')} and at least one row` }], errorsTruncated: false };
+  const columns = head.record.map((c) => c.trim().toLowerCase());
+  const missing = REQUIRED.filter((c) => !columns.includes(c));
+  if (missing.length) return { rows: [], errors: [{ line: head.info.lines, message: `line ${head.info.lines}: missing column(s) ${missing.join(', ')} (need ${REQUIRED.join(',')})` }], errorsTruncated: false };
   const rows: CalibrationRow[] = [];
   const errors: CalibrationCsvIssue[] = [];
   let errorCount = 0;
-  for (const { record, info } of records) {
+  for (const { record, info } of body) {
     try {
-      rows.push(rowOf(record, info.lines));
+      if (record.length !== columns.length) {
+        throw new CalibrationCsvError(`line ${info.lines}: ${record.length} ${record.length === 1 ? 'value' : 'values'}, the header has ${columns.length} columns (${columns.join(',')}); a decimal comma splits a number in two`, info.lines);
+      }
+      rows.push(rowOf(Object.fromEntries(columns.map((c, i) => [c, record[i] ?? ''])), info.lines));
     } catch (err) {
       if (!(err instanceof CalibrationCsvError)) throw err;
       if (++errorCount <= MAX_LISTED_ERRORS) errors.push({ line: err.line ?? info.lines, message: err.message });

@@ -10,6 +10,7 @@ import { processModels, processModelVersions, projects, users, type ProcessModel
 import { parseProcessModel, type ProcessModel } from '@/lib/etch';
 import { ApiError } from '@/lib/http/errors';
 import { findBuiltinModel } from '@/lib/jobs/models';
+import { editedSinceCalibration } from './calibration-drift';
 import { diffModelDocuments, type ParameterChange } from './diff';
 import type { CreateModelBody, StoredCalibration, UpdateDraftBody } from './schemas';
 
@@ -27,6 +28,8 @@ export type VersionSummary = {
   publishedAt: string | null;
   calibrationDate: string | null;
   rSquared: number | null;
+  /** Fitted parameters whose value differs from the calibration's fit (lib/models/calibration-drift.ts). */
+  editedSinceCalibration: string[];
 };
 
 export type ModelSummary = {
@@ -72,6 +75,7 @@ function summarise(row: ProcessModelVersionRow, createdByName: string | null): V
     publishedAt: iso(row.publishedAt),
     calibrationDate: typeof cal?.date === 'string' ? cal.date : null,
     rSquared: typeof cal?.rSquared === 'number' ? cal.rSquared : null,
+    editedSinceCalibration: editedSinceCalibration(row.document).map((d) => d.parameter),
   };
 }
 

@@ -41,7 +41,7 @@ const fmt = (v: number) => String(Number(v.toPrecision(4)));
 export function causeOf(f: { kind: string; flagKey: string; limit: number; unit: string; windowUm: number | null; stepUm: number | null }): string {
   if (f.kind === 'outside-calibrated-range') return `${f.flagKey.split(':').at(-1) ?? ''} outside calibration`;
   if (f.windowUm !== null && f.stepUm !== null) return `window ${fmt(f.windowUm)}/${fmt(f.stepUm)} µm, limit ${f.unit === 'fraction' ? `${fmt(f.limit * 100)} %` : f.unit === '%' ? `${fmt(f.limit)} %` : fmt(f.limit)}`;
-  return `limit ${fmt(f.limit)} ${f.unit === 'ratio' ? ':1' : f.unit}`;
+  return f.unit === 'ratio' ? `limit ${fmt(f.limit)}:1` : `limit ${fmt(f.limit)} ${f.unit}`;
 }
 
 /** "1/0" or "1/0+2/0" from the stored settings. */

@@ -2,7 +2,7 @@
 import { and, desc, eq, inArray, isNull } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Db } from '@/db/client';
-import { analyses, notificationPrefs, notifications } from '@/db/schema';
+import { analyses, layoutRevisions, layouts, notificationPrefs, notifications, projects } from '@/db/schema';
 import { unreadCount } from './notify';
 
 export const readBody = z.union([z.object({ ids: z.array(z.string().min(1).max(64)).min(1).max(500) }), z.object({ all: z.literal(true) })]);
@@ -11,16 +11,19 @@ export type NotificationPrefs = z.infer<typeof prefsBody>;
 
 export function listNotifications(db: Db, userId: string, limit = 100) {
   const rows = db
-    .select({ n: notifications, projectId: analyses.projectId })
+    .select({ n: notifications, projectName: projects.name, layoutName: layouts.name, revision: layoutRevisions.revision })
     .from(notifications)
     .leftJoin(analyses, eq(analyses.id, notifications.analysisId))
+    .leftJoin(projects, eq(projects.id, analyses.projectId))
+    .leftJoin(layoutRevisions, eq(layoutRevisions.id, analyses.revisionId))
+    .leftJoin(layouts, eq(layouts.id, layoutRevisions.layoutId))
     .where(eq(notifications.userId, userId))
     .orderBy(desc(notifications.at))
     .limit(limit)
     .all();
   return {
     unread: unreadCount(db, userId),
-    items: rows.map(({ n }) => ({
+    items: rows.map(({ n, projectName, layoutName, revision }) => ({
       id: n.id,
       kind: n.kind,
       at: n.at.toISOString(),
@@ -28,6 +31,8 @@ export function listNotifications(db: Db, userId: string, limit = 100) {
       title: n.title,
       body: n.body,
       read: n.readAt !== null,
+      // Which project and layout the finding is in: a finding key alone does not say, once there are several.
+      context: projectName ? `${projectName}${layoutName ? ` · ${layoutName} r${revision ?? '?'}` : ''}` : null,
       href: n.analysisId ? `/analyses/${n.analysisId}${n.flagKey ? `?finding=${encodeURIComponent(n.flagKey)}` : ''}` : null,
     })),
   };

@@ -44,6 +44,8 @@ export function blockingOf(items: readonly FindingItem[], summary: Record<string
   return { blocking, unlistedErrors: Math.max(0, counted - listedErrors) };
 }
 
+const countText = (n: number, one: string, many: string) => `${n.toLocaleString('en')} ${n === 1 ? one : many}`;
+
 export function signoffState(db: Db, analysisId: string, loaded: Pick<ReturnType<typeof loadFindings>, 'analysis' | 'items'> = loadFindings(db, analysisId)): SignoffState {
   const { analysis, items } = loaded;
   const s = signoffOf(db, analysisId);
@@ -51,9 +53,9 @@ export function signoffState(db: Db, analysisId: string, loaded: Pick<ReturnType
   const reason = s
     ? 'Already signed off.'
     : unlistedErrors > 0
-      ? `${unlistedErrors} error finding(s) were counted but not listed (the list is capped); raise the listed-flags limit and run a new analysis.`
+      ? `${countText(unlistedErrors, 'error finding was', 'error findings were')} counted but not listed (the list is capped); raise the listed-flags limit and run a new analysis.`
       : blocking > 0
-        ? `${blocking} error finding(s) are still open or unwaived; waive them with a reason or have them verified.`
+        ? `${countText(blocking, 'error finding is', 'error findings are')} still open or unwaived; waive them with a reason or have them verified.`
         : null;
   return { signoff: s ? signoffDto(s) : null, blocking, unlistedErrors, canSignOff: reason === null, reason };
 }

@@ -17,6 +17,17 @@ export const MAP_KINDS: Record<string, MapKindInfo> = {
 
 export const mapKindInfo = (kind: string): MapKindInfo => MAP_KINDS[kind] ?? { label: kind, unit: '', scale: 'viridis' };
 
+/**
+ * What tells maps of one kind apart, in the words the summary uses: a stored name "window-density-100um-50um" reads
+ * "100/50 µm" (window/step); any other suffix is shown as it is; "" when the name is the kind.
+ */
+export function mapVariantLabel(name: string, kind: string): string {
+  if (name === kind) return '';
+  const rest = name.startsWith(`${kind}-`) ? name.slice(kind.length + 1) : name;
+  const win = /^(\d+(?:\.\d+)?)um-(\d+(?:\.\d+)?)um$/.exec(rest);
+  return win ? `${win[1]}/${win[2]} µm` : rest;
+}
+
 /** Value of a row-major grid (row 0 at the bottom) at layout point (x, y) µm; NaN outside. */
 export function sampleAt(values: ArrayLike<number>, g: { x0Um: number; y0Um: number; pixelUm: number; nx: number; ny: number }, x: number, y: number): number {
   const i = Math.floor((x - g.x0Um) / g.pixelUm);

@@ -39,6 +39,14 @@ describe('calibration CSV — every bad row named by its line', () => {
     expect(r.rows).toEqual([]);
     expect(r.errors[0]?.line).toBe(3);
   });
+  it('a row with too few or too many values is its own error; the rows around it are still read and checked', () => {
+    // a short row used to end the whole file with the parser's own words and hide the other lines' errors
+    const r = parseCalibrationCsvReport(`${HEADER}\n1,trench,0.1,10,20\n2,trench,zz,10,22\n3,trench,0.1,10\n2,5,trench,0.1,10,30\n5,hole,0.2,10,24\n`);
+    expect(r.rows.map((x) => x.line)).toEqual([2, 6]);
+    expect(r.errors.map((e) => e.line)).toEqual([3, 4, 5]);
+    expect(r.errors[1]?.message).toBe('line 4: 4 values, the header has 5 columns (width_um,kind,density,time_min,depth_um); a decimal comma splits a number in two');
+    expect(r.errors[2]?.message).toMatch(/^line 5: 6 values, the header has 5 columns/);
+  });
   it('caps the list at 100 errors and says so', () => {
     const lines = [HEADER, ...Array.from({ length: 150 }, () => '2,slot,0.3,10,25')];
     const r = parseCalibrationCsvReport(lines.join('\n'));
@@ -63,6 +71,19 @@ describe('underdetermined fits get a clear message', () => {
     const r = fitCalibration(rows([[2, 10], [4, 14], [8, 17], [16, 19]]), { baseModel: base, fit: ['openRateUmPerMin', 'loadingCoefficient'] });
     expect(r.ok).toBe(false);
     if (!r.ok) expect(r.message).toMatch(/different local densities/);
+  });
+  it('a fit on a handful of points says how few and how wide a 95 % interval really is', () => {
+    // Student t with 1 and 2 degrees of freedom has closed-form quantiles (Cauchy: tan(π(p − ½)); ν = 2:
+    // (2p − 1)·√(2 / (4p(1 − p)))), which check the table the warning quotes.
+    const p = 0.975;
+    expect(Math.tan(Math.PI * (p - 0.5)).toFixed(2)).toBe('12.71');
+    const t2 = ((2 * p - 1) * Math.sqrt(2 / (4 * p * (1 - p)))).toFixed(3);
+    const few = fitCalibration(rows([[2, 10], [4, 14], [8, 17], [16, 19]]), { baseModel: base });
+    expect(few.ok).toBe(true);
+    if (few.ok) expect(few.warnings.join(' ')).toContain(`only 4 measurements for 2 fitted parameters (2 degrees of freedom): the standard errors rest on very few points, and a 95 % interval is ${t2}× the standard error`);
+    const many = fitCalibration(rows([2, 3, 4, 5, 6, 8, 10, 12, 16, 20, 30, 40].map((w) => [w, 20 - 20 / w])), { baseModel: base });
+    expect(many.ok).toBe(true);
+    if (many.ok) expect(many.warnings.filter((w) => /degrees? of freedom/.test(w))).toEqual([]);
   });
   it('nothing chosen to fit', () => {
     const r = fitCalibration(rows([[2, 10], [4, 14]]), { baseModel: base, fit: [] });

@@ -13,6 +13,8 @@ import { findingsQuery, queryFindings } from '@/lib/review/findings-query';
 import { loadFindings } from '@/lib/review/findings-store';
 import { addComment, changeFindings, findingThread } from '@/lib/review/review-actions';
 import { signOff, signoffState } from '@/lib/review/signoff';
+import { listNotifications } from '@/lib/review/notifications';
+import { DEMO_PROJECTS } from '@/lib/data/demo';
 import { narrow, reviewDb, storeAnalysis, TEAM_ID } from './review-db';
 
 const reviewer = { id: 'demo-reviewer', name: 'Rafael Odum', role: 'reviewer' as const };
@@ -57,8 +59,12 @@ describe('review of one analysis', () => {
     const r = changeFindings(db, { analysisId: id, teamId: TEAM_ID, actor: reviewer, keys: keys.slice(0, 2), assigneeId: 'demo-designer', link });
     expect(r.changed).toBe(2);
     expect(r.mails.map((m) => m.to)).toEqual(['designer@larkspur.example']);
+    // the mail says which project and layout revision, right under its title
+    expect(r.mails[0]?.text.split('\n').slice(0, 2)).toEqual([expect.stringMatching(/assigned 2 findings to you$/), `${DEMO_PROJECTS[0].name} · Synthetic trenches r1`]);
     const n = db.select().from(notifications).where(eq(notifications.userId, 'demo-designer')).all();
     expect(n.map((x) => x.kind)).toEqual(['assignment']);
+    // the in-app list names the project and layout revision the finding is in
+    expect(listNotifications(db, 'demo-designer').items[0]?.context).toBe(`${DEMO_PROJECTS[0].name} · Synthetic trenches r1`);
     expect(() => changeFindings(db, { analysisId: id, teamId: TEAM_ID, actor: reviewer, keys: keys.slice(0, 1), assigneeId: 'nobody', link })).toThrow(/member/);
   });
 

@@ -58,6 +58,7 @@ export default async function ModelsPage() {
                         <span className={`rounded px-1.5 py-0.5 text-[11px] ${v.status === 'draft' ? 'bg-warn/15 text-warn' : 'bg-pass/10 text-pass'}`}>{v.status}</span>
                         <span className="flex-1 text-xs text-ink-500">
                           {v.calibrationDate ? `calibrated ${v.calibrationDate}${v.rSquared !== null ? `, R² ${v.rSquared.toFixed(3)}` : ''}` : 'uncalibrated'}
+                          {v.editedSinceCalibration.length > 0 ? <span className="ml-1 font-medium text-warn" data-testid="edited-since-calibration">· edited since, fit no longer applies</span> : null}
                         </span>
                         <span className="text-xs text-ink-500">{day.format(new Date(v.publishedAt ?? v.createdAt))}</span>
                       </li>

@@ -22,6 +22,7 @@ const versionSummary = {
   publishedAt: nullable(isoTime()),
   calibrationDate: nullable(str('YYYY-MM-DD')),
   rSquared: nullable(num()),
+  editedSinceCalibration: arrayOf(str('A fitted parameter whose value differs from the calibration record')),
 } satisfies Record<string, JsonSchema>;
 
 const modelHead = { id: str(), teamId: str(), key: str('Short stable key, unique in the team'), name: str(), description: str(), featureKind: { type: 'string', enum: ['trench', 'hole'] }, mode: str() } satisfies Record<string, JsonSchema>;

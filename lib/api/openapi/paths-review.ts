@@ -257,7 +257,7 @@ export const REVIEW_PATHS: Record<string, PathItemObject> = {
       ok: {
         200: {
           description: 'Newest first.',
-          schema: object({ unread: int(), items: arrayOf(object({ id: str(), kind: str(), at: isoTime(), actorName: str(), title: str(), body: str(), read: bool(), href: nullable(str()) })) }),
+          schema: object({ unread: int(), items: arrayOf(object({ id: str(), kind: str(), at: isoTime(), actorName: str(), title: str(), body: str(), read: bool(), context: nullable(str()), href: nullable(str()) })) }),
         },
       },
     }),

@@ -24,6 +24,10 @@ const MAPS = [
 ] as const;
 
 /** The printable review report of one analysis: summary, method, maps, findings with status and waivers, cautions. */
+const plural = (n: number, word: string) => `${n.toLocaleString('en')} ${word}${n === 1 ? '' : 's'}`;
+// Calibration range ends are fitted numbers with float noise (0.07548250000000001); four significant digits say enough.
+const range = (r: number[] | undefined) => (r ? r.map((v) => String(Number(v.toPrecision(4)))).join('–') : '?');
+
 export default async function ReportPage({ params }: { params: Promise<{ analysisId: string }> }) {
   const { analysisId, project } = await analysisForPage((await params).analysisId);
   const db = getDb();
@@ -77,7 +81,7 @@ export default async function ReportPage({ params }: { params: Promise<{ analysi
         <dd data-testid="report-signoff">
           {signoff
             ? `Signed off by ${signoff.signedByName} on ${signoff.signedAt.toISOString().slice(0, 16).replace('T', ' ')} UTC (model ${signoff.modelName} ${signoff.modelVersion})${signoff.note ? ` — “${signoff.note}”` : ''}`
-            : `Not signed off: ${blocking} error finding(s) open or unwaived${unlistedErrors ? `, ${unlistedErrors} error(s) not listed (capped list)` : ''}.`}
+            : `Not signed off: ${plural(blocking, 'error finding')} open or unwaived${unlistedErrors ? `, ${plural(unlistedErrors, 'error')} not listed (capped list)` : ''}.`}
         </dd>
         <dt className="text-ink-500">Findings</dt>
         <dd>
@@ -125,7 +129,7 @@ export default async function ReportPage({ params }: { params: Promise<{ analysi
         <dt className="text-ink-500">Calibration</dt>
         <dd>
           {calibration
-            ? `dated ${calibration.date ?? '—'}; widths ${calibration.widthUm?.join('–') ?? '?'} µm, aspect ratios ${calibration.aspectRatio?.join('–') ?? '?'}, densities ${calibration.density?.join('–') ?? '?'}`
+            ? `dated ${calibration.date ?? '—'}; widths ${range(calibration.widthUm)} µm, aspect ratios ${range(calibration.aspectRatio)}, densities ${range(calibration.density)}`
             : 'the model records no calibration ranges: every prediction is unverified'}
         </dd>
       </dl>

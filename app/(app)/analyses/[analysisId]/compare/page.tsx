@@ -57,32 +57,39 @@ export default async function ComparePage({ params, searchParams }: { params: Pr
   return (
     <>
       <PageTitle kicker={<Link href={`/analyses/${analysisId}`} className="hover:underline">{label(me)}</Link>} title="Compare revisions" />
-      <Card className="mb-6 p-5">
-        <form className="flex flex-wrap items-end gap-3 text-sm" method="get">
-          <label className="text-xs text-ink-700">
-            Earlier analysis
-            <select name="with" defaultValue={parsed.success ? parsed.data.with : ''} className="mt-1 block rounded-md border border-wafer-300 bg-white px-2 py-1.5 text-sm" data-testid="compare-with">
-              {others.map((a) => (
-                <option key={a.id} value={a.id}>
-                  {label(a)}
-                </option>
-              ))}
-            </select>
-          </label>
-          <label className="text-xs text-ink-700">
-            Match tolerance (µm)
-            <input name="toleranceUm" type="number" min="0" step="any" defaultValue={parsed.success ? parsed.data.toleranceUm : DEFAULT_COMPARE_TOLERANCE_UM} className="mt-1 block w-28 rounded-md border border-wafer-300 bg-white px-2 py-1.5 text-sm" />
-          </label>
-          <button type="submit" className={buttonClass('secondary')}>
-            Compare
-          </button>
-        </form>
-        <p className="mt-3 text-xs text-ink-500">
-          Findings match when they have the same kind and their points lie within the tolerance; each finding matches at most one, closest pairs first. A
-          finding that moved further than the tolerance counts as resolved in the earlier analysis and new in this one.
+      {/* Without another finished analysis the form would offer an empty choice and a button that does nothing. */}
+      {others.length === 0 ? (
+        <p className="text-sm text-ink-700" data-testid="compare-none">
+          This project has no other finished analysis to compare with. Upload the next revision of the layout and analyse it, then compare the two here.
         </p>
-      </Card>
-      {problem ? <p className="text-sm text-ink-700">{problem}</p> : null}
+      ) : (
+        <Card className="mb-6 p-5">
+          <form className="flex flex-wrap items-end gap-3 text-sm" method="get">
+            <label className="text-xs text-ink-700">
+              Earlier analysis
+              <select name="with" defaultValue={parsed.success ? parsed.data.with : ''} className="mt-1 block rounded-md border border-wafer-300 bg-white px-2 py-1.5 text-sm" data-testid="compare-with">
+                {others.map((a) => (
+                  <option key={a.id} value={a.id}>
+                    {label(a)}
+                  </option>
+                ))}
+              </select>
+            </label>
+            <label className="text-xs text-ink-700">
+              Match tolerance (µm)
+              <input name="toleranceUm" type="number" min="0" step="any" defaultValue={parsed.success ? parsed.data.toleranceUm : DEFAULT_COMPARE_TOLERANCE_UM} className="mt-1 block w-28 rounded-md border border-wafer-300 bg-white px-2 py-1.5 text-sm" />
+            </label>
+            <button type="submit" className={buttonClass('secondary')}>
+              Compare
+            </button>
+          </form>
+          <p className="mt-3 text-xs text-ink-500">
+            Findings match when they have the same kind and their points lie within the tolerance; each finding matches at most one, closest pairs first. A
+            finding that moved further than the tolerance counts as resolved in the earlier analysis and new in this one.
+          </p>
+        </Card>
+      )}
+      {problem && others.length > 0 ? <p className="text-sm text-ink-700">{problem}</p> : null}
       {result ? (
         <>
           <div className="mb-6 grid grid-cols-3 gap-4" data-testid="compare-counts">

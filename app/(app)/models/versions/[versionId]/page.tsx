@@ -13,6 +13,7 @@ import { can, rolesAllowedText } from '@/lib/auth/permissions';
 import { requireUser } from '@/lib/auth/session';
 import { idParam } from '@/lib/data/schemas';
 import { isApiError } from '@/lib/http/errors';
+import { editedSinceCalibration } from '@/lib/models/calibration-drift';
 import { diffVersions, getVersion, listTeamModels, versionTeamId } from '@/lib/models/versions';
 
 export const metadata: Metadata = { title: 'Model version' };
@@ -28,7 +29,8 @@ function Section({ title, children, testId }: { title: string; children: React.R
   );
 }
 
-const show = (v: unknown) => (v === null || v === undefined ? '—' : String(v));
+// Six significant digits: fitted values carry float noise (3.6633096781354544) that is not precision.
+const show = (v: unknown) => (v === null || v === undefined ? '—' : typeof v === 'number' ? String(Number(v.toPrecision(6))) : String(v));
 
 export default async function ModelVersionPage({ params, searchParams }: { params: Promise<{ versionId: string }>; searchParams: Promise<{ against?: string }> }) {
   const user = await requireUser();
@@ -52,6 +54,7 @@ export default async function ModelVersionPage({ params, searchParams }: { param
   const againstId = siblings.some((s) => s.id === wanted && s.id !== version.id) ? (wanted as string) : version.basedOnVersionId;
   const diff = againstId && siblings.some((s) => s.id === againstId) ? diffVersions(db, againstId, version.id) : null;
 
+  const drift = editedSinceCalibration(version.document);
   return (
     <div className="space-y-5">
       <PageTitle
@@ -74,6 +77,14 @@ export default async function ModelVersionPage({ params, searchParams }: { param
       </div>
       {version.document.description ? <p className="max-w-4xl text-sm text-ink-700">{version.document.description}</p> : null}
       {version.note ? <p className="max-w-4xl text-sm text-ink-500">Note: {version.note}</p> : null}
+      {drift.length > 0 ? (
+        <p role="note" className="max-w-4xl rounded-md border border-warn/40 bg-warn/10 px-3 py-2 text-sm text-ink-900" data-testid="calibration-drift">
+          <span className="font-semibold">Edited after calibration.</span>{' '}
+          {drift.map((d) => `${d.label} is ${show(d.current)}${d.unit ? ` ${d.unit}` : ''} here; the fit gave ${show(d.fitted)}`).join('; ')}. The calibration record (date, R², calibrated
+          ranges, depth uncertainty) describes the fitted values, not this version&rsquo;s: calibrate {isDraft ? 'this draft' : 'a new draft'} again on measured depths, or treat
+          its predictions as uncalibrated.
+        </p>
+      ) : null}
 
       <Section title={isDraft && editable ? 'Parameters (draft)' : 'Parameters'}>
         {isDraft && editable ? <DraftForm key={version.updatedAt} versionId={version.id} document={version.document} /> : <ParameterTable document={version.document} />}
