@@ -25,6 +25,7 @@ export {
   type ModelIssue,
 } from './process-model';
 export { createFeaturePredictor, type FeaturePredictor } from './fast-predict';
+export { densityLimits, densityLimitsToCsv, type DensityLimits, type DensityLimitRow, type DensityLimitsOptions } from './density-limits';
 export { predictFeature, predictDepthUm, ETCH_CAUTION, NO_WARNINGS, type FeatureInput, type FeaturePrediction, type StopReason, type PredictOptions } from './predict';
 export { parseCalibrationCsv, calibrationRowsToCsv, CalibrationCsvError, type CalibrationRow } from './calibration-csv';
 export { parseCalibrationCsvReport, type CalibrationCsvIssue, type CalibrationCsvReport } from './calibration-csv';

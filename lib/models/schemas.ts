@@ -67,3 +67,18 @@ export const widthRulesQuery = z.object({
   density: z.coerce.number().min(0, 'density must be in [0, 1].').max(1, 'density must be in [0, 1].').optional(),
   format: z.enum(['json', 'csv']).default('json'),
 });
+
+/** `?widthsUm=2,5,10`: 1–20 opening widths in µm. */
+const widthList = z
+  .string()
+  .trim()
+  .transform((v, ctx) => {
+    const parts = v.split(',').map((x) => x.trim());
+    const nums = parts.map(Number);
+    const bad = parts.findIndex((x, i) => x === '' || !Number.isFinite(nums[i]) || (nums[i] as number) <= 0 || (nums[i] as number) > 10_000);
+    if (bad >= 0) ctx.addIssue({ code: 'custom', message: `widthsUm: item ${bad + 1} ('${parts[bad]}') must be a width in µm, > 0 and ≤ 10,000.` });
+    else if (nums.length > 20) ctx.addIssue({ code: 'custom', message: 'widthsUm: give at most 20 widths.' });
+    return nums;
+  });
+
+export const densityLimitsQuery = widthRulesQuery.omit({ density: true }).extend({ widthsUm: widthList.optional() });

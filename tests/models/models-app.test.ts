@@ -72,6 +72,39 @@ describe('model versions over HTTP', () => {
     expect(deep.status).toBe(400);
     expect(((await deep.json()) as { error: { fieldErrors: Record<string, string[]> } }).error.fieldErrors.targetDepthUm?.[0]).toMatch(/below the stop layer/);
   });
+
+  it('density limits: the band per width matches the depth grid, CSV download, bad widths refused by item, shown on the version page', async () => {
+    const v2 = (await trenchVersions(pe))[0]!.id;
+    type Limits = { densities: number[]; targetDepthUm: number; toleranceUm: number; rows: { widthUm: number; depthsUm: number[]; maxDensity: number | null; minDensity: number | null }[]; caution: string };
+    const json = (await (await designer.get(`/api/v1/model-versions/${v2}/density-limits?kind=trench&targetDepthUm=40&widthsUm=3,10,30`)).json()) as Limits;
+    expect(json.rows.map((r) => r.widthUm)).toEqual([3, 10, 30]);
+    const need = json.targetDepthUm - json.toleranceUm;
+    for (const r of json.rows) {
+      // Grid densities inside the band reach target − tolerance; those above the upper limit do not.
+      json.densities.forEach((rho, i) => expect(r.depthsUm[i]! >= need, `w ${r.widthUm} ρ ${rho}`).toBe(r.maxDensity !== null && rho <= r.maxDensity));
+    }
+    expect(json.caution).toMatch(/process of record/);
+    const csv = await designer.get(`/api/v1/model-versions/${v2}/density-limits?kind=trench&targetDepthUm=40&format=csv`);
+    expect(csv.headers.get('content-disposition')).toMatch(/attachment; filename="density-limits-deep-trench-continuous-v2-trench-40um.csv"/);
+    expect(await csv.text()).toMatch(/^width_um,min_density,max_density,depth_um_at_0,/m);
+    const bad = await designer.get(`/api/v1/model-versions/${v2}/density-limits?widthsUm=3,abc`);
+    expect(bad.status).toBe(400);
+    expect(JSON.stringify(await bad.json())).toMatch(/item 2 \('abc'\)/);
+    const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const p = await ctx.newPage();
+    await p.goto(`${server.baseUrl}/sign-in`);
+    await p.getByLabel('E-mail').fill('process@larkspur.example');
+    await p.getByLabel('Password').fill(DEMO_PASSWORD_DEFAULT);
+    await p.getByRole('button', { name: 'Sign in' }).click();
+    await p.waitForURL(/\/projects$/);
+    await p.goto(`${server.baseUrl}/models/versions/${v2}`);
+    await p.getByTestId('dl-widths').fill('2, 8, 40');
+    await p.getByTestId('dl-table').locator('tbody tr').nth(2).waitFor();
+    expect(await p.getByTestId('dl-table').locator('tbody tr').count()).toBe(3);
+    await p.getByTestId('density-limits').scrollIntoViewIfNeeded();
+    await screenshot(p, 'models-density-limits');
+    await ctx.close();
+  });
 });
 
 describe('who may keep rule sets and models (model.publish, lib/auth/permissions.ts)', () => {

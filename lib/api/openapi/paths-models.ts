@@ -4,7 +4,7 @@ import { createModelBody, storedCalibrationSchema, updateDraftBody } from '@/lib
 import { arrayOf, bool, int, isoTime, nullable, num, object, operation, outputSchema, queryParam, ref, str } from './build';
 import type { JsonSchema, PathItemObject } from './types';
 
-// Process models (versions, drafts, publishing, diff, width rules) and rule sets: the routes under
+// Process models (versions, drafts, publishing, diff, width rules, density limits) and rule sets: the routes under
 // app/api/v1/teams/{teamId}/{models,rule-sets}, app/api/v1/model-versions and app/api/v1/rule-sets, described from
 // lib/models (VersionSummary, VersionView, RuleSetView, WidthRules).
 
@@ -48,6 +48,22 @@ export const MODEL_SCHEMAS: Record<string, JsonSchema> = {
       minimumWidthUm: nullable(num()),
       uncertaintyBandK: nullable(num()),
       rows: arrayOf(object({ widthUm: num(), depthUm: num(), aspectRatio: num(), marginUm: num(), pass: bool(), status: str(), depthSigmaUm: nullable(num()) })),
+      caution: str(),
+    },
+    additionalProperties: true,
+  },
+  DensityLimits: {
+    type: 'object',
+    description: 'Density limits: per opening width the effective-density band (minDensity–maxDensity) in which the depth at the recipe time stays within target ± tolerance, and the depth at each density of `densities`.',
+    properties: {
+      kind: str(),
+      targetDepthUm: num(),
+      toleranceUm: num(),
+      timeMin: num(),
+      exposedFraction: num(),
+      calibratedDensity: nullable(arrayOf(num())),
+      densities: arrayOf(num()),
+      rows: arrayOf(object({ widthUm: num(), depthsUm: arrayOf(num()), maxDensity: nullable(num('null: short of target even at density 0')), minDensity: nullable(num('null: deeper than target + tolerance even at density 1')) })),
       caution: str(),
     },
     additionalProperties: true,
@@ -146,6 +162,25 @@ export const MODEL_PATHS: Record<string, PathItemObject> = {
         queryParam('format', 'json or csv', { type: 'string', enum: ['json', 'csv'], default: 'json' }),
       ],
       ok: { 200: { description: 'The table (JSON, or CSV with # comment lines).', schema: ref('WidthRules') } },
+    }),
+  },
+  '/model-versions/{versionId}/density-limits': {
+    get: operation('get', {
+      id: 'modelDensityLimits',
+      tag: 'Models',
+      summary: 'Density limits',
+      description: 'Per opening width, the band of effective (kernel-weighted) density in which the predicted depth stays within target ± tolerance, and depth over a density grid; CSV or JSON. Estimates: the foundry rule manual takes precedence.',
+      access: 'session-or-token',
+      permission: 'team.read',
+      path: versionId,
+      query: [
+        queryParam('kind', 'trench or hole', { type: 'string', enum: ['trench', 'hole'], default: 'trench' }),
+        queryParam('targetDepthUm', 'Target depth, µm (default: the model’s).', { type: 'number', exclusiveMinimum: 0 }),
+        queryParam('toleranceUm', 'Depth tolerance, µm.', { type: 'number', minimum: 0 }),
+        queryParam('widthsUm', 'Comma-separated opening widths in µm (1–20; default 8 from 1 to 100 µm).', { type: 'string' }),
+        queryParam('format', 'json or csv', { type: 'string', enum: ['json', 'csv'], default: 'json' }),
+      ],
+      ok: { 200: { description: 'The table (JSON, or CSV with # comment lines).', schema: ref('DensityLimits') } },
     }),
   },
   '/teams/{teamId}/rule-sets': {

@@ -2,6 +2,7 @@ import type { Metadata } from 'next';
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { CalibrationPanel } from '@/components/models/calibration-panel';
+import { DensityLimitsPanel } from '@/components/models/density-limits-panel';
 import { DraftForm } from '@/components/models/draft-form';
 import { ParameterTable } from '@/components/models/parameter-table';
 import { VersionActions } from '@/components/models/version-actions';
@@ -96,6 +97,10 @@ export default async function ModelVersionPage({ params, searchParams }: { param
 
       <Section title="Width rules">
         <WidthRulesPanel versionId={version.id} defaultTargetUm={version.document.etch.targetDepthUm} defaultKind={version.model.featureKind} />
+      </Section>
+
+      <Section title="Density limits">
+        <DensityLimitsPanel versionId={version.id} defaultTargetUm={version.document.etch.targetDepthUm} defaultKind={version.model.featureKind} />
       </Section>
 
       <Section title="Changes between versions">
