@@ -65,7 +65,8 @@ export function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64
 /**
  * Exact distance (dbu) at the local maximum of D reached from (x, y): the 16-direction pattern search with halving
  * steps from `step` (moves shorter than the current distance never leave the opening), landing on the maximum by
- * ridge-snap.ts once the step is small. Used from lattice nodes, uniform (refineLargestDisk) or not (manhattan-widths.ts).
+ * ridge-snap.ts once the step is small (its `largest` choice: a climb is after the largest maximum near it). Used from
+ * lattice nodes, uniform (refineLargestDisk) or not (manhattan-widths.ts).
  */
 export function climbToMaximum(edges: Float64Array, x: number, y: number, step: number): number {
   // Inlined wrapper: numbers through typed slots, not boxed arguments and result (see ridge-snap.ts snapToRidge).
@@ -87,7 +88,7 @@ function climbAt(edges: Float64Array): void {
   for (let it = 0; it < 120 && h > step * 1e-6; it++) {
     if (h < earlyAt) {
       earlyAt = 0;
-      if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) {
+      if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d, true)) {
         early = snapped[2] as number;
         ex = snapped[0] as number;
         ey = snapped[1] as number;
@@ -95,7 +96,7 @@ function climbAt(edges: Float64Array): void {
     }
     if (h < snapAt) {
       snapAt = 0;
-      if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) {
+      if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d, true)) {
         x = snapped[0] as number;
         y = snapped[1] as number;
         d = snapped[2] as number;
@@ -189,7 +190,12 @@ function extraSeeds(edges: Float64Array, lat: Lattice, d2: Float64Array, runs: I
   return nStarts;
 }
 
-/** Largest exact distance to the rings within two lattice steps of node q (pattern search, dbu). */
+/**
+ * Largest exact distance to the rings within two lattice steps of node q (pattern search, dbu). Its snaps land on the
+ * nearest certified maximum (ridge-snap.ts): the ridge of the narrowest centre, not a larger vertex within the two steps
+ * beside a trench plateau (with the largest candidate, 5 trench + via openings of the bench layout had minWidth up to
+ * 3 % above their trench width).
+ */
 export function polishLocal(edges: Float64Array, lat: Lattice, q: number): number {
   const i = q % lat.nx, j = (q - i) / lat.nx;
   const cx = lat.x0 + i * lat.step, cy = lat.y0 + j * lat.step;

@@ -41,7 +41,8 @@
  * distance by up to step·√2/2, so the narrowest self-centred node and the best largest-disk nodes are refined by
  * pattern search on the exact distance to the edges (polishLocal, refineLargestDisk, disk-search.ts), which lands
  * exactly on the local maximum it approaches — a medial-axis vertex or a plateau midline — once close
- * (ridge-snap.ts, accepted only where the directions to the nearest boundary points certify a maximum); a wider snap
+ * (ridge-snap.ts, accepted only where the directions to the nearest boundary points certify a maximum; the polish of
+ * the narrowest centre takes the nearest certified maximum, the largest-disk searches the largest); a wider snap
  * sets a floor where the search stalls on a slanted crease or a plateau below a nearby larger maximum. The tests hold
  * a curved non-convex shape (an annulus) to 2 % of its analytic width and Manhattan T/L/cross/comb openings off the
  * exact lattice to 1e-6 dbu. A node counts as self-centred when no node with a strictly larger disk covers it, so

@@ -106,6 +106,28 @@ describe('snapToRidge(edges, x, y, d, reach, maxMove)', () => {
     expect(Math.hypot(snapped[0]! - t, snapped[1]! - t)).toBeLessThan(1e-6);
   });
 
+  it('lands on the nearest certified maximum (the plateau it starts on), not a larger vertex within reach', () => {
+    // Trench [0, 5000] × [0, 1000] opening into a pad [5000, 6000] × [0, 2000] (bottom edges flush), derived by hand
+    // from the definitions in widths.ts (common practice, no source). The trench's midline y = 500 is a plateau of
+    // D = 500. Beside it, in the pad, a medial-axis vertex touches the bottom y = 0, the pad's right wall x = 6000 and
+    // the reflex corner (5000, 1000): centre (6000 − r, r), (1000 − r)·√2 = r → r = 1000√2/(1 + √2) = 1000(2 − √2)
+    // = 585.786 dbu, a certified maximum (site directions π/2, π, 7π/4: no gap of π). From (4950, 510), D = 490 (the
+    // trench top), both lie within the move bound D: the plateau point (4950, 500) 10 dbu away, the vertex
+    // (5414.2, 585.8) 470 dbu away. The narrowest-centre polish must stay on the plateau (r = 500); the maxWidth
+    // climbs (`largest`) take the vertex.
+    const e = edgeList(Float64Array.from([0, 0, 6_000, 0, 6_000, 2_000, 5_000, 2_000, 5_000, 1_000, 0, 1_000]), [[0, 6]]);
+    const [x, y] = [4_950, 510];
+    const d = distanceToEdges(e, x, y);
+    expect(d).toBe(490);
+    const r = 1_000 * (2 - Math.SQRT2);
+    expect(snapToRidge(e, x, y, d, 600, d)).toBe(true);
+    expect(Math.abs(snapped[2]! - 500)).toBeLessThan(1e-9);
+    expect(Math.hypot(snapped[0]! - 4_950, snapped[1]! - 500)).toBeLessThan(1e-6);
+    expect(snapToRidge(e, x, y, d, 600, d, true)).toBe(true);
+    expect(Math.abs(snapped[2]! - r)).toBeLessThan(1e-9);
+    expect(Math.hypot(snapped[0]! - (6_000 - r), snapped[1]! - r)).toBeLessThan(1e-6);
+  });
+
   it('never lowers D, never moves farther than allowed, and ends on a local maximum (seeded random unions)', () => {
     const rnd = mulberry32(77);
     let landed = 0;
