@@ -12,15 +12,6 @@ import { readFileSync } from 'node:fs';
 import { readDump } from './widths-run';
 import { edgeList, distanceToEdges } from '../lib/geometry/edge-distance';
 
-const load = (f: string) => { const b = readFileSync(f); return new Float64Array(b.buffer, b.byteOffset, b.byteLength / 8); };
-const [dumpFile, beforeFile, afterFile, thrArg, listArg] = process.argv.slice(2);
-if (!dumpFile || !beforeFile || !afterFile) throw new Error('usage: widths-brute-min.ts DUMP.bin BEFORE.bin AFTER.bin [threshold | list K,K]');
-const ops = readDump(dumpFile);
-const a = load(beforeFile), b = load(afterFile);
-const idx: number[] = [];
-if (thrArg === 'list') idx.push(...(listArg ?? '').split(',').map(Number));
-else for (let k = 0; k < ops.length; k++) if (Math.abs(b[3 * k]! - a[3 * k]!) > Number(thrArg ?? 0)) idx.push(k);
-
 const inside = (c: Float64Array, rings: [number, number][], x: number, y: number) => {
   let w = false;
   for (const [s, e] of rings) for (let k = s; k < e; k++) { const n = k + 1 < e ? k + 1 : s; const yi = c[2*k+1]!, yj = c[2*n+1]!; if ((yi > y) !== (yj > y)) { const xi = c[2*k]! + (y - yi) * (c[2*n]! - c[2*k]!) / (yj - yi); if (x < xi) w = !w; } }
@@ -89,6 +80,14 @@ export function bruteMin(f: { coords: Float64Array; rings: [number, number][]; b
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {
+  const load = (f: string) => { const b = readFileSync(f); return new Float64Array(b.buffer, b.byteOffset, b.byteLength / 8); };
+  const [dumpFile, beforeFile, afterFile, thrArg, listArg] = process.argv.slice(2);
+  if (!dumpFile || !beforeFile || !afterFile) throw new Error('usage: widths-brute-min.ts DUMP.bin BEFORE.bin AFTER.bin [threshold | list K,K]');
+  const ops = readDump(dumpFile);
+  const a = load(beforeFile), b = load(afterFile);
+  const idx: number[] = [];
+  if (thrArg === 'list') idx.push(...(listArg ?? '').split(',').map(Number));
+  else for (let k = 0; k < ops.length; k++) if (Math.abs(b[3 * k]! - a[3 * k]!) > Number(thrArg ?? 0)) idx.push(k);
   let better = 0, worse = 0, same = 0;
   for (const k of idx) {
     const f = ops[k]!;
