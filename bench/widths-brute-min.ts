@@ -46,26 +46,36 @@ export function bruteMin(f: { coords: Float64Array; rings: [number, number][]; b
     const x = f.bbox[0] + i * s, y = f.bbox[1] + j * s;
     if (inside(f.coords, f.rings, x, y)) D[j * nx + i] = distanceToEdges(e, x, y);
   }
-  const cands: [number, number, number][] = [];
+  // Grid points with D ≥ their 8 neighbours, in increasing grid D; each refined to its local maximum (never below its
+  // grid D), so once a grid D reaches the best uncovered maximum so far nothing later can beat it.
+  const tops: number[] = [];
   for (let j = 1; j + 1 < ny; j++) for (let i = 1; i + 1 < nx; i++) {
     const d = D[j * nx + i]!;
     if (d <= 0) continue;
     let top = true;
     for (let dj = -1; dj <= 1 && top; dj++) for (let di = -1; di <= 1; di++) if (D[(j + dj) * nx + i + di]! > d) { top = false; break; }
-    if (top) cands.push(compass((x, y) => distanceToEdges(e, x, y), e, f.bbox[0] + i * s, f.bbox[1] + j * s, s));
+    if (top) tops.push(j * nx + i);
   }
-  cands.sort((p, q) => p[2] - q[2]);
-  for (const [cx, cy, dc] of cands) {
+  tops.sort((p, q) => D[p]! - D[q]!);
+  // Grid points by decreasing D: a covering disk is usually a large one, and the scan stops at the first.
+  const byD = Array.from({ length: nx * ny }, (_, q) => q).filter((q) => D[q]! > 0).sort((p, q) => D[q]! - D[p]!);
+  let min = Infinity, at: [number, number] = [0, 0];
+  for (const t of tops) {
+    if (D[t]! >= min) break;
+    const ti = t % nx, tj = (t - ti) / nx;
+    const [cx, cy, dc] = compass((x, y) => distanceToEdges(e, x, y), e, f.bbox[0] + ti * s, f.bbox[1] + tj * s, s);
+    if (dc >= min) continue;
     // Covered: a point b with D(b) > D(c) and |b − c| ≤ D(b). The grid's best margin D(b) − |b − c| first, then
     // refined (only over points with D(b) > D(c)).
     const floor = dc * (1 + 1e-9);
     let bestM = -Infinity, bi = -1;
-    for (let q = 0; q < nx * ny; q++) {
-      const db = D[q]!;
-      if (db <= floor) continue;
+    for (let o = 0; o < byD.length; o++) {
+      const q = byD[o]!, db = D[q]!;
+      if (db <= floor) break;
       const qi = q % nx, qj = (q - qi) / nx;
       const m = db - Math.hypot(f.bbox[0] + qi * s - cx, f.bbox[1] + qj * s - cy);
       if (m > bestM) { bestM = m; bi = q; }
+      if (m >= 0) break;
     }
     if (bestM >= 0) continue;
     if (bi >= 0) {
@@ -74,8 +84,10 @@ export function bruteMin(f: { coords: Float64Array; rings: [number, number][]; b
       const [, , m] = compass(margin, e, f.bbox[0] + qi * s, f.bbox[1] + qj * s, s);
       if (m >= -1e-9 * (1 + dc)) continue;
     }
-    return { min: 2 * dc, at: [cx, cy] };
+    min = dc;
+    at = [cx, cy];
   }
+  if (min < Infinity) return { min: 2 * min, at };
   return { min: NaN, at: [0, 0] };
 }
 

@@ -56,8 +56,9 @@
  */
 import type { Lattice } from './lattice';
 import { interiorRuns, lastRoots, runDistanceTransform, runMaximalCentres, runMaxD2, sortByD2Descending } from './lattice-runs';
-import { polishLocal, refineLargestDisk, seededBest } from './disk-search';
-import { edgeList } from './edge-distance';
+import { climbed, polishLocal, refineLargestDisk, seededBest } from './disk-search';
+import { isLocalMaximum } from './ridge-snap';
+import { distanceToEdges, edgeList } from './edge-distance';
 import { convexInscribedRadius, isConvexRing } from './convex-width';
 import { polygonisedCircle } from './circle-width';
 import { manhattanLines } from './manhattan-lines';
@@ -271,7 +272,7 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
   // Off the exact lattice, polish the narrowest centre on the exact distance within two steps (reaches the ridge
   // of a straight-sided trench, whose lattice nodes sit up to half a step off the centre line).
   const edges = edgeList(coords, rings, true);
-  const minW = exact || sc.node < 0 ? sc.width : (2 * polishLocal(edges, lat, sc.node)) / step;
+  const minW = exact || sc.node < 0 ? sc.width : (2 * narrowestPolished(edges, lat, sc.node)) / step;
   // The largest disk's centre may lie between nodes (e.g. a Manhattan frame corner, where it touches a concave
   // corner): polish the best nodes by pattern search on the exact distance to the rings.
   const maxD = refineLargestDisk(edges, lat, d2, runs);
@@ -289,6 +290,8 @@ function smallestSelfCentred(d2: Float64Array, centres: Int32Array, maxD2: numbe
   // Largest first, ties in node order (a stable sort of the row-major centres); √d2 from runMaximalCentres.
   const root = lastRoots();
   const desc = sortByD2Descending(centres, d2, maxD2);
+  let first = -1;
+  nAlt = 0;
   for (let ci0 = desc.length - 1; ci0 >= 0; ci0--) {
     const c = desc[ci0] as number;
     const dc = root[c] as number;
@@ -317,7 +320,46 @@ function smallestSelfCentred(d2: Float64Array, centres: Int32Array, maxD2: numbe
         break;
       }
     }
-    if (!covered) return { width: 2 * dc, node: c };
+    if (covered) continue;
+    if (first < 0) {
+      first = c;
+      // On the exact lattice the first is the answer; off it, the nodes up to one step above are polished too.
+      if (slack === 0) break;
+    } else if (dc > (root[first] as number) + 1) break;
+    if (nAlt < altS.length) altS[nAlt++] = c;
+    else break;
   }
-  return { width: 0, node: -1 };
+  return first < 0 ? { width: 0, node: -1 } : { width: 2 * (root[first] as number), node: first };
 }
+
+/** Uncovered nodes within one step of lattice D of the narrowest (set by smallestSelfCentred, off the exact lattice). */
+const altS = new Int32Array(32);
+let nAlt = 0;
+const altD = new Float64Array(32);
+
+/**
+ * Polished narrowest centre off the exact lattice: lattice D overestimates the true distance by up to 0.71 step, so a
+ * node one lattice step above the narrowest can sit on a narrower ridge (a trench plateau beside a via measured wider
+ * on the lattice). The narrowest node is polished as before; the other uncovered nodes within one step of it are
+ * polished in increasing exact distance (at most POLISHES; a polish never ends below its start's distance, so starts at
+ * or above the best so far are skipped), each kept only where it lands on a certified local maximum of D.
+ */
+function narrowestPolished(edges: Float64Array, lat: Lattice, node: number): number {
+  let best = polishLocal(edges, lat, node);
+  if (nAlt <= 1) return best;
+  for (let k = 0; k < nAlt; k++) {
+    const q = altS[k] as number, i = q % lat.nx, j = (q - i) / lat.nx;
+    altD[k] = q === node ? -1 : distanceToEdges(edges, lat.x0 + i * lat.step, lat.y0 + j * lat.step);
+  }
+  for (let p = 0; p < POLISHES; p++) {
+    let b = -1;
+    for (let k = 0; k < nAlt; k++) if ((altD[k] as number) >= 0 && (b < 0 || (altD[k] as number) < (altD[b] as number))) b = k;
+    if (b < 0 || (altD[b] as number) >= best) break;
+    altD[b] = -1;
+    const r = polishLocal(edges, lat, altS[b] as number);
+    if (r < best * (1 - 1e-12) && isLocalMaximum(edges, climbed[0] as number, climbed[1] as number, r)) best = r;
+  }
+  return best;
+}
+
+const POLISHES = 4;
