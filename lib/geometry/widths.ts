@@ -46,7 +46,9 @@
  * sets a floor where the search stalls on a slanted crease or a plateau below a nearby larger maximum. The tests hold
  * a curved non-convex shape (an annulus) to 2 % of its analytic width and Manhattan T/L/cross/comb openings off the
  * exact lattice to 1e-6 dbu. A node counts as self-centred when no node with a strictly larger disk covers it, so
- * lattice noise can only raise minWidth. Axis-aligned rectangles, convex shapes and polygonised circles are
+ * lattice noise can only raise minWidth; the uncovered nodes up to one step above the narrowest are polished too
+ * (narrowestPolished), since lattice D can rank a trench plateau above a via beside it (on the bench dump that put
+ * 142 of the 2 991 sampled-path minWidths up to 2× too wide). Axis-aligned rectangles, convex shapes and polygonised circles are
  * computed analytically.
  *
  * Cost: the lattice path is ~40–80 µs per feature (a few thousand nodes, a few hundred inside): the lattice passes
