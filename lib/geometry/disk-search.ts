@@ -65,29 +65,44 @@ export function refineLargestDisk(edges: Float64Array, lat: Lattice, d2: Float64
 /**
  * Exact distance (dbu) at the local maximum of D reached from (x, y): the 16-direction pattern search with halving
  * steps from `step` (moves shorter than the current distance never leave the opening), landing on the maximum by
- * ridge-snap.ts once the step is small. Used from lattice nodes, uniform (refineLargestDisk) or not (manhattan-widths.ts).
+ * ridge-snap.ts once the step is small (its `largest` choice: a climb is after the largest maximum near it). Used from
+ * lattice nodes, uniform (refineLargestDisk) or not (manhattan-widths.ts).
  */
 export function climbToMaximum(edges: Float64Array, x: number, y: number, step: number): number {
   // Inlined wrapper: numbers through typed slots, not boxed arguments and result (see ridge-snap.ts snapToRidge).
-  climbed[0] = x;
-  climbed[1] = y;
-  climbed[2] = step;
-  climbAt(edges);
+  search[0] = x;
+  search[1] = y;
+  search[2] = step;
+  search[3] = step;
+  search[4] = 120;
+  search[5] = Infinity;
+  search[6] = 1;
+  searchAt(edges);
   return climbed[2] as number;
 }
 
-/** climbToMaximum with its start (x, y) and step read from `climbed`, the result written there. */
-function climbAt(edges: Float64Array): void {
-  let x = climbed[0] as number, y = climbed[1] as number;
-  const step = climbed[2] as number;
+/** searchAt's arguments: start x, y; base step (snap and stop thresholds); first step; most iterations; reach (how
+ * far from the start probes and snapped points may lie); 1 for the snap's `largest` choice. */
+const search = new Float64Array(7);
+
+/**
+ * The 16-direction pattern search of climbToMaximum and polishLocal (arguments in `search`, result in `climbed`):
+ * halving steps (moves shorter than the current distance never leave the opening) within `reach` of the start, a first
+ * snap at SNAP_EARLY steps kept as a floor, the landing snap at SNAP_STEP, done when no probe improves on that.
+ */
+function searchAt(edges: Float64Array): void {
+  const cx = search[0] as number, cy = search[1] as number, step = search[2] as number;
+  const maxIt = search[4] as number, reach = search[5] as number, largest = search[6] === 1;
+  let x = cx, y = cy;
   let d = distanceToEdges(edges, x, y);
-  let h = step;
+  let h = search[3] as number;
   let snapAt = step * SNAP_STEP, justSnapped = false;
   let earlyAt = step * SNAP_EARLY, early = 0, ex = 0, ey = 0;
-  for (let it = 0; it < 120 && h > step * 1e-6; it++) {
+  for (let it = 0; it < maxIt && h > step * 1e-6; it++) {
     if (h < earlyAt) {
       earlyAt = 0;
-      if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) {
+      const room = Math.min(d, reach - Math.hypot(x - cx, y - cy));
+      if (room > 0 && snapToRidge(edges, x, y, d, SNAP_REACH * h, room, largest)) {
         early = snapped[2] as number;
         ex = snapped[0] as number;
         ey = snapped[1] as number;
@@ -95,7 +110,8 @@ function climbAt(edges: Float64Array): void {
     }
     if (h < snapAt) {
       snapAt = 0;
-      if (snapToRidge(edges, x, y, d, SNAP_REACH * h, d)) {
+      const room = Math.min(d, reach - Math.hypot(x - cx, y - cy));
+      if (room > 0 && snapToRidge(edges, x, y, d, SNAP_REACH * h, room, largest)) {
         x = snapped[0] as number;
         y = snapped[1] as number;
         d = snapped[2] as number;
@@ -103,16 +119,18 @@ function climbAt(edges: Float64Array): void {
       }
     }
     let moved = false;
-    for (let k = 0; k < 16; k++) {
-      if (!(h < d)) break;
-      const nxp = x + (DIR_X[k] as number) * h, nyp = y + (DIR_Y[k] as number) * h;
-      const nd = distanceAbove(edges, nxp, nyp, d + 1e-12);
-      if (nd > d + 1e-12) {
-        x = nxp;
-        y = nyp;
-        d = nd;
-        moved = true;
-        break;
+    if (h < d) {
+      for (let k = 0; k < 16; k++) {
+        const nxp = x + (DIR_X[k] as number) * h, nyp = y + (DIR_Y[k] as number) * h;
+        if ((nxp - cx) * (nxp - cx) + (nyp - cy) * (nyp - cy) > reach * reach) continue;
+        const nd = distanceAbove(edges, nxp, nyp, d + 1e-12);
+        if (nd > d + 1e-12) {
+          x = nxp;
+          y = nyp;
+          d = nd;
+          moved = true;
+          break;
+        }
       }
     }
     // On the snapped maximum no probe improves: done. Otherwise the snap was not the maximum; search on.
@@ -189,48 +207,21 @@ function extraSeeds(edges: Float64Array, lat: Lattice, d2: Float64Array, runs: I
   return nStarts;
 }
 
-/** Largest exact distance to the rings within two lattice steps of node q (pattern search, dbu). */
+/**
+ * Largest exact distance to the rings within two lattice steps of node q (pattern search, dbu). Its snaps land on the
+ * nearest certified maximum (ridge-snap.ts): the ridge of the narrowest centre, not a larger vertex within the two steps
+ * beside a trench plateau (with the largest candidate, 5 trench + via openings of the bench layout had minWidth up to
+ * 3 % above their trench width).
+ */
 export function polishLocal(edges: Float64Array, lat: Lattice, q: number): number {
   const i = q % lat.nx, j = (q - i) / lat.nx;
-  const cx = lat.x0 + i * lat.step, cy = lat.y0 + j * lat.step;
-  let x = cx, y = cy;
-  let d = distanceToEdges(edges, x, y);
-  let h = lat.step / 2;
-  let snapAt = lat.step * SNAP_STEP, justSnapped = false;
-  let earlyAt = lat.step * SNAP_EARLY, early = 0;
-  for (let it = 0; it < 80 && h > lat.step * 1e-6; it++) {
-    if (h < earlyAt) {
-      earlyAt = 0;
-      const room = Math.min(d, 2 * lat.step - Math.hypot(x - cx, y - cy));
-      if (room > 0 && snapToRidge(edges, x, y, d, SNAP_REACH * h, room)) early = snapped[2] as number;
-    }
-    if (h < snapAt) {
-      snapAt = 0;
-      const room = Math.min(d, 2 * lat.step - Math.hypot(x - cx, y - cy));
-      if (room > 0 && snapToRidge(edges, x, y, d, SNAP_REACH * h, room)) {
-        x = snapped[0] as number;
-        y = snapped[1] as number;
-        d = snapped[2] as number;
-        justSnapped = true;
-      }
-    }
-    let moved = false;
-    for (let k = 0; k < 16; k++) {
-      const nxp = x + (DIR_X[k] as number) * h, nyp = y + (DIR_Y[k] as number) * h;
-      if ((nxp - cx) * (nxp - cx) + (nyp - cy) * (nyp - cy) > 4 * lat.step * lat.step) continue;
-      if (!(h < d)) break;
-      const nd = distanceAbove(edges, nxp, nyp, d + 1e-12);
-      if (nd > d + 1e-12) {
-        x = nxp;
-        y = nyp;
-        d = nd;
-        moved = true;
-        break;
-      }
-    }
-    if (!moved && justSnapped) break;
-    if (moved) justSnapped = false;
-    else h /= 2;
-  }
-  return early > d ? early : d;
+  search[0] = lat.x0 + i * lat.step;
+  search[1] = lat.y0 + j * lat.step;
+  search[2] = lat.step;
+  search[3] = lat.step / 2;
+  search[4] = 80;
+  search[5] = 2 * lat.step;
+  search[6] = 0;
+  searchAt(edges);
+  return climbed[2] as number;
 }

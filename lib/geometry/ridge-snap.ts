@@ -11,12 +11,11 @@
  */
 import { distanceToEdges } from './edge-distance';
 
-/** Most sites (nearest first) combined into candidates; WIDE_SITES for a wide snap (see snapToRidge). */
-const MAX_SITES = 6;
-const WIDE_SITES = 8;
+/** Most sites (nearest first) combined into candidates. */
+const MAX_SITES = 8;
 
 // Sites relative to the start point: kind 0 = line n·p = c (unit normal n pointing at the start), 1 = point (px, py).
-const kind = new Int8Array(WIDE_SITES), sa = new Float64Array(WIDE_SITES), sb = new Float64Array(WIDE_SITES), sc = new Float64Array(WIDE_SITES), sd = new Float64Array(WIDE_SITES);
+const kind = new Int8Array(MAX_SITES), sa = new Float64Array(MAX_SITES), sb = new Float64Array(MAX_SITES), sc = new Float64Array(MAX_SITES), sd = new Float64Array(MAX_SITES);
 const usedS = new Uint8Array(64);
 const candKind = new Int8Array(64), candA = new Float64Array(64), candB = new Float64Array(64), candC = new Float64Array(64), candD = new Float64Array(64);
 
@@ -42,14 +41,16 @@ function addCandidate(n: number, k: number, a: number, b: number, c: number, dis
 }
 
 /**
- * Tries to snap (x, y), at exact distance d from `edges` (edgeList form), to the local maximum of D nearby.
+ * Tries to snap (x, y), at exact distance d from `edges` (edgeList form), to a local maximum of D nearby.
  * `reach` bounds how far the candidate sites may be beyond d (a few search steps). `maxMove` bounds the move
- * (callers restrict their search region; always < d). On success writes `snapped` and returns true.
- * `wide`: for a search of the largest maximum near the start (maxWidth climbs): corners that cannot be a site of any
- * point within maxMove are left out, and more sites are combined. Without it the snap keeps its earlier site list,
- * which the narrowest-centre polish is tuned to (a wider list can carry it to a larger vertex beside a plateau).
+ * (callers restrict their search region; always < d); corners that cannot be a site of any point within maxMove are
+ * left out. On success writes `snapped` and returns true.
+ * Of the candidates above d, the snap lands on the nearest certified local maximum (the ridge the start lies on: what
+ * a polish of the narrowest centre needs, where a larger vertex beside a trench plateau must not replace the plateau);
+ * with `largest`, on the largest candidate if it is certified (the maxWidth climbs, which want the largest maximum
+ * near the start).
  */
-export function snapToRidge(edges: Float64Array, x: number, y: number, d: number, reach: number, maxMove: number, wide = false): boolean {
+export function snapToRidge(edges: Float64Array, x: number, y: number, d: number, reach: number, maxMove: number, largest = false): boolean {
   // A small wrapper the compiler inlines into the hot callers: the numbers go through typed slots instead of being
   // boxed as arguments of the large function (those allocations made garbage collection a tenth of the time).
   args[0] = x;
@@ -57,7 +58,7 @@ export function snapToRidge(edges: Float64Array, x: number, y: number, d: number
   args[2] = d;
   args[3] = reach;
   args[4] = maxMove;
-  args[5] = wide ? 1 : 0;
+  args[5] = largest ? 1 : 0;
   return snapAt(edges);
 }
 
@@ -66,7 +67,7 @@ const args = new Float64Array(6);
 
 function snapAt(edges: Float64Array): boolean {
   const x = args[0] as number, y = args[1] as number, d = args[2] as number, reach = args[3] as number, maxMove = args[4] as number;
-  const wide = args[5] === 1;
+  const largest = args[5] === 1;
   // Candidate sites within d + reach, relative to (x, y); end points clearly beyond (squared distance over (d + reach)²
   // by a 1e-9 relative margin, far beyond rounding) are passed over without a √.
   let n = 0;
@@ -92,25 +93,24 @@ function snapAt(edges: Float64Array): boolean {
     }
     // End point sites. A corner v is the nearest boundary point only of points q in its normal cone, behind both of
     // its edges: (q − v)·u ≤ 0 for the unit direction u along each edge away from v. A q within maxMove of the start
-    // p has (p − v)·u ≤ maxMove there, so (wide snap) a corner failing this for one edge is no site of any candidate:
+    // p has (p − v)·u ≤ maxMove there, so a corner failing this for one edge is no site of any candidate:
     // this drops convex corners (their cone lies outside the opening), which would otherwise crowd the site list.
     const pa2 = ax * ax + ay * ay, pb2 = (ax + dx) * (ax + dx) + (ay + dy) * (ay + dy);
     // (p − a)·(d/len) for the start corner a; (p − b)·(−d/len) = len − that for the end corner b.
     const along = -(ax * dx + ay * dy) / len;
     if (!(pa2 > far2)) {
       const pa = Math.sqrt(pa2);
-      if (pa <= d + reach) n = addCandidate(n, 1, ax, ay, 0, pa, wide && along > maxMove);
+      if (pa <= d + reach) n = addCandidate(n, 1, ax, ay, 0, pa, along > maxMove);
     }
     if (!(pb2 > far2)) {
       const pb = Math.sqrt(pb2);
-      if (pb <= d + reach) n = addCandidate(n, 1, ax + dx, ay + dy, 0, pb, wide && len - along > maxMove);
+      if (pb <= d + reach) n = addCandidate(n, 1, ax + dx, ay + dy, 0, pb, len - along > maxMove);
     }
   }
-  // Nearest MAX_SITES (WIDE_SITES) sites.
+  // Nearest MAX_SITES sites.
   let m = 0;
   const used = usedS.fill(0, 0, n);
-  const sites = wide ? WIDE_SITES : MAX_SITES;
-  while (m < sites) {
+  while (m < MAX_SITES) {
     let best = -1;
     for (let q = 0; q < n; q++) if (!used[q] && candKind[q] !== 2 && (best < 0 || (candD[q] as number) < (candD[best] as number))) best = q;
     if (best < 0) break;
@@ -130,6 +130,9 @@ function snapAt(edges: Float64Array): boolean {
   best.py = 0;
   best.found = false;
   best.maxMove = maxMove;
+  best.d0 = d;
+  best.n = 0;
+  best.largest = largest;
   // Plateaus: two facing parallel lines; the start point projected onto their midline.
   for (let a = 0; a < m; a++) {
     if (kind[a] !== 0) continue;
@@ -147,14 +150,35 @@ function snapAt(edges: Float64Array): boolean {
   tripleIn[0] = d;
   tripleIn[1] = maxMove;
   for (let a = 0; a < m; a++) for (let b = a + 1; b < m; b++) for (let c = b + 1; c < m; c++) {
-    // D there is at most the triple's radius: only a radius above the best so far can win.
-    if (solveTriple(a, b, c) && (sol[2] as number) > best.d) consider(sol[0] as number, sol[1] as number);
+    // D there is at most the triple's radius: only a radius above the start's (largest: the best so far's) can win.
+    if (solveTriple(a, b, c) && (sol[2] as number) > (largest ? best.d : d)) consider(sol[0] as number, sol[1] as number);
   }
-  if (!best.found || !isLocalMaximum(edges, x + best.px, y + best.py, best.d)) return false;
-  snapped[0] = x + best.px;
-  snapped[1] = y + best.py;
-  snapped[2] = best.d;
-  return true;
+  if (largest) {
+    if (!best.found || !isLocalMaximum(edges, x + best.px, y + best.py, best.d)) return false;
+    snapped[0] = x + best.px;
+    snapped[1] = y + best.py;
+    snapped[2] = best.d;
+    return true;
+  }
+  // Nearest first: the first candidate (in increasing distance from the start) that is a certified maximum.
+  for (let left = best.n; left > 0; left--) {
+    let k = -1, k2 = Infinity;
+    for (let q = 0; q < best.n; q++) {
+      const q2 = (ptX[q] as number) ** 2 + (ptY[q] as number) ** 2;
+      if ((ptD[q] as number) >= 0 && q2 < k2) {
+        k = q;
+        k2 = q2;
+      }
+    }
+    const px = x + (ptX[k] as number), py = y + (ptY[k] as number), pd = ptD[k] as number;
+    ptD[k] = -1;
+    if (!isLocalMaximum(edges, px, py, pd)) continue;
+    snapped[0] = px;
+    snapped[1] = py;
+    snapped[2] = pd;
+    return true;
+  }
+  return false;
 }
 
 const angles = new Float64Array(256);
@@ -208,13 +232,23 @@ function localMaximumAt(edges: Float64Array): boolean {
   return corner ? gap < Math.PI - 1e-9 : gap <= Math.PI + 1e-9;
 }
 
-/** Best candidate of the current snap (module state: no closure per call). */
-const best: { edges: Float64Array; x: number; y: number; d: number; px: number; py: number; found: boolean; maxMove: number } = { edges: new Float64Array(0), x: 0, y: 0, d: 0, px: 0, py: 0, found: false, maxMove: 0 };
+/** Best candidate of the current snap; unless `largest`, also the start's distance d0 and the n candidates above it
+ * in ptX/ptY/ptD (module state: no closure per call). */
+const best: { edges: Float64Array; x: number; y: number; d: number; px: number; py: number; found: boolean; maxMove: number; d0: number; n: number; largest: boolean } = { edges: new Float64Array(0), x: 0, y: 0, d: 0, px: 0, py: 0, found: false, maxMove: 0, d0: 0, n: 0, largest: false };
+/** Candidates above the start (relative to it) and their exact distances (−1 once tried). At most 28 + 56 per snap. */
+const ptX = new Float64Array(96), ptY = new Float64Array(96), ptD = new Float64Array(96);
 
-/** Keeps candidate (px, py) (relative to the start) when it is within reach and farther from the edges than the best. */
+/** Keeps candidate (px, py) (relative to the start) when it is within reach and farther from the edges than the best;
+ * unless `largest`, records it when farther than the start. */
 function consider(px: number, py: number): void {
   if (!(Math.sqrt(px * px + py * py) < best.maxMove)) return;
   const e = distanceToEdges(best.edges, best.x + px, best.y + py);
+  if (!best.largest && e > best.d0 + 1e-12 * (1 + best.d0) && best.n < ptX.length) {
+    ptX[best.n] = px;
+    ptY[best.n] = py;
+    ptD[best.n] = e;
+    best.n++;
+  }
   if (e > best.d + 1e-12 * (1 + best.d)) {
     best.d = e;
     best.px = px;

@@ -41,15 +41,18 @@
  * distance by up to step·√2/2, so the narrowest self-centred node and the best largest-disk nodes are refined by
  * pattern search on the exact distance to the edges (polishLocal, refineLargestDisk, disk-search.ts), which lands
  * exactly on the local maximum it approaches — a medial-axis vertex or a plateau midline — once close
- * (ridge-snap.ts, accepted only where the directions to the nearest boundary points certify a maximum); a wider snap
+ * (ridge-snap.ts, accepted only where the directions to the nearest boundary points certify a maximum; the polish of
+ * the narrowest centre takes the nearest certified maximum, the largest-disk searches the largest); a wider snap
  * sets a floor where the search stalls on a slanted crease or a plateau below a nearby larger maximum. The tests hold
  * a curved non-convex shape (an annulus) to 2 % of its analytic width and Manhattan T/L/cross/comb openings off the
- * exact lattice to 1e-6 dbu. Known limit (outside check, tests/fixtures/verify/make_widths.py): an L of 3 and 4 µm arms
- * rotated by 5° or 45° reads minWidth 4 µm — both arms' ridges tie on the lattice (D = √8 steps) and only the first
- * tied node is polished; polishing every tied node instead let nodes beside stubs thinner than the lattice (an L
- * with a 1 µm arm) polish to points near the edge, so it was left. Largest disks at reflex corners get extra climbs
- * (reflex-seeds.ts); an L at 17° or 41° still reads 4.00 instead of 4.20 µm. A node counts as self-centred when no node with a strictly larger disk covers it, so
- * lattice noise can only raise minWidth. Axis-aligned rectangles, convex shapes and polygonised circles are
+ * exact lattice to 1e-6 dbu. A node counts as self-centred when no node with a strictly larger disk covers it, so
+ * lattice noise can only raise minWidth; the uncovered nodes up to one step above the narrowest are polished too
+ * (narrowestPolished), since lattice D can rank a trench plateau above a via beside it (on the bench dump that put
+ * 142 of the 2 991 sampled-path minWidths up to 2× too wide). Known limit (outside check,
+ * tests/fixtures/verify/make_widths.py): an L of 3 and 4 µm arms rotated by 5° or 45° read minWidth 4 µm when both
+ * arms' ridges tie on the lattice (D = √8 steps) and only the first tied node was polished. Largest disks at reflex
+ * corners get extra climbs (reflex-seeds.ts); an L at 17° or 41° still reads 4.00 instead of 4.20 µm. Axis-aligned
+ * rectangles, convex shapes and polygonised circles are
  * computed analytically.
  *
  * Cost: the lattice path is ~40–80 µs per feature (a few thousand nodes, a few hundred inside): the lattice passes
@@ -59,8 +62,9 @@
  */
 import type { Lattice } from './lattice';
 import { interiorRuns, lastRoots, runDistanceTransform, runMaximalCentres, runMaxD2, sortByD2Descending } from './lattice-runs';
-import { polishLocal, refineLargestDisk, seededBest } from './disk-search';
-import { edgeList } from './edge-distance';
+import { climbed, polishLocal, refineLargestDisk, seededBest } from './disk-search';
+import { isLocalMaximum } from './ridge-snap';
+import { distanceToEdges, edgeList } from './edge-distance';
 import { reflexSeededMaximum } from './reflex-seeds';
 import { convexInscribedRadius, isConvexRing } from './convex-width';
 import { polygonisedCircle } from './circle-width';
@@ -275,7 +279,7 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
   // Off the exact lattice, polish the narrowest centre on the exact distance within two steps (reaches the ridge
   // of a straight-sided trench, whose lattice nodes sit up to half a step off the centre line).
   const edges = edgeList(coords, rings, true);
-  const minW = exact || sc.node < 0 ? sc.width : (2 * polishLocal(edges, lat, sc.node)) / step;
+  const minW = exact || sc.node < 0 ? sc.width : (2 * narrowestPolished(edges, lat, sc.node)) / step;
   // The largest disk's centre may lie between nodes (e.g. a Manhattan frame corner, where it touches a concave
   // corner): polish the best nodes by pattern search on the exact distance to the rings.
   let maxD = refineLargestDisk(edges, lat, d2, runs);
@@ -296,6 +300,8 @@ function smallestSelfCentred(d2: Float64Array, centres: Int32Array, maxD2: numbe
   // Largest first, ties in node order (a stable sort of the row-major centres); √d2 from runMaximalCentres.
   const root = lastRoots();
   const desc = sortByD2Descending(centres, d2, maxD2);
+  let first = -1;
+  nAlt = 0;
   for (let ci0 = desc.length - 1; ci0 >= 0; ci0--) {
     const c = desc[ci0] as number;
     const dc = root[c] as number;
@@ -324,7 +330,46 @@ function smallestSelfCentred(d2: Float64Array, centres: Int32Array, maxD2: numbe
         break;
       }
     }
-    if (!covered) return { width: 2 * dc, node: c };
+    if (covered) continue;
+    if (first < 0) {
+      first = c;
+      // On the exact lattice the first is the answer; off it, the nodes up to one step above are polished too.
+      if (slack === 0) break;
+    } else if (dc > (root[first] as number) + 1) break;
+    if (nAlt < altS.length) altS[nAlt++] = c;
+    else break;
   }
-  return { width: 0, node: -1 };
+  return first < 0 ? { width: 0, node: -1 } : { width: 2 * (root[first] as number), node: first };
 }
+
+/** Uncovered nodes within one step of lattice D of the narrowest (set by smallestSelfCentred, off the exact lattice). */
+const altS = new Int32Array(32);
+let nAlt = 0;
+const altD = new Float64Array(32);
+
+/**
+ * Polished narrowest centre off the exact lattice: lattice D overestimates the true distance by up to 0.71 step, so a
+ * node one lattice step above the narrowest can sit on a narrower ridge (a trench plateau beside a via measured wider
+ * on the lattice). The narrowest node is polished as before; the other uncovered nodes within one step of it are
+ * polished in increasing exact distance (at most POLISHES; a polish never ends below its start's distance, so starts at
+ * or above the best so far are skipped), each kept only where it lands on a certified local maximum of D.
+ */
+function narrowestPolished(edges: Float64Array, lat: Lattice, node: number): number {
+  let best = polishLocal(edges, lat, node);
+  if (nAlt <= 1) return best;
+  for (let k = 0; k < nAlt; k++) {
+    const q = altS[k] as number, i = q % lat.nx, j = (q - i) / lat.nx;
+    altD[k] = q === node ? -1 : distanceToEdges(edges, lat.x0 + i * lat.step, lat.y0 + j * lat.step);
+  }
+  for (let p = 0; p < POLISHES; p++) {
+    let b = -1;
+    for (let k = 0; k < nAlt; k++) if ((altD[k] as number) >= 0 && (b < 0 || (altD[k] as number) < (altD[b] as number))) b = k;
+    if (b < 0 || (altD[b] as number) >= best) break;
+    altD[b] = -1;
+    const r = polishLocal(edges, lat, altS[b] as number);
+    if (r < best * (1 - 1e-12) && isLocalMaximum(edges, climbed[0] as number, climbed[1] as number, r)) best = r;
+  }
+  return best;
+}
+
+const POLISHES = 4;

@@ -4,7 +4,7 @@
  * boundary, so openings off the exact Manhattan lattice get their analytic widths.
  */
 import { describe, expect, it } from 'vitest';
-import { extractFeatures, latticeInterior, openRegions, squaredDistanceTransform, type Lattice } from '@/lib/geometry';
+import { extractFeatures, featureWidths, latticeInterior, openRegions, ringArea, ringPerimeter, squaredDistanceTransform, type Lattice } from '@/lib/geometry';
 import { maximalDiskCentres } from '@/lib/geometry/distance';
 import { interiorRuns, runDistanceTransform, runMaximalCentres } from '@/lib/geometry/lattice-runs';
 import { distanceToEdges, edgeList } from '@/lib/geometry/edge-distance';
@@ -104,6 +104,43 @@ describe('snapToRidge(edges, x, y, d, reach, maxMove)', () => {
     expect(snapToRidge(e, x, y, d, 200, d)).toBe(true);
     expect(Math.abs(snapped[2]! - t)).toBeLessThan(1e-9);
     expect(Math.hypot(snapped[0]! - t, snapped[1]! - t)).toBeLessThan(1e-6);
+  });
+
+  it('lands on the nearest certified maximum (the plateau it starts on), not a larger vertex within reach', () => {
+    // Trench [0, 5000] × [0, 1000] opening into a pad [5000, 6000] × [0, 2000] (bottom edges flush), derived by hand
+    // from the definitions in widths.ts (common practice, no source). The trench's midline y = 500 is a plateau of
+    // D = 500. Beside it, in the pad, a medial-axis vertex touches the bottom y = 0, the pad's right wall x = 6000 and
+    // the reflex corner (5000, 1000): centre (6000 − r, r), (1000 − r)·√2 = r → r = 1000√2/(1 + √2) = 1000(2 − √2)
+    // = 585.786 dbu, a certified maximum (site directions π/2, π, 7π/4: no gap of π). From (4950, 510), D = 490 (the
+    // trench top), both lie within the move bound D: the plateau point (4950, 500) 10 dbu away, the vertex
+    // (5414.2, 585.8) 470 dbu away. The narrowest-centre polish must stay on the plateau (r = 500); the maxWidth
+    // climbs (`largest`) take the vertex.
+    const e = edgeList(Float64Array.from([0, 0, 6_000, 0, 6_000, 2_000, 5_000, 2_000, 5_000, 1_000, 0, 1_000]), [[0, 6]]);
+    const [x, y] = [4_950, 510];
+    const d = distanceToEdges(e, x, y);
+    expect(d).toBe(490);
+    const r = 1_000 * (2 - Math.SQRT2);
+    expect(snapToRidge(e, x, y, d, 600, d)).toBe(true);
+    expect(Math.abs(snapped[2]! - 500)).toBeLessThan(1e-9);
+    expect(Math.hypot(snapped[0]! - 4_950, snapped[1]! - 500)).toBeLessThan(1e-6);
+    expect(snapToRidge(e, x, y, d, 600, d, true)).toBe(true);
+    expect(Math.abs(snapped[2]! - r)).toBeLessThan(1e-9);
+    expect(Math.hypot(snapped[0]! - (6_000 - r), snapped[1]! - r)).toBeLessThan(1e-6);
+  });
+
+  it('a trench + via opening (sampled lattice, polished narrowest centre): minWidth the trench width', () => {
+    // One opening of the 1M-polygon bench layout (bench/make-files.ts mixedLayer), in its bbox frame: trench
+    // [0, 24639] × [3009, 4580] whose right end joins a 16-gon via (centre (24500, 1659), corner radius 1659). Derived by
+    // hand from the definitions in widths.ts (common practice, no source): the trench midline y = 3794.5 is a plateau
+    // of D = 1571/2 = 785.5 dbu; a disk larger than that containing a midline point far from the via does not fit
+    // between the trench edges, so those points are self-centred and minWidth = 1571 dbu (the via and the junction
+    // are wider). Not Manhattan, so the sampled lattice measures it and polishes the narrowest node: taking the largest
+    // certified maximum within the polish's two steps it landed on a junction vertex, 1618.08 dbu.
+    const xy = Float64Array.from([24929, 57, 25330, 222, 25673, 486, 25937, 829, 26102, 1230, 26159, 1659, 26102, 2088, 25937, 2488, 25673, 2832, 25330, 3096, 24929, 3261, 24639, 3300, 24639, 4580, 0, 4580, 0, 3009, 23558, 3009, 23327, 2832, 23063, 2488, 22898, 2088, 22841, 1659, 22898, 1230, 23063, 830, 23327, 486, 23670, 222, 24071, 57, 24500, 0]);
+    const n = xy.length / 2;
+    const w = featureWidths(xy, [[0, n]], [0, 0, 26159, 4580], Math.abs(ringArea(xy, 0, 2 * n)), ringPerimeter(xy, 0, 2 * n));
+    expect(w.exact).toBe(false);
+    expect(Math.abs(w.minWidth - 1571)).toBeLessThan(1e-6);
   });
 
   it('never lowers D, never moves farther than allowed, and ends on a local maximum (seeded random unions)', () => {
