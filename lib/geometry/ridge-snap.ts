@@ -194,14 +194,27 @@ export function isLocalMaximum(edges: Float64Array, x: number, y: number, d: num
   args[0] = x;
   args[1] = y;
   args[2] = d;
-  return localMaximumAt(edges);
+  return localMaximumAt(edges, 1e-9, 0);
 }
 
-function localMaximumAt(edges: Float64Array): boolean {
+/**
+ * isLocalMaximum up to drawing noise: sites within `relTol` of d, and between two facing edges an angular gap up to
+ * π + `gapTol`. Walls of a rotated trench, their vertices rounded to the database grid, converge by about one grid
+ * step per edge length (≈ 1e-3 rad over 1 µm): its centre line then has no strict maximum anywhere, though any user
+ * reads it as a straight trench. Corners keep the strict test (a gap near π there is a neck, not a trench).
+ */
+export function isNearLocalMaximum(edges: Float64Array, x: number, y: number, d: number, relTol: number, gapTol: number): boolean {
+  args[0] = x;
+  args[1] = y;
+  args[2] = d;
+  return localMaximumAt(edges, relTol, gapTol);
+}
+
+function localMaximumAt(edges: Float64Array, relTol: number, gapTol: number): boolean {
   const x = args[0] as number, y = args[1] as number, d = args[2] as number;
-  const tol = 1e-9 * (1 + d);
+  const tol = relTol * (1 + d);
   // Far sites are told apart on the squared distance (a 1e-9 relative margin, far beyond rounding) without a √.
-  const far2 = (d + tol) * (d + tol) * (1 + 1e-9);
+  const far2 = (d + tol) * (d + tol) * (1 + relTol);
   let n = 0, corner = false;
   for (let o = 0; o < edges.length && n < angles.length; o += 5) {
     const ax = edges[o] as number, ay = edges[o + 1] as number, dx = edges[o + 2] as number, dy = edges[o + 3] as number;
@@ -229,7 +242,7 @@ function localMaximumAt(edges: Float64Array): boolean {
   }
   let gap = (a[0] as number) + 2 * Math.PI - (a[n - 1] as number);
   for (let k = 1; k < n; k++) gap = Math.max(gap, (a[k] as number) - (a[k - 1] as number));
-  return corner ? gap < Math.PI - 1e-9 : gap <= Math.PI + 1e-9;
+  return corner ? gap < Math.PI - 1e-9 : gap <= Math.PI + 1e-9 + gapTol;
 }
 
 /** Best candidate of the current snap; unless `largest`, also the start's distance d0 and the n candidates above it

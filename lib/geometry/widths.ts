@@ -48,10 +48,14 @@
  * exact lattice to 1e-6 dbu. A node counts as self-centred when no node with a strictly larger disk covers it, so
  * lattice noise can only raise minWidth; the uncovered nodes up to one step above the narrowest are polished too
  * (narrowestPolished), since lattice D can rank a trench plateau above a via beside it (on the bench dump that put
- * 142 of the 2 991 sampled-path minWidths up to 2× too wide). Known limit (outside check,
- * tests/fixtures/verify/make_widths.py): an L of 3 and 4 µm arms rotated by 5° or 45° read minWidth 4 µm when both
- * arms' ridges tie on the lattice (D = √8 steps) and only the first tied node was polished. Largest disks at reflex
- * corners get extra climbs (reflex-seeds.ts); an L at 17° or 41° still reads 4.00 instead of 4.20 µm. Axis-aligned
+ * 142 of the 2 991 sampled-path minWidths up to 2× too wide). Those other starts count where they land on a maximum
+ * up to drawing noise (walls of a rotated arm, rounded to the grid, converge by ~1e-4 rad, so its centre line has no
+ * strict maximum: an L of 3 and 4 µm arms at 5° or 40° read 4 µm before). A first polish that stalls below half its
+ * node's lattice radius on no maximum is a lattice artefact beside a corner of a stub about two steps wide (a 1 µm
+ * arm of a rotated L read 0.056 µm; 5 openings of the bench dump 6–510 dbu, now within 0–113 dbu of brute force):
+ * it does not count. Known limit: such a stub can still read up to 25 % narrow (0.77–0.94 µm for that 1 µm arm at 4 of
+ * 90 angles). Largest disks at reflex corners get extra climbs (reflex-seeds.ts); an L at 17° or 41° still reads 4.00
+ * instead of 4.20 µm. Axis-aligned
  * rectangles, convex shapes and polygonised circles are
  * computed analytically.
  *
@@ -63,7 +67,7 @@
 import type { Lattice } from './lattice';
 import { interiorRuns, lastRoots, runDistanceTransform, runMaximalCentres, runMaxD2, sortByD2Descending } from './lattice-runs';
 import { climbed, polishLocal, refineLargestDisk, seededBest } from './disk-search';
-import { isLocalMaximum } from './ridge-snap';
+import { isNearLocalMaximum } from './ridge-snap';
 import { distanceToEdges, edgeList } from './edge-distance';
 import { reflexSeededMaximum } from './reflex-seeds';
 import { convexInscribedRadius, isConvexRing } from './convex-width';
@@ -279,7 +283,7 @@ function latticeWidths(coords: ArrayLike<number>, rings: [number, number][], bbo
   // Off the exact lattice, polish the narrowest centre on the exact distance within two steps (reaches the ridge
   // of a straight-sided trench, whose lattice nodes sit up to half a step off the centre line).
   const edges = edgeList(coords, rings, true);
-  const minW = exact || sc.node < 0 ? sc.width : (2 * narrowestPolished(edges, lat, sc.node)) / step;
+  const minW = exact || sc.node < 0 ? sc.width : (2 * narrowestPolished(edges, lat, sc.node, (sc.width / 2) * step)) / step;
   // The largest disk's centre may lie between nodes (e.g. a Manhattan frame corner, where it touches a concave
   // corner): polish the best nodes by pattern search on the exact distance to the rings.
   let maxD = refineLargestDisk(edges, lat, d2, runs);
@@ -354,22 +358,36 @@ const altD = new Float64Array(32);
  * polished in increasing exact distance (at most POLISHES; a polish never ends below its start's distance, so starts at
  * or above the best so far are skipped), each kept only where it lands on a certified local maximum of D.
  */
-function narrowestPolished(edges: Float64Array, lat: Lattice, node: number): number {
+function narrowestPolished(edges: Float64Array, lat: Lattice, node: number, latticeRadius: number): number {
   let best = polishLocal(edges, lat, node);
-  if (nAlt <= 1) return best;
+  // A self-centred centre is a local maximum of D. A polish ending far below its node's lattice radius on no maximum
+  // is a lattice artefact: a node beside a convex corner of a stub about two steps wide, where the search stalls tens
+  // of nanometres from the edge (a 1 µm arm of a rotated L read 0.06 µm that way). Such a start does not count, and
+  // more starts are tried (the stub's centre nodes come after its corner nodes in exact distance).
+  const artefact = best < ARTEFACT_FRACTION * latticeRadius && !isNearLocalMaximum(edges, climbed[0] as number, climbed[1] as number, best, 1e-9, 0);
+  if (artefact) best = Infinity;
   for (let k = 0; k < nAlt; k++) {
     const q = altS[k] as number, i = q % lat.nx, j = (q - i) / lat.nx;
     altD[k] = q === node ? -1 : distanceToEdges(edges, lat.x0 + i * lat.step, lat.y0 + j * lat.step);
   }
-  for (let p = 0; p < POLISHES; p++) {
+  for (let p = 0; p < (artefact ? MORE_POLISHES : POLISHES); p++) {
     let b = -1;
     for (let k = 0; k < nAlt; k++) if ((altD[k] as number) >= 0 && (b < 0 || (altD[k] as number) < (altD[b] as number))) b = k;
     if (b < 0 || (altD[b] as number) >= best) break;
     altD[b] = -1;
     const r = polishLocal(edges, lat, altS[b] as number);
-    if (r < best * (1 - 1e-12) && isLocalMaximum(edges, climbed[0] as number, climbed[1] as number, r)) best = r;
+    const onMaximum = isNearLocalMaximum(edges, climbed[0] as number, climbed[1] as number, r, NEAR_REL, NEAR_GAP);
+    if (r < best * (1 - 1e-12) && (onMaximum || (artefact && r >= ARTEFACT_FRACTION * latticeRadius))) best = r;
   }
-  return best;
+  // Only artefacts near the narrowest lattice centre: its lattice radius (above the true one by < 0.71 step).
+  return best === Infinity ? latticeRadius : best;
 }
 
 const POLISHES = 4;
+/** Starts tried when the first polish is not certified (a stub's centre nodes come after its corner nodes in exact
+ * distance), and the fraction of the lattice radius below which an uncertified polish is an artefact. */
+const MORE_POLISHES = 12;
+const ARTEFACT_FRACTION = 0.5;
+/** Other starts count when they land on a maximum, walls converging by drawing noise allowed (isNearLocalMaximum). */
+const NEAR_REL = 1e-7;
+const NEAR_GAP = 2e-3;
