@@ -5,6 +5,7 @@ import { useState } from 'react';
 import { QueryProvider } from '@/components/pipeline/query-provider';
 import { apiJson, ApiClientError } from '@/components/pipeline/api-client';
 import { buttonClass } from '@/components/ui/button';
+import { KindTargetFields } from './kind-target-fields';
 import type { DensityLimits } from '@/lib/etch';
 
 const fmt = (v: number | null, d = 3) => (v === null || !Number.isFinite(v) ? '—' : String(Number(v.toPrecision(d))));
@@ -41,17 +42,7 @@ function Panel({ versionId, defaultTargetUm, defaultKind }: { versionId: string;
   return (
     <div className="space-y-3" data-testid="density-limits">
       <div className="flex flex-wrap items-end gap-3">
-        <label className="text-xs text-ink-700">
-          Kind
-          <select className="mt-0.5 block rounded-md border border-wafer-300 bg-white px-2 py-1.5 text-sm" value={kind} onChange={(e) => setKind(e.target.value as 'trench' | 'hole')} data-testid="dl-kind">
-            <option value="trench">trench</option>
-            <option value="hole">hole</option>
-          </select>
-        </label>
-        <label className="text-xs text-ink-700">
-          Target depth (µm)
-          <input className="mt-0.5 block w-28 rounded-md border border-wafer-300 px-2 py-1.5 text-sm" value={target} onChange={(e) => setTarget(e.target.value)} inputMode="decimal" data-testid="dl-target" />
-        </label>
+        <KindTargetFields kind={kind} onKind={setKind} target={target} onTarget={setTarget} testIdPrefix="dl" />
         <label className="text-xs text-ink-700">
           Widths (µm, comma-separated)
           <input className="mt-0.5 block w-48 rounded-md border border-wafer-300 px-2 py-1.5 text-sm" value={widths} onChange={(e) => setWidths(e.target.value)} placeholder="1 to 100, 8 steps" data-testid="dl-widths" />

@@ -32,6 +32,6 @@ export function densityTable(model: ProcessModel, req: { kind: 'trench' | 'hole'
   return densityLimits(m, { kind: req.kind, ...(req.widthsUm ? { widthsUm: req.widthsUm } : {}) });
 }
 
-export function isWidthTableError(x: WidthRules | DensityLimits | WidthTableError): x is WidthTableError {
+export function isWidthTableError<T extends object>(x: T | WidthTableError): x is WidthTableError {
   return 'field' in x && 'message' in x && !('rows' in x);
 }

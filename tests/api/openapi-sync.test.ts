@@ -62,8 +62,9 @@ describe('OpenAPI document ↔ app/api/v1 route handlers', () => {
 
   it('marks token access exactly on the handlers that authenticate through request-access', () => {
     for (const r of routes) {
-      // request-access is the one token-aware authentication; lib/jobs/access wraps it for analysis/layout ids
-      const usesTokens = /from '@\/lib\/(auth\/request-access|jobs\/access)'/.test(r.source);
+      // request-access is the one token-aware authentication; lib/jobs/access wraps it for analysis/layout ids and
+      // lib/models/version-table-route for a version's derived tables
+      const usesTokens = /from '@\/lib\/(auth\/request-access|jobs\/access|models\/version-table-route)'/.test(r.source);
       for (const m of r.methods) {
         const op = openApiDocument.paths[r.path]?.[m as 'get'];
         if (!op) continue; // reported by the test above
