@@ -103,7 +103,9 @@ export function densityLimits(model: ProcessModel, options: DensityLimitsOptions
     calibratedDensity: model.calibration ? [model.calibration.density[0], model.calibration.density[1]] : null,
     densities,
     rows,
-    caution: `${ETCH_CAUTION} Limits are on the kernel-weighted effective density around an opening, not on a rule window's density; check them against the fab's loading data before writing them into a rule deck.`,
+    caution:
+      `${ETCH_CAUTION} Limits are on the kernel-weighted effective density around an opening, not on a rule window's density; check them against the fab's loading data before writing them into a rule deck.` +
+      (model.loading.globalCoefficient > 0 && exposedFraction === 0 ? ' Global (wafer-level) loading is left out here (exposed fraction 0): a more open wafer etches slower and narrows every band.' : ''),
   };
 }
 

@@ -45,6 +45,16 @@ describe('densityLimits', () => {
     expect(densityLimits(stopped, { kind: 'hole', widthsUm: [5] }).rows[0]?.minDensity).toBe(0);
   });
 
+  it('says when global loading is left out, and takes it in when an exposed fraction is given', () => {
+    // R = R_open/(1 + κρ + Φ·A) (domain.md 3.6): with Φ = 0.25, A = 0.4 and no lag, 20/(1.1 + 0.5ρ) ≥ 14 ⇔
+    // ρ ≤ (20/14 − 1.1)/0.5 = 46/70 (hand-derived).
+    const m = testModel({ reactionProbability: 1e-9, loading: { coefficient: 0.5, globalCoefficient: 0.25, lengthUm: 800 } });
+    expect(densityLimits(m, { kind: 'hole', widthsUm: [5] }).caution).toMatch(/Global \(wafer-level\) loading is left out/);
+    const t = densityLimits(m, { kind: 'hole', widthsUm: [5], exposedFraction: 0.4 });
+    expect(t.caution).not.toMatch(/left out/);
+    expect(t.rows[0]?.maxDensity).toBeCloseTo(46 / 70, 6);
+  });
+
   it('CSV: commented header with the caution, one row per width, empty cell for no limit', () => {
     const slow = testModel({ openRateUmPerMin: 0.5, loading: { coefficient: 0.5, lengthUm: 800 } });
     const lines = densityLimitsToCsv(densityLimits(slow, { kind: 'hole', widthsUm: [5, 50] })).trim().split('\n');
