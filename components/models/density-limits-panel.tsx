@@ -1,11 +1,10 @@
 'use client';
 
-import { useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { QueryProvider } from '@/components/pipeline/query-provider';
-import { apiJson, ApiClientError } from '@/components/pipeline/api-client';
 import { buttonClass } from '@/components/ui/button';
 import { KindTargetFields } from './kind-target-fields';
+import { useVersionTable } from './use-version-table';
 import type { DensityLimits } from '@/lib/etch';
 
 const fmt = (v: number | null, d = 3) => (v === null || !Number.isFinite(v) ? '—' : String(Number(v.toPrecision(d))));
@@ -31,13 +30,7 @@ function Panel({ versionId, defaultTargetUm, defaultKind }: { versionId: string;
   const [target, setTarget] = useState(String(defaultTargetUm));
   const [widths, setWidths] = useState('');
   const params = new URLSearchParams({ kind, ...(target.trim() ? { targetDepthUm: target.trim() } : {}), ...(widths.trim() ? { widthsUm: widths.trim() } : {}) });
-  const q = useQuery({
-    queryKey: ['density-limits', versionId, params.toString()],
-    queryFn: () => apiJson<DensityLimits & { versionStatus: string }>(`/api/v1/model-versions/${versionId}/density-limits?${params}`),
-    retry: false,
-  });
-  const url = (format: string) => `/api/v1/model-versions/${versionId}/density-limits?${params}&format=${format}`;
-  const err = q.error instanceof ApiClientError ? q.error : null;
+  const { q, err, url } = useVersionTable<DensityLimits>(versionId, 'density-limits', params);
   const d = q.data;
   return (
     <div className="space-y-3" data-testid="density-limits">

@@ -1,11 +1,10 @@
 'use client';
 
-import { useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { QueryProvider } from '@/components/pipeline/query-provider';
-import { apiJson, ApiClientError } from '@/components/pipeline/api-client';
 import { buttonClass } from '@/components/ui/button';
 import { KindTargetFields } from './kind-target-fields';
+import { useVersionTable } from './use-version-table';
 import type { WidthRules } from '@/lib/etch';
 
 const fmt = (v: number | null, d = 3) => (v === null || !Number.isFinite(v) ? '—' : String(Number(v.toPrecision(d))));
@@ -24,13 +23,7 @@ function Panel({ versionId, defaultTargetUm, defaultKind }: { versionId: string;
   const [target, setTarget] = useState(String(defaultTargetUm));
   const [density, setDensity] = useState('');
   const params = new URLSearchParams({ kind, ...(target.trim() ? { targetDepthUm: target.trim() } : {}), ...(density.trim() ? { density: density.trim() } : {}) });
-  const q = useQuery({
-    queryKey: ['width-rules', versionId, params.toString()],
-    queryFn: () => apiJson<WidthRules & { versionStatus: string }>(`/api/v1/model-versions/${versionId}/width-rules?${params}`),
-    retry: false,
-  });
-  const url = (format: string) => `/api/v1/model-versions/${versionId}/width-rules?${params}&format=${format}`;
-  const err = q.error instanceof ApiClientError ? q.error : null;
+  const { q, err, url } = useVersionTable<WidthRules>(versionId, 'width-rules', params);
   const k = q.data?.uncertaintyBandK ?? null;
   return (
     <div className="space-y-3" data-testid="width-rules">
